@@ -1,0 +1,29 @@
+//! # annulus
+//!
+//! Pitot-tube velocity traverses of ducts and stacks, from raw readings to verified flow results and
+//! signed PDF test reports.
+//!
+//! The pipeline, in the order data flows (nothing flows backwards):
+//!
+//! 1. **Read** — [`input`] is the only code that touches files: the survey (TOML) and the readings
+//!    (CSV) become validated domain values, every problem carrying its file, line and column.
+//! 2. **Lay out** — [`geometry`] gives the plane's shape and area; [`layout`] places the traverse
+//!    points (equal-area, log-linear, log-Tchebycheff), applies wall rules and advises point counts.
+//! 3. **Correct** — [`gas`] turns composition, moisture and pressure into gas density.
+//! 4. **Integrate** — [`flow`] computes point velocities and flows under a named convention.
+//! 5. **Judge** — [`checks`] runs acceptance checks; [`uncertainty`] builds the GUM budget.
+//! 6. **Present** — [`report`] renders Typst PDFs; [`archive`] signs, verifies and reviews them;
+//!    [`cli`] prints tables, JSON and CSV.
+//!
+//! The calculation modules ([`units`], [`geometry`], [`layout`], [`gas`], [`flow`], [`checks`],
+//! [`uncertainty`], [`calibration`], [`rata`]) never read files, print, or look at the clock.
+
+pub mod calibration;
+pub mod diag;
+pub mod gas;
+pub mod geometry;
+pub mod layout;
+pub mod rata;
+pub mod report;
+pub mod uncertainty;
+pub mod units;
