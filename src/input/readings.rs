@@ -1,0 +1,586 @@
+//! Reads a run's readings CSV (row form or matrix form) and matches it to the layout.
+//!
+//! Header names carry their unit in brackets (`dp[inH2O]`, `temperature[F]`, `yaw[deg]`); cells
+//! hold plain numbers. Every bad cell is reported with file, line, column, header, the raw value and
+//! a hint; all problems of a file are collected before stopping. No reading is ever dropped: a row
+//! that does not belong to the layout, a duplicate or a missing point is an error.
+
+use crate::diag::{Diagnostic, Diagnostics, Error, Location};
+use crate::layout::Layout;
+use crate::readings::{Dp, Reading, RunReadings};
+use crate::units::{convert_in, lookup_unit, parse_number, symbols_for, Dimension, Unit};
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Col {
+    Line,
+    Point,
+    Dp(&'static Unit),
+    Temperature(&'static Unit),
+    Yaw,
+    Pitch,
+    Static(&'static Unit),
+    Time,
+}
+
+const HINT_CELL: &str = "use `.` as the decimal separator; put units in the header, not the cell";
+
+/// Parses `name[unit]`.
+fn parse_header(h: &str) -> Result<Col, (String, String)> {
+    let h = h.trim();
+    let (name, unit) = match h.split_once('[') {
+        Some((n, rest)) => match rest.strip_suffix(']') {
+            Some(u) => (n.trim(), Some(u.trim())),
+            None => {
+                return Err((
+                    format!("header `{h}` has no closing `]`"),
+                    "write units as name[unit], e.g. dp[inH2O]".into(),
+                ))
+            }
+        },
+        None => (h, None),
+    };
+    let unit_of = |dims: &[Dimension], example: &str| -> Result<&'static Unit, (String, String)> {
+        let Some(u) = unit else {
+            return Err((
+                format!("column `{name}` needs a unit in its header"),
+                format!("write e.g. `{example}`"),
+            ));
+        };
+        match lookup_unit(u) {
+            Some(unit) if dims.contains(&unit.dimension) => Ok(unit),
+            _ => Err((
+                format!("unit `{u}` cannot be used for column `{name}`"),
+                format!(
+                    "`{name}` takes one of: {}",
+                    dims.iter()
+                        .flat_map(|d| symbols_for(*d))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            )),
+        }
+    };
+    let no_unit = |col: Col| -> Result<Col, (String, String)> {
+        match unit {
+            None => Ok(col),
+            Some("deg") if matches!(col, Col::Yaw | Col::Pitch) => Ok(col),
+            Some(u) => Err((
+                format!("column `{name}` takes no unit `{u}`"),
+                if matches!(col, Col::Yaw | Col::Pitch) {
+                    format!("write `{name}[deg]`")
+                } else {
+                    format!("write `{name}`")
+                },
+            )),
+        }
+    };
+    match name {
+        "line" => no_unit(Col::Line),
+        "point" => no_unit(Col::Point),
+        "dp" => Ok(Col::Dp(unit_of(
+            &[Dimension::Pressure, Dimension::Length],
+            "dp[inH2O]",
+        )?)),
+        "temperature" => Ok(Col::Temperature(unit_of(
+            &[Dimension::Temperature],
+            "temperature[F]",
+        )?)),
+        "yaw" => no_unit(Col::Yaw),
+        "pitch" => no_unit(Col::Pitch),
+        "static" => Ok(Col::Static(unit_of(&[Dimension::Pressure], "static[inH2O]")?)),
+        "time" => no_unit(Col::Time),
+        other => Err((
+            format!("unknown column `{other}`"),
+            "columns are line, point, dp[…], and optionally temperature[…], yaw[deg], pitch[deg], static[…], time".into(),
+        )),
+    }
+}
+
+fn decimals(raw: &str) -> usize {
+    raw.trim()
+        .split_once('.')
+        .map(|(_, f)| f.chars().take_while(|c| c.is_ascii_digit()).count())
+        .unwrap_or(0)
+}
+
+struct Cell<'a> {
+    file: &'a str,
+    line: usize,
+    column: usize,
+    header: &'a str,
+    who: String,
+}
+
+impl Cell<'_> {
+    fn error(&self, msg: String, hint: &str) -> Diagnostic {
+        Diagnostic::new(msg)
+            .at(Location::at(self.file, self.line, self.column)
+                .with_context(format!("{}column `{}`", self.who, self.header)))
+            .hint(hint)
+    }
+}
+
+fn number(cell: &Cell, raw: &str, what: &str) -> Result<f64, Diagnostic> {
+    match parse_number(raw) {
+        Some(v) if v.is_finite() && !raw.contains('/') => Ok(v),
+        _ => Err(cell.error(format!("{what} is not a number: `{raw}`"), HINT_CELL)),
+    }
+}
+
+fn to_dp(unit: &Unit, v: f64) -> Dp {
+    match unit.dimension {
+        Dimension::Length => Dp::Column {
+            height_m: v * unit.factor,
+        },
+        _ => Dp::Pressure { pa: v * unit.factor },
+    }
+}
+
+/// Parses a readings file in row form.
+pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
+    let mut diags = Diagnostics::new();
+    let mut rdr = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .comment(Some(b'#'))
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let headers = match rdr.headers() {
+        Ok(h) => h.clone(),
+        Err(e) => {
+            return Err(Error::input(
+                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
+                    .at(Location::file(file)),
+            ))
+        }
+    };
+    let mut cols = Vec::new();
+    for (i, h) in headers.iter().enumerate() {
+        match parse_header(h) {
+            Ok(c) => {
+                if cols.iter().any(|(_, x): &(usize, Col)| {
+                    std::mem::discriminant(x) == std::mem::discriminant(&c)
+                }) {
+                    diags.push(
+                        Diagnostic::new(format!("column `{h}` appears twice"))
+                            .at(Location::at(file, 1, i + 1)),
+                    );
+                }
+                cols.push((i, c));
+            }
+            Err((m, hint)) => diags.push(
+                Diagnostic::new(m)
+                    .at(Location::at(file, 1, i + 1).with_context(format!("header `{h}`")))
+                    .hint(hint),
+            ),
+        }
+    }
+    for (req, name) in [
+        (Col::Line, "line"),
+        (Col::Point, "point"),
+        (Col::Dp(&crate::units::UNITS[0]), "dp[…]"),
+    ] {
+        if !cols
+            .iter()
+            .any(|(_, c)| std::mem::discriminant(c) == std::mem::discriminant(&req))
+        {
+            diags.push(
+                Diagnostic::new(format!("the readings file has no `{name}` column"))
+                    .at(Location::at(file, 1, 1))
+                    .hint("the header must name line, point and dp[unit], e.g. `line,point,dp[inH2O]`"),
+            );
+        }
+    }
+    if !diags.is_empty() {
+        return Err(Error::Input(diags));
+    }
+    let mut readings = Vec::new();
+    for rec in rdr.records() {
+        let rec = match rec {
+            Ok(r) => r,
+            Err(e) => {
+                let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
+                diags.push(
+                    Diagnostic::new(format!("unreadable CSV row: {e}"))
+                        .at(Location::at(file, line, 1)),
+                );
+                continue;
+            }
+        };
+        let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
+        if rec.iter().all(|c| c.is_empty()) {
+            continue;
+        }
+        if rec.len() != headers.len() {
+            diags.push(
+                Diagnostic::new(format!(
+                    "row has {} fields, the header has {}",
+                    rec.len(),
+                    headers.len()
+                ))
+                .at(Location::at(file, line_no, 1))
+                .hint("every row needs a value (or an empty field) for each column"),
+            );
+            continue;
+        }
+        let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
+        let line_label = get(Col::Line).map(|i| rec[i].to_string()).unwrap_or_default();
+        let point_raw = get(Col::Point).map(|i| rec[i].to_string()).unwrap_or_default();
+        let who = format!("line {line_label}, point {point_raw}, ");
+        let mut r = Reading {
+            line: line_label.clone(),
+            point: 0,
+            dp: Dp::Pressure { pa: f64::NAN },
+            dp_decimals: 0,
+            temperature_k: None,
+            yaw_deg: None,
+            pitch_deg: None,
+            static_pa: None,
+            time: None,
+            source_line: line_no,
+        };
+        let mut ok = true;
+        for (i, col) in &cols {
+            let raw = &rec[*i];
+            let cell = Cell {
+                file,
+                line: line_no,
+                column: i + 1,
+                header: &headers[*i],
+                who: who.clone(),
+            };
+            let res: Result<(), Diagnostic> = match col {
+                Col::Line => {
+                    if raw.is_empty() {
+                        Err(cell.error("the line label is empty".into(), "label lines A, B, C … in port order"))
+                    } else {
+                        Ok(())
+                    }
+                }
+                Col::Point => match raw.parse::<usize>() {
+                    Ok(p) if p >= 1 => {
+                        r.point = p;
+                        Ok(())
+                    }
+                    _ => Err(cell.error(
+                        format!("point is not a positive whole number: `{raw}`"),
+                        "points count from the near wall starting at 1",
+                    )),
+                },
+                Col::Dp(unit) => {
+                    if raw.is_empty() {
+                        Err(cell.error(
+                            "differential pressure is missing".into(),
+                            "every point needs a reading; a point that could not be read must be re-read, not left out",
+                        ))
+                    } else {
+                        number(&cell, raw, "differential pressure").map(|v| {
+                            r.dp = to_dp(unit, v);
+                            r.dp_decimals = decimals(raw);
+                        })
+                    }
+                }
+                Col::Temperature(unit) if !raw.is_empty() => {
+                    number(&cell, raw, "temperature").and_then(|v| {
+                        let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
+                        if k > 0.0 {
+                            r.temperature_k = Some(k);
+                            Ok(())
+                        } else {
+                            Err(cell.error(
+                                format!("temperature `{raw}` is below absolute zero"),
+                                "check the unit in the header",
+                            ))
+                        }
+                    })
+                }
+                Col::Yaw | Col::Pitch if !raw.is_empty() => {
+                    number(&cell, raw, "flow angle").and_then(|v| {
+                        if (-90.0..=90.0).contains(&v) {
+                            if *col == Col::Yaw {
+                                r.yaw_deg = Some(v);
+                            } else {
+                                r.pitch_deg = Some(v);
+                            }
+                            Ok(())
+                        } else {
+                            Err(cell.error(
+                                format!("flow angle `{raw}` is outside -90 to 90 degrees"),
+                                "record the null angle of the probe from the axial direction",
+                            ))
+                        }
+                    })
+                }
+                Col::Static(unit) if !raw.is_empty() => number(&cell, raw, "static pressure")
+                    .map(|v| r.static_pa = Some(v * unit.factor)),
+                Col::Time if !raw.is_empty() => {
+                    r.time = Some(raw.to_string());
+                    Ok(())
+                }
+                _ => Ok(()),
+            };
+            if let Err(d) = res {
+                diags.push(d);
+                ok = false;
+            }
+        }
+        if ok {
+            readings.push(r);
+        }
+    }
+    if readings.is_empty() && diags.is_empty() {
+        diags.push(
+            Diagnostic::new("the readings file has no readings")
+                .at(Location::file(file))
+                .hint("fill in one row per traverse point (annulus init writes a blank sheet)"),
+        );
+    }
+    diags.finish(RunReadings {
+        file: file.to_string(),
+        readings,
+    })
+}
+
+/// Parses a readings file in matrix form: `line,1,2,…,n`, one row per line, one quantity named by
+/// `header` (e.g. `dp[inH2O]`).
+pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings, Error> {
+    let unit = match parse_header(header) {
+        Ok(Col::Dp(u)) => u,
+        _ => {
+            return Err(Error::input(
+                Diagnostic::new(format!("a matrix readings file holds Δp; `{header}` is not a dp column"))
+                    .at(Location::file(file))
+                    .hint("write matrix = \"dp[inH2O]\" (or another pressure unit) in the [[run]]"),
+            ))
+        }
+    };
+    let mut diags = Diagnostics::new();
+    let mut rdr = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .comment(Some(b'#'))
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let headers = match rdr.headers() {
+        Ok(h) => h.clone(),
+        Err(e) => {
+            return Err(Error::input(
+                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
+                    .at(Location::file(file)),
+            ))
+        }
+    };
+    let mut points = Vec::new();
+    for (i, h) in headers.iter().enumerate().skip(1) {
+        match h.parse::<usize>() {
+            Ok(p) if p >= 1 => points.push(p),
+            _ => diags.push(
+                Diagnostic::new(format!("matrix column header `{h}` is not a point number"))
+                    .at(Location::at(file, 1, i + 1))
+                    .hint("the header of a matrix file is `line,1,2,3,…`"),
+            ),
+        }
+    }
+    if headers.get(0) != Some("line") {
+        diags.push(
+            Diagnostic::new("the first column of a matrix file must be `line`")
+                .at(Location::at(file, 1, 1)),
+        );
+    }
+    if !diags.is_empty() {
+        return Err(Error::Input(diags));
+    }
+    let mut readings = Vec::new();
+    for rec in rdr.records() {
+        let rec = match rec {
+            Ok(r) => r,
+            Err(e) => {
+                diags.push(Diagnostic::new(format!("unreadable CSV row: {e}")).at(Location::file(file)));
+                continue;
+            }
+        };
+        let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
+        if rec.len() != headers.len() {
+            diags.push(
+                Diagnostic::new(format!(
+                    "row has {} fields, the header has {}",
+                    rec.len(),
+                    headers.len()
+                ))
+                .at(Location::at(file, line_no, 1)),
+            );
+            continue;
+        }
+        let label = rec[0].to_string();
+        for (k, &p) in points.iter().enumerate() {
+            let raw = &rec[k + 1];
+            let cell = Cell {
+                file,
+                line: line_no,
+                column: k + 2,
+                header,
+                who: format!("line {label}, point {p}, "),
+            };
+            match number(&cell, raw, "differential pressure") {
+                Ok(v) => readings.push(Reading {
+                    line: label.clone(),
+                    point: p,
+                    dp: to_dp(unit, v),
+                    dp_decimals: decimals(raw),
+                    temperature_k: None,
+                    yaw_deg: None,
+                    pitch_deg: None,
+                    static_pa: None,
+                    time: None,
+                    source_line: line_no,
+                }),
+                Err(d) => diags.push(d),
+            }
+        }
+    }
+    diags.finish(RunReadings {
+        file: file.to_string(),
+        readings,
+    })
+}
+
+/// Checks that the readings cover the layout exactly: every point once, nothing else.
+pub fn match_to_layout(run: &RunReadings, layout: &Layout) -> Result<(), Error> {
+    let mut diags = Diagnostics::new();
+    let mut seen = vec![None::<usize>; layout.total_points()];
+    for r in &run.readings {
+        let idx = layout
+            .points()
+            .iter()
+            .position(|p| p.line == r.line && p.point == r.point);
+        match idx {
+            None => diags.push(
+                Diagnostic::new(format!(
+                    "reading for line {}, point {} does not belong to the layout ({} lines {} of {} points)",
+                    r.line,
+                    r.point,
+                    layout.lines(),
+                    layout.line_labels().join(", "),
+                    layout.points_per_line()
+                ))
+                .at(Location::at(&run.file, r.source_line, 1))
+                .hint("check [layout] lines / points_per_line in the survey, or the line label"),
+            ),
+            Some(i) => {
+                if let Some(first) = seen[i] {
+                    diags.push(
+                        Diagnostic::new(format!(
+                            "line {}, point {} is read twice (first on line {first})",
+                            r.line, r.point
+                        ))
+                        .at(Location::at(&run.file, r.source_line, 1))
+                        .hint("keep one reading per point; a re-read replaces the first in the field sheet, not in the file"),
+                    );
+                } else {
+                    seen[i] = Some(r.source_line);
+                }
+            }
+        }
+    }
+    for (i, s) in seen.iter().enumerate() {
+        if s.is_none() {
+            let p = &layout.points()[i];
+            diags.push(
+                Diagnostic::new(format!("line {}, point {} has no reading", p.line, p.point))
+                    .at(Location::file(&run.file))
+                    .hint("every traverse point needs a reading"),
+            );
+        }
+    }
+    diags.finish(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn err(text: &str) -> Diagnostics {
+        match parse_rows("run-2.csv", text) {
+            Err(Error::Input(d)) => d,
+            other => panic!("accepted: {other:?}"),
+        }
+    }
+
+    #[test]
+    fn parses_rows_to_si() {
+        let r = parse_rows(
+            "r.csv",
+            "line,point,dp[inH2O],temperature[F],yaw[deg]\nA,1,0.50,300,0\nA,2,0.55,302,5\n",
+        )
+        .unwrap();
+        assert_eq!(r.readings.len(), 2);
+        let Dp::Pressure { pa } = r.readings[1].dp else {
+            panic!()
+        };
+        assert!((pa - 0.55 * 249.08891).abs() < 1e-6);
+        assert_eq!(r.readings[1].yaw_deg, Some(5.0));
+        assert_eq!(r.readings[1].source_line, 3);
+        assert_eq!(r.readings[0].dp_decimals, 2);
+    }
+
+    #[test]
+    fn bad_cell_is_located_exactly() {
+        let d = err("line,point,dp[inH2O]\nA,1,0.5\nB,3,0.3l\n");
+        assert_eq!(d.len(), 1);
+        let text = d.items()[0].to_string();
+        assert_eq!(
+            text,
+            "error: differential pressure is not a number: `0.3l`\n --> run-2.csv:3:3 (line B, point 3, column `dp[inH2O]`)\n   = hint: use `.` as the decimal separator; put units in the header, not the cell"
+        );
+    }
+
+    #[test]
+    fn header_problems() {
+        let d = err("line,point,dp\nA,1,0.5\n");
+        assert!(d.items()[0].message.contains("needs a unit"));
+        let d = err("line,point,dp[inHg2]\nA,1,0.5\n");
+        assert!(d.items()[0].message.contains("inHg2"));
+        let d = err("line,pt,dp[Pa]\nA,1,0.5\n");
+        assert!(d.to_string().contains("unknown column `pt`"));
+        assert!(d.to_string().contains("no `point` column"));
+    }
+
+    #[test]
+    fn collects_all_bad_cells_and_never_drops_quietly() {
+        let d = err("line,point,dp[Pa],temperature[C]\nA,1,x,20\nA,two,5,20\nA,3,,20\nA,4,5,-300\n");
+        assert_eq!(d.len(), 4, "{d}");
+        assert!(d.to_string().contains("missing"));
+    }
+
+    #[test]
+    fn gauge_column_is_kept_as_a_column() {
+        let r = parse_rows("r.csv", "line,point,dp[in]\nA,1,0.5\n").unwrap();
+        assert!(matches!(r.readings[0].dp, Dp::Column { height_m } if (height_m - 0.0127).abs() < 1e-12));
+    }
+
+    #[test]
+    fn matrix_form() {
+        let r = parse_matrix("m.csv", "line,1,2,3\nA,0.1,0.2,0.3\nB,0.4,0.5,0.6\n", "dp[inH2O]").unwrap();
+        assert_eq!(r.readings.len(), 6);
+        assert_eq!((r.readings[4].line.as_str(), r.readings[4].point), ("B", 2));
+        assert!(parse_matrix("m.csv", "line,1\nA,0.1\n", "temperature[F]").is_err());
+    }
+
+    #[test]
+    fn layout_matching_reports_missing_extra_and_duplicates() {
+        use crate::geometry::Duct;
+        use crate::layout::{locate_points, LayoutSpec, Method};
+        let mut spec = LayoutSpec::new(Method::EqualArea);
+        spec.lines = Some(1);
+        spec.points_per_line = Some(2);
+        let l = locate_points(&Duct::round(1.0).unwrap(), &spec).unwrap();
+        let r = parse_rows("r.csv", "line,point,dp[Pa]\nA,1,5\nA,1,6\nB,1,5\n").unwrap();
+        let Err(Error::Input(d)) = match_to_layout(&r, &l) else {
+            panic!()
+        };
+        let s = d.to_string();
+        assert!(s.contains("read twice"), "{s}");
+        assert!(s.contains("does not belong"), "{s}");
+        assert!(s.contains("point 2 has no reading"), "{s}");
+        let ok = parse_rows("r.csv", "line,point,dp[Pa]\nA,2,5\nA,1,6\n").unwrap();
+        assert!(match_to_layout(&ok, &l).is_ok());
+    }
+}

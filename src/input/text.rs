@@ -1,0 +1,35 @@
+//! Byte offsets to 1-based line and column, the one place positions are converted.
+
+use crate::diag::Location;
+
+pub use toml::Spanned;
+
+/// The 1-based line and column (in characters) of byte `offset` in `text`.
+pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
+    let offset = offset.min(text.len());
+    let before = &text[..text.floor_char_boundary(offset)];
+    let line = before.matches('\n').count() + 1;
+    let line_start = before.rfind('\n').map(|i| i + 1).unwrap_or(0);
+    let column = before[line_start..].chars().count() + 1;
+    (line, column)
+}
+
+/// A location for byte `offset` of `text` in `file`.
+pub fn span_location(file: &str, text: &str, offset: usize) -> Location {
+    let (l, c) = line_column(text, offset);
+    Location::at(file, l, c)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn positions_are_one_based() {
+        let t = "ab\ncdé\nf";
+        assert_eq!(line_column(t, 0), (1, 1));
+        assert_eq!(line_column(t, 3), (2, 1));
+        assert_eq!(line_column(t, 7), (2, 4)); // after the two-byte é
+        assert_eq!(line_column(t, 999), (3, 2));
+    }
+}

@@ -1,0 +1,37 @@
+//! Point readings of one run, validated and in SI. Built by `input::readings`; no file handling.
+
+use serde::Serialize;
+
+/// A differential-pressure reading as recorded.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Dp {
+    /// A pressure, Pa (signed: negative readings are kept).
+    Pressure { pa: f64 },
+    /// A gauge-fluid column, m; converted with the survey's gauge-fluid specific gravity.
+    Column { height_m: f64 },
+}
+
+/// One point reading.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Reading {
+    pub line: String,
+    pub point: usize,
+    pub dp: Dp,
+    /// Decimal places the Δp was written with (resolution of the record).
+    pub dp_decimals: usize,
+    pub temperature_k: Option<f64>,
+    pub yaw_deg: Option<f64>,
+    pub pitch_deg: Option<f64>,
+    pub static_pa: Option<f64>,
+    pub time: Option<String>,
+    /// 1-based line of the readings file the value came from.
+    pub source_line: usize,
+}
+
+/// All readings of one run, in file order.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RunReadings {
+    pub file: String,
+    pub readings: Vec<Reading>,
+}

@@ -1,0 +1,256 @@
+//! The validated survey: everything about a measurement plane and its runs, in SI, with no file
+//! handling. `input::survey` builds it from the TOML file; the calculation modules read it.
+//!
+//! A `Survey` that exists has a valid duct, layout request, probe and gas description; its readings
+//! are attached per run by `input::readings` and checked against the layout there.
+
+use crate::geometry::Duct;
+use crate::layout::Method;
+use chrono::NaiveDate;
+use serde::Serialize;
+
+/// The rule book results are computed under.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum ConventionId {
+    EpaMethod2,
+    Iso16911,
+    HvacIp,
+    HvacSi,
+}
+
+impl ConventionId {
+    pub const ALL: [ConventionId; 4] = [
+        ConventionId::EpaMethod2,
+        ConventionId::Iso16911,
+        ConventionId::HvacIp,
+        ConventionId::HvacSi,
+    ];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            ConventionId::EpaMethod2 => "epa-method-2",
+            ConventionId::Iso16911 => "iso-16911",
+            ConventionId::HvacIp => "hvac-ip",
+            ConventionId::HvacSi => "hvac-si",
+        }
+    }
+
+    pub fn parse(text: &str) -> Option<ConventionId> {
+        ConventionId::ALL.into_iter().find(|c| c.name() == text.trim())
+    }
+
+    pub fn is_hvac(self) -> bool {
+        matches!(self, ConventionId::HvacIp | ConventionId::HvacSi)
+    }
+
+    /// Results print in US units under EPA Method 2 and hvac-ip, SI otherwise.
+    pub fn unit_system(self) -> crate::units::UnitSystem {
+        match self {
+            ConventionId::EpaMethod2 | ConventionId::HvacIp => crate::units::UnitSystem::Us,
+            _ => crate::units::UnitSystem::Si,
+        }
+    }
+}
+
+/// Duct wall material, for the Method 2H default wall-effects factor.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Construction {
+    Steel,
+    Brick,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum ProbeKind {
+    SType,
+    Standard,
+}
+
+/// The pitot tube used.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Probe {
+    pub kind: ProbeKind,
+    pub coefficient: f64,
+    pub serial: Option<String>,
+    pub calibrated: Option<NaiveDate>,
+    /// Specific gravity of the gauge fluid when Δp is read as a liquid column (`dp[in]`, `dp[mm]`).
+    pub gauge_fluid_sg: Option<f64>,
+}
+
+/// The dry gas: a composition, a given molar mass, or air.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum DryGas {
+    /// Dry-basis fractions (0..1); N2 is the balance.
+    Composition {
+        o2: f64,
+        co2: f64,
+        co: f64,
+        ar: Option<f64>,
+    },
+    /// A given dry molar mass, g/mol.
+    MolarMass { g_mol: f64 },
+    /// Dry air (HVAC).
+    Air,
+}
+
+/// EPA Method 4 train data, SI.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Method4Data {
+    pub impinger_gain_m3: f64,
+    pub silica_gain_kg: f64,
+    pub meter_volume_m3: f64,
+    pub meter_y: f64,
+    pub meter_pressure_pa: f64,
+    pub meter_temperature_k: f64,
+}
+
+/// How the water vapour content is given.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Moisture {
+    /// Water vapour mole fraction Bws (0..1).
+    Fraction { bws: f64 },
+    Method4(Method4Data),
+    RelativeHumidity { rh: f64 },
+    WetBulb { temperature_k: f64 },
+    DewPoint { temperature_k: f64 },
+    Dry,
+}
+
+/// Gas state and composition for the plane.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Gas {
+    pub barometric_pa: f64,
+    /// Static (gauge) pressure in the duct; negative on induced-draught stacks.
+    pub static_pa: f64,
+    pub dry: DryGas,
+    pub moisture: Moisture,
+    /// Used for points whose readings have no temperature.
+    pub temperature_k: Option<f64>,
+}
+
+/// What to do with zero or negative Δp readings (flow reversal or turbulence).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum NegativePolicy {
+    /// Refuse to compute a run with negative readings (default).
+    Reject,
+    /// Count a negative reading as zero velocity.
+    Zero,
+    /// Signed velocity −C·√(2|Δp|/ρ) (HVAC diagnostics).
+    Signed,
+}
+
+/// Which measured flow angles correct the point velocities.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum AngleCorrection {
+    /// Angles are recorded only (e.g. the cyclonic-flow check).
+    None,
+    /// EPA Method 2G: axial velocity = v·cos(yaw).
+    Yaw,
+    /// EPA Method 2F: v·cos(yaw)·cos(pitch).
+    YawPitch,
+}
+
+/// Wall-effects adjustment (EPA Method 2H).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum WallFactor {
+    None,
+    /// Method 2H default by construction: 0.9900 brick, 0.9950 other.
+    Method2hDefault,
+    Given { factor: f64 },
+}
+
+/// Computation choices a survey can make.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FlowOptions {
+    pub negative: NegativePolicy,
+    pub angles: AngleCorrection,
+    pub wall_factor: WallFactor,
+}
+
+/// Reference conditions overriding the convention's.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct ReferenceOverride {
+    pub temperature_k: f64,
+    pub pressure_pa: f64,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum LeakResult {
+    Pass,
+    Fail,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
+pub struct LeakCheck {
+    pub before: Option<LeakResult>,
+    pub after: Option<LeakResult>,
+}
+
+/// How a readings file is laid out.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum ReadingsForm {
+    /// One row per point reading (`line,point,dp[…],…`).
+    Rows,
+    /// A row per line, a column per point, one quantity named by `header` (e.g. `dp[inH2O]`).
+    Matrix { header: String },
+}
+
+/// One run as the survey describes it; its readings are read separately.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RunSpec {
+    pub id: String,
+    /// Path as written in the survey (relative to the survey file).
+    pub readings: String,
+    pub form: ReadingsForm,
+    pub started: Option<String>,
+    pub leak_check: LeakCheck,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Default)]
+pub struct Signoff {
+    pub tested_by: Option<String>,
+    pub certificate: Option<String>,
+    pub reviewed_by: Option<String>,
+}
+
+/// The requested layout.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LayoutRequest {
+    pub method: Method,
+    pub lines: Option<usize>,
+    pub points_per_line: Option<usize>,
+}
+
+/// A validated survey.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Survey {
+    pub title: String,
+    pub site: Option<String>,
+    pub client: Option<String>,
+    pub plane: Option<String>,
+    pub date: NaiveDate,
+    pub convention: ConventionId,
+    pub reference: Option<ReferenceOverride>,
+    pub duct: Duct,
+    pub construction: Construction,
+    pub upstream_d: Option<f64>,
+    pub downstream_d: Option<f64>,
+    pub port_length_m: f64,
+    pub layout: LayoutRequest,
+    pub probe: Probe,
+    pub gas: Gas,
+    pub design_flow_m3_s: Option<f64>,
+    pub options: FlowOptions,
+    pub signoff: Signoff,
+    pub runs: Vec<RunSpec>,
+    pub notes: Vec<String>,
+}
