@@ -188,6 +188,7 @@ impl Table {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use std::f64::consts::FRAC_1_SQRT_2;
 
     #[test]
     fn every_shipped_row_is_valid() {
@@ -244,7 +245,7 @@ mod tests {
         let nodes: [&[f64]; 5] = [
             &[0.0],
             &[-0.5773503, 0.5773503],
-            &[-0.7071068, 0.0, 0.7071068],
+            &[-FRAC_1_SQRT_2, 0.0, FRAC_1_SQRT_2],
             &[-0.7946545, -0.1875925, 0.1875925, 0.7946545],
             &[-0.8324975, -0.3745414, 0.0, 0.3745414, 0.8324975],
         ];
@@ -267,7 +268,7 @@ mod tests {
     #[test]
     fn round_log_tchebycheff_matches_its_construction() {
         // Chebyshev equal-weight nodes on [-1, 1] for 2 and 3 nodes.
-        let nodes: [&[f64]; 2] = [&[-0.5773503, 0.5773503], &[-0.7071068, 0.0, 0.7071068]];
+        let nodes: [&[f64]; 2] = [&[-0.5773503, 0.5773503], &[-FRAC_1_SQRT_2, 0.0, FRAC_1_SQRT_2]];
         for row in ROUND_LOG_TCHEBYCHEFF.rows {
             let n = row.points / 2; // annuli per radius
             let rb = ((n as f64 - 1.0) / n as f64).sqrt();
