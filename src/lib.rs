@@ -24,10 +24,12 @@
 
 pub mod calibration;
 pub mod diag;
+pub mod flow;
 pub mod gas;
 pub mod geometry;
 pub mod input;
 pub mod layout;
+pub mod pipeline;
 pub mod plane;
 pub mod rata;
 pub mod readings;

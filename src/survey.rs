@@ -37,7 +37,9 @@ impl ConventionId {
     }
 
     pub fn parse(text: &str) -> Option<ConventionId> {
-        ConventionId::ALL.into_iter().find(|c| c.name() == text.trim())
+        ConventionId::ALL
+            .into_iter()
+            .find(|c| c.name() == text.trim())
     }
 
     pub fn is_hvac(self) -> bool {
@@ -112,11 +114,19 @@ pub struct Method4Data {
 #[serde(tag = "kind", rename_all = "kebab-case")]
 pub enum Moisture {
     /// Water vapour mole fraction Bws (0..1).
-    Fraction { bws: f64 },
+    Fraction {
+        bws: f64,
+    },
     Method4(Method4Data),
-    RelativeHumidity { rh: f64 },
-    WetBulb { temperature_k: f64 },
-    DewPoint { temperature_k: f64 },
+    RelativeHumidity {
+        rh: f64,
+    },
+    WetBulb {
+        temperature_k: f64,
+    },
+    DewPoint {
+        temperature_k: f64,
+    },
     Dry,
 }
 
@@ -163,12 +173,16 @@ pub enum WallFactor {
     None,
     /// Method 2H default by construction: 0.9900 brick, 0.9950 other.
     Method2hDefault,
-    Given { factor: f64 },
+    Given {
+        factor: f64,
+    },
 }
 
 /// Computation choices a survey can make.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FlowOptions {
+    /// EPA Method 2 reduced in metric units (eq. 2-9 with 34.97) instead of English (85.49).
+    pub epa_metric: bool,
     pub negative: NegativePolicy,
     pub angles: AngleCorrection,
     pub wall_factor: WallFactor,

@@ -30,7 +30,18 @@ pub struct Loaded {
 
 /// Reads a file as UTF-8 text, with a located error.
 pub fn read_text(path: &Path, name: &str) -> Result<(Vec<u8>, String), Diagnostic> {
-    let bytes = std::fs::read(path).map_err(|e| {
+    read_text_with(path, name, &|p| std::fs::read(p))
+}
+
+/// Where file bytes come from: the file system, or memory in tests and when re-deriving a report.
+pub type FileSource<'a> = &'a dyn Fn(&Path) -> std::io::Result<Vec<u8>>;
+
+fn read_text_with(
+    path: &Path,
+    name: &str,
+    source: FileSource,
+) -> Result<(Vec<u8>, String), Diagnostic> {
+    let bytes = source(path).map_err(|e| {
         Diagnostic::new(format!("cannot read `{name}`: {e}"))
             .at(Location::file(name))
             .hint("check the path; readings paths in a survey are relative to the survey file")
@@ -45,14 +56,22 @@ pub fn read_text(path: &Path, name: &str) -> Result<(Vec<u8>, String), Diagnosti
             .hint("save the file as UTF-8 (CSV UTF-8 in spreadsheet programs)")
     })?;
     // A spreadsheet's byte-order mark is not part of the first header.
-    let text = text.strip_prefix('\u{feff}').map(str::to_string).unwrap_or(text);
+    let text = text
+        .strip_prefix('\u{feff}')
+        .map(str::to_string)
+        .unwrap_or(text);
     Ok((bytes, text))
 }
 
 /// Reads and validates a survey and all its readings files; reports every problem found.
 pub fn load(path: &Path) -> Result<Loaded, Error> {
+    load_with(path, &|p| std::fs::read(p))
+}
+
+/// [`load`] with the bytes of each file supplied by `source`.
+pub fn load_with(path: &Path, source: FileSource) -> Result<Loaded, Error> {
     let name = path.display().to_string();
-    let (bytes, text) = read_text(path, &name)?;
+    let (bytes, text) = read_text_with(path, &name, source)?;
     let survey = survey::parse_survey(&name, &text)?;
     let dir = path.parent().unwrap_or(Path::new("."));
     let mut diags = Diagnostics::new();
@@ -60,7 +79,7 @@ pub fn load(path: &Path) -> Result<Loaded, Error> {
     for run in &survey.runs {
         let rpath = dir.join(&run.readings);
         let rname = rpath.display().to_string();
-        let (rbytes, rtext) = match read_text(&rpath, &rname) {
+        let (rbytes, rtext) = match read_text_with(&rpath, &rname, source) {
             Ok(x) => x,
             Err(d) => {
                 diags.push(d);

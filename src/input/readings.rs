@@ -132,7 +132,9 @@ fn to_dp(unit: &Unit, v: f64) -> Dp {
         Dimension::Length => Dp::Column {
             height_m: v * unit.factor,
         },
-        _ => Dp::Pressure { pa: v * unit.factor },
+        _ => Dp::Pressure {
+            pa: v * unit.factor,
+        },
     }
 }
 
@@ -161,8 +163,11 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                     std::mem::discriminant(x) == std::mem::discriminant(&c)
                 }) {
                     diags.push(
-                        Diagnostic::new(format!("column `{h}` appears twice"))
-                            .at(Location::at(file, 1, i + 1)),
+                        Diagnostic::new(format!("column `{h}` appears twice")).at(Location::at(
+                            file,
+                            1,
+                            i + 1,
+                        )),
                     );
                 }
                 cols.push((i, c));
@@ -223,8 +228,12 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
             continue;
         }
         let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
-        let line_label = get(Col::Line).map(|i| rec[i].to_string()).unwrap_or_default();
-        let point_raw = get(Col::Point).map(|i| rec[i].to_string()).unwrap_or_default();
+        let line_label = get(Col::Line)
+            .map(|i| rec[i].to_string())
+            .unwrap_or_default();
+        let point_raw = get(Col::Point)
+            .map(|i| rec[i].to_string())
+            .unwrap_or_default();
         let who = format!("line {line_label}, point {point_raw}, ");
         let mut r = Reading {
             line: line_label.clone(),
@@ -251,7 +260,10 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
             let res: Result<(), Diagnostic> = match col {
                 Col::Line => {
                     if raw.is_empty() {
-                        Err(cell.error("the line label is empty".into(), "label lines A, B, C … in port order"))
+                        Err(cell.error(
+                            "the line label is empty".into(),
+                            "label lines A, B, C … in port order",
+                        ))
                     } else {
                         Ok(())
                     }
@@ -279,8 +291,8 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                         })
                     }
                 }
-                Col::Temperature(unit) if !raw.is_empty() => {
-                    number(&cell, raw, "temperature").and_then(|v| {
+                Col::Temperature(unit) if !raw.is_empty() => number(&cell, raw, "temperature")
+                    .and_then(|v| {
                         let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
                         if k > 0.0 {
                             r.temperature_k = Some(k);
@@ -291,10 +303,9 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                                 "check the unit in the header",
                             ))
                         }
-                    })
-                }
-                Col::Yaw | Col::Pitch if !raw.is_empty() => {
-                    number(&cell, raw, "flow angle").and_then(|v| {
+                    }),
+                Col::Yaw | Col::Pitch if !raw.is_empty() => number(&cell, raw, "flow angle")
+                    .and_then(|v| {
                         if (-90.0..=90.0).contains(&v) {
                             if *col == Col::Yaw {
                                 r.yaw_deg = Some(v);
@@ -308,8 +319,7 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                                 "record the null angle of the probe from the axial direction",
                             ))
                         }
-                    })
-                }
+                    }),
                 Col::Static(unit) if !raw.is_empty() => number(&cell, raw, "static pressure")
                     .map(|v| r.static_pa = Some(v * unit.factor)),
                 Col::Time if !raw.is_empty() => {
@@ -347,9 +357,11 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
         Ok(Col::Dp(u)) => u,
         _ => {
             return Err(Error::input(
-                Diagnostic::new(format!("a matrix readings file holds Δp; `{header}` is not a dp column"))
-                    .at(Location::file(file))
-                    .hint("write matrix = \"dp[inH2O]\" (or another pressure unit) in the [[run]]"),
+                Diagnostic::new(format!(
+                    "a matrix readings file holds Δp; `{header}` is not a dp column"
+                ))
+                .at(Location::file(file))
+                .hint("write matrix = \"dp[inH2O]\" (or another pressure unit) in the [[run]]"),
             ))
         }
     };
@@ -393,7 +405,9 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
         let rec = match rec {
             Ok(r) => r,
             Err(e) => {
-                diags.push(Diagnostic::new(format!("unreadable CSV row: {e}")).at(Location::file(file)));
+                diags.push(
+                    Diagnostic::new(format!("unreadable CSV row: {e}")).at(Location::file(file)),
+                );
                 continue;
             }
         };
@@ -545,7 +559,8 @@ mod tests {
 
     #[test]
     fn collects_all_bad_cells_and_never_drops_quietly() {
-        let d = err("line,point,dp[Pa],temperature[C]\nA,1,x,20\nA,two,5,20\nA,3,,20\nA,4,5,-300\n");
+        let d =
+            err("line,point,dp[Pa],temperature[C]\nA,1,x,20\nA,two,5,20\nA,3,,20\nA,4,5,-300\n");
         assert_eq!(d.len(), 4, "{d}");
         assert!(d.to_string().contains("missing"));
     }
@@ -553,12 +568,19 @@ mod tests {
     #[test]
     fn gauge_column_is_kept_as_a_column() {
         let r = parse_rows("r.csv", "line,point,dp[in]\nA,1,0.5\n").unwrap();
-        assert!(matches!(r.readings[0].dp, Dp::Column { height_m } if (height_m - 0.0127).abs() < 1e-12));
+        assert!(
+            matches!(r.readings[0].dp, Dp::Column { height_m } if (height_m - 0.0127).abs() < 1e-12)
+        );
     }
 
     #[test]
     fn matrix_form() {
-        let r = parse_matrix("m.csv", "line,1,2,3\nA,0.1,0.2,0.3\nB,0.4,0.5,0.6\n", "dp[inH2O]").unwrap();
+        let r = parse_matrix(
+            "m.csv",
+            "line,1,2,3\nA,0.1,0.2,0.3\nB,0.4,0.5,0.6\n",
+            "dp[inH2O]",
+        )
+        .unwrap();
         assert_eq!(r.readings.len(), 6);
         assert_eq!((r.readings[4].line.as_str(), r.readings[4].point), ("B", 2));
         assert!(parse_matrix("m.csv", "line,1\nA,0.1\n", "temperature[F]").is_err());

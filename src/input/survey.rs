@@ -127,6 +127,7 @@ struct RawDesign {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawFlow {
+    epa_units: Option<S>,
     negative: Option<S>,
     angles: Option<S>,
     wall_factor: Option<Spanned<toml::Value>>,
@@ -169,7 +170,13 @@ impl Ctx<'_> {
         span_location(self.file, self.text, span.start).with_context(format!("`{key}`"))
     }
 
-    fn error(&mut self, span: std::ops::Range<usize>, key: &str, msg: String, hint: Option<String>) {
+    fn error(
+        &mut self,
+        span: std::ops::Range<usize>,
+        key: &str,
+        msg: String,
+        hint: Option<String>,
+    ) {
         let mut d = Diagnostic::new(msg).at(self.loc(span, key));
         if let Some(h) = hint {
             d = d.hint(h);
@@ -199,7 +206,10 @@ impl Ctx<'_> {
             self.error(
                 v.span(),
                 key,
-                format!("`{key}` must be between 0 and 100 %, found `{}`", v.get_ref()),
+                format!(
+                    "`{key}` must be between 0 and 100 %, found `{}`",
+                    v.get_ref()
+                ),
                 None,
             );
             None
@@ -217,7 +227,10 @@ impl Ctx<'_> {
         self.error(
             v.span(),
             key,
-            format!("`{key}` must be one of {}, found `{found}`", names.join(" | ")),
+            format!(
+                "`{key}` must be one of {}, found `{found}`",
+                names.join(" | ")
+            ),
             None,
         );
         None
@@ -268,9 +281,12 @@ pub fn parse_survey(file: &str, text: &str) -> Result<Survey, Error> {
             None => Location::file(file),
         };
         Error::input(
-            Diagnostic::new(format!("the survey file is not valid: {}", e.message().trim()))
-                .at(loc)
-                .hint("see the survey format in the README (sample-data/ has complete examples)"),
+            Diagnostic::new(format!(
+                "the survey file is not valid: {}",
+                e.message().trim()
+            ))
+            .at(loc)
+            .hint("see the survey format in the README (sample-data/ has complete examples)"),
         )
     })?;
     let mut cx = Ctx {
@@ -300,8 +316,16 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         &ConventionId::ALL.map(|c| (c.name(), c)),
     );
     let reference = m.reference.as_ref().and_then(|r| {
-        let t = cx.quantity(&r.temperature, "survey.reference.temperature", Dimension::Temperature);
-        let p = cx.quantity(&r.pressure, "survey.reference.pressure", Dimension::Pressure);
+        let t = cx.quantity(
+            &r.temperature,
+            "survey.reference.temperature",
+            Dimension::Temperature,
+        );
+        let p = cx.quantity(
+            &r.pressure,
+            "survey.reference.pressure",
+            Dimension::Pressure,
+        );
         Some(ReferenceOverride {
             temperature_k: t?,
             pressure_pa: p?,
@@ -309,17 +333,23 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
     });
 
     let d = &raw.duct;
-    let shape = cx.choice(&d.shape, "duct.shape", &[("round", true), ("rectangular", false)]);
+    let shape = cx.choice(
+        &d.shape,
+        "duct.shape",
+        &[("round", true), ("rectangular", false)],
+    );
     let liner = cx
         .opt_quantity(&d.liner, "duct.liner", Dimension::Length)
         .unwrap_or(0.0);
     let duct = match shape {
         Some(true) => match &d.diameter {
-            Some(v) => cx.quantity(v, "duct.diameter", Dimension::Length).and_then(|dm| {
-                Duct::round_lined(dm, liner)
-                    .map_err(|e| cx.error(v.span(), "duct.diameter", e.to_string(), None))
-                    .ok()
-            }),
+            Some(v) => cx
+                .quantity(v, "duct.diameter", Dimension::Length)
+                .and_then(|dm| {
+                    Duct::round_lined(dm, liner)
+                        .map_err(|e| cx.error(v.span(), "duct.diameter", e.to_string(), None))
+                        .ok()
+                }),
             None => {
                 cx.error(
                     d.shape.span(),
@@ -357,7 +387,10 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         Some(v) => cx.choice(
             v,
             "duct.construction",
-            &[("steel", Construction::Steel), ("brick", Construction::Brick)],
+            &[
+                ("steel", Construction::Steel),
+                ("brick", Construction::Brick),
+            ],
         ),
         None => Some(Construction::Steel),
     };
@@ -399,7 +432,10 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
     let kind = cx.choice(
         &p.kind,
         "probe.kind",
-        &[("s-type", ProbeKind::SType), ("standard", ProbeKind::Standard)],
+        &[
+            ("s-type", ProbeKind::SType),
+            ("standard", ProbeKind::Standard),
+        ],
     );
     let coefficient = *p.coefficient.get_ref();
     if !(coefficient > 0.5 && coefficient <= 1.05) {
@@ -436,8 +472,13 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
             cx.error(
                 g.barometric.span(),
                 "gas.barometric",
-                format!("barometric pressure `{}` is outside 50 to 120 kPa", g.barometric.get_ref()),
-                Some("barometric pressure is absolute, e.g. \"29.62 inHg\" or \"100.3 kPa\"".into()),
+                format!(
+                    "barometric pressure `{}` is outside 50 to 120 kPa",
+                    g.barometric.get_ref()
+                ),
+                Some(
+                    "barometric pressure is absolute, e.g. \"29.62 inHg\" or \"100.3 kPa\"".into(),
+                ),
             );
         }
     }
@@ -472,7 +513,10 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         cx.error(
             g.barometric.span(),
             "gas",
-            format!("[gas] gives moisture more than one way: {}", given.join(", ")),
+            format!(
+                "[gas] gives moisture more than one way: {}",
+                given.join(", ")
+            ),
             Some("keep one of moisture, method4, rh, wet_bulb or dew_point".into()),
         );
     }
@@ -481,10 +525,30 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
             .map(|bws| Moisture::Fraction { bws })
     } else if let Some(m4) = &g.method4 {
         let q = |cx: &mut Ctx, v: &S, k: &str, dim| cx.quantity(v, k, dim);
-        let a = q(cx, &m4.impinger_gain, "gas.method4.impinger_gain", Dimension::Volume);
-        let b = q(cx, &m4.silica_gain, "gas.method4.silica_gain", Dimension::Mass);
-        let c = q(cx, &m4.meter_volume, "gas.method4.meter_volume", Dimension::Volume);
-        let d = q(cx, &m4.meter_pressure, "gas.method4.meter_pressure", Dimension::Pressure);
+        let a = q(
+            cx,
+            &m4.impinger_gain,
+            "gas.method4.impinger_gain",
+            Dimension::Volume,
+        );
+        let b = q(
+            cx,
+            &m4.silica_gain,
+            "gas.method4.silica_gain",
+            Dimension::Mass,
+        );
+        let c = q(
+            cx,
+            &m4.meter_volume,
+            "gas.method4.meter_volume",
+            Dimension::Volume,
+        );
+        let d = q(
+            cx,
+            &m4.meter_pressure,
+            "gas.method4.meter_pressure",
+            Dimension::Pressure,
+        );
         let e = q(
             cx,
             &m4.meter_temperature,
@@ -569,7 +633,12 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
                 }
             },
         };
+        let epa_metric = match f.and_then(|f| f.epa_units.as_ref()) {
+            Some(v) => cx.choice(v, "flow.epa_units", &[("english", false), ("metric", true)]),
+            None => Some(false),
+        };
         FlowOptions {
+            epa_metric: epa_metric?,
             negative: negative?,
             angles: angles?,
             wall_factor: wall_factor?,
@@ -591,11 +660,20 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
             other => other.to_string(),
         };
         if runs.iter().any(|x: &RunSpec| x.id == id) {
-            cx.error(r.id.span(), "run.id", format!("run id `{id}` is used twice"), None);
+            cx.error(
+                r.id.span(),
+                "run.id",
+                format!("run id `{id}` is used twice"),
+                None,
+            );
         }
         let leak = |cx: &mut Ctx, v: &Option<S>, k: &str| {
             v.as_ref().and_then(|v| {
-                cx.choice(v, k, &[("pass", LeakResult::Pass), ("fail", LeakResult::Fail)])
+                cx.choice(
+                    v,
+                    k,
+                    &[("pass", LeakResult::Pass), ("fail", LeakResult::Fail)],
+                )
             })
         };
         let leak_check = match &r.leak_check {
@@ -715,7 +793,9 @@ leak_check = { before = "pass", after = "pass" }
         assert!((s.duct.line_length_m() - 96.0 * 0.0254).abs() < 1e-12);
         assert!((s.upstream_d.unwrap() - 6.2).abs() < 1e-12);
         assert!((s.port_length_m - 0.127).abs() < 1e-12);
-        assert!(matches!(s.gas.moisture, Moisture::Fraction { bws } if (bws - 0.098).abs() < 1e-12));
+        assert!(
+            matches!(s.gas.moisture, Moisture::Fraction { bws } if (bws - 0.098).abs() < 1e-12)
+        );
         assert_eq!(s.runs[0].leak_check.after, Some(LeakResult::Pass));
         assert_eq!(s.layout.points_per_line, Some(12));
     }

@@ -1,0 +1,130 @@
+//! The pipeline from a loaded survey to results: plane → match readings → compute each run →
+//! average. Checks and uncertainty join here as their stages land. No printing; no clock.
+
+use crate::diag::{Diagnostic, Diagnostics, Error, Location};
+use crate::flow::{self, average_runs, Average, Convention, EpaForm, FlowError, RunResult};
+use crate::input::{readings::match_to_layout, Loaded};
+use crate::plane::{lay_out, Plane};
+use crate::survey::WallFactor;
+
+/// Everything computed from one survey.
+#[derive(Debug, Clone)]
+pub struct Evaluation {
+    pub loaded: Loaded,
+    pub convention: Convention,
+    pub plane: Plane,
+    pub runs: Vec<RunResult>,
+    /// Runs included in the average (ids), in order.
+    pub average: Option<Average>,
+}
+
+fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
+    match e {
+        FlowError::Reading {
+            line,
+            point,
+            source_line,
+            message,
+            hint,
+        } => {
+            let loc = if source_line > 0 {
+                Location::at(file, source_line, 1)
+            } else {
+                Location::file(file)
+            };
+            Diagnostic::new(format!("line {line}, point {point} {message}"))
+                .at(loc.with_context(format!("line {line}, point {point}")))
+                .hint(hint)
+        }
+        FlowError::Gas { message, hint } => {
+            let d = Diagnostic::new(format!("the gas cannot be resolved: {message}"))
+                .at(Location::file(file));
+            if hint.is_empty() {
+                d
+            } else {
+                d.hint(hint)
+            }
+        }
+    }
+}
+
+/// Runs the calculation pipeline on a loaded survey, reporting every input problem found.
+pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
+    let s = &loaded.survey;
+    let survey_name = loaded.survey_file.name.clone();
+    let convention = Convention::new(
+        s.convention,
+        if s.options.epa_metric {
+            EpaForm::Metric
+        } else {
+            EpaForm::English
+        },
+        s.reference,
+    );
+    let plane = lay_out(
+        &s.duct,
+        &s.layout,
+        s.convention,
+        s.upstream_d,
+        s.downstream_d,
+    )
+    .map_err(|e| {
+        Error::input(
+            Diagnostic::new(format!("the survey's layout cannot be made: {e}"))
+                .at(Location::file(&survey_name).with_context("[layout]"))
+                .hint("check [layout] method, lines and points_per_line against the duct shape"),
+        )
+    })?;
+    if matches!(s.options.wall_factor, WallFactor::Method2hDefault) && !s.duct.is_round() {
+        return Err(Error::input(
+            Diagnostic::new("the Method 2H default wall factor applies to circular stacks only")
+                .at(Location::file(&survey_name).with_context("[flow] wall_factor"))
+                .hint("remove wall_factor or give a measured factor"),
+        ));
+    }
+    let mut diags = Diagnostics::new();
+    let mut runs = Vec::new();
+    for (spec, (file, readings)) in s.runs.iter().zip(&loaded.runs) {
+        if let Err(Error::Input(d)) = match_to_layout(readings, &plane.layout) {
+            diags.extend(d);
+            continue;
+        }
+        match flow::compute_run(s, &convention, &plane.layout, &spec.id, readings) {
+            Ok(r) => runs.push(r),
+            Err(e) => diags.push(flow_diag(e, &readings.file)),
+        }
+        let _ = file;
+    }
+    if !diags.is_empty() {
+        return Err(Error::Input(diags));
+    }
+    let included: Vec<&RunResult> = runs
+        .iter()
+        .zip(&s.runs)
+        .filter(|(_, spec)| run_is_valid(spec, s.convention))
+        .map(|(r, _)| r)
+        .collect();
+    let average = average_runs(&included, s.design_flow_m3_s);
+    Ok(Evaluation {
+        convention,
+        plane,
+        average,
+        runs,
+        loaded,
+    })
+}
+
+/// A run counts toward the average unless its post-run leak check failed, or (for stack
+/// conventions, where Method 2 §8.1 requires it) was not recorded: a failed post-test leak check
+/// voids the run (methods.md §4). HVAC traverses do not record pitot leak checks.
+pub fn run_is_valid(
+    spec: &crate::survey::RunSpec,
+    convention: crate::survey::ConventionId,
+) -> bool {
+    use crate::survey::LeakResult;
+    match spec.leak_check.after {
+        Some(LeakResult::Pass) => spec.leak_check.before != Some(LeakResult::Fail),
+        Some(LeakResult::Fail) => false,
+        None => convention.is_hvac(),
+    }
+}
