@@ -22,7 +22,10 @@
 // on paths that end the command.
 #![allow(clippy::result_large_err)]
 
+pub mod assess;
 pub mod calibration;
+pub mod checks;
+pub mod cli;
 pub mod diag;
 pub mod flow;
 pub mod gas;
@@ -34,6 +37,7 @@ pub mod plane;
 pub mod rata;
 pub mod readings;
 pub mod report;
+pub mod results;
 pub mod survey;
 pub mod uncertainty;
 pub mod units;

@@ -5,8 +5,7 @@
 
 use crate::geometry::Duct;
 use crate::layout::{
-    advise, advisor::TraverseKind, locate_points, Advice, Layout, LayoutError, LayoutSpec,
-    WallRule,
+    advise, advisor::TraverseKind, locate_points, Advice, Layout, LayoutError, LayoutSpec, WallRule,
 };
 use crate::survey::{ConventionId, LayoutRequest};
 
@@ -42,6 +41,13 @@ pub fn lay_out(
     };
     let layout = locate_points(duct, &spec)?;
     let required_points = match convention {
+        // ASHRAE 111 log-Tchebycheff grids: at least 25 points (methods.md §2.2); the spacing
+        // rule in the advice is for equal-area grids.
+        ConventionId::HvacIp | ConventionId::HvacSi
+            if !duct.is_round() && request.method == crate::layout::Method::LogTchebycheff =>
+        {
+            Some(25)
+        }
         ConventionId::HvacIp | ConventionId::HvacSi => advice.hvac.minimum_points,
         _ => required,
     };

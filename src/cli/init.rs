@@ -1,0 +1,225 @@
+//! `annulus init`: a new survey file and blank readings sheets, in layout order, ready to fill.
+
+use super::layout::plane_for;
+use super::output::Ctx;
+use super::plane_args::{PlaneArgs, PlaneSetting};
+use crate::diag::{Diagnostic, Error, Location};
+use crate::geometry::Shape;
+use crate::plane::Plane;
+use crate::survey::ConventionId;
+use clap::Args;
+use std::path::{Path, PathBuf};
+
+#[derive(Debug, Args)]
+pub struct InitArgs {
+    /// Folder to write into (created if missing).
+    #[arg(default_value = ".")]
+    pub dir: PathBuf,
+    #[command(flatten)]
+    pub plane: PlaneArgs,
+    /// Number of runs (one blank readings sheet each).
+    #[arg(long, default_value_t = 3)]
+    pub runs: usize,
+    /// Survey title.
+    #[arg(long)]
+    pub title: Option<String>,
+    /// Test date, YYYY-MM-DD (default: today).
+    #[arg(long)]
+    pub date: Option<String>,
+    /// Replace files that already exist.
+    #[arg(long)]
+    pub force: bool,
+}
+
+fn units(c: ConventionId) -> (&'static str, &'static str, &'static str, &'static str) {
+    // (dp unit, temperature unit, length unit, pressure unit for barometric)
+    match c {
+        ConventionId::EpaMethod2 | ConventionId::HvacIp => ("inH2O", "F", "in", "inHg"),
+        ConventionId::Iso16911 | ConventionId::HvacSi => ("Pa", "C", "mm", "kPa"),
+    }
+}
+
+fn fmt_len(v: f64, unit: &str) -> String {
+    let x = crate::units::to_unit(v, unit);
+    let s = format!("{x:.3}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    format!("{s} {unit}")
+}
+
+/// The survey text for a plane: every section present, values to fill left empty.
+pub fn survey_text(
+    s: &PlaneSetting,
+    plane: &Plane,
+    runs: usize,
+    title: &str,
+    date: &str,
+) -> String {
+    let (_, _, lu, pu) = units(s.convention);
+    let l = &plane.layout;
+    let duct = match l.duct().shape() {
+        Shape::Round { diameter_m } => {
+            format!("shape = \"round\"\ndiameter = \"{}\"          # inside diameter", fmt_len(diameter_m, lu))
+        }
+        Shape::Rectangular { width_m, height_m } => format!(
+            "shape = \"rectangular\"\nwidth = \"{}\"             # inside, the side with the ports\nheight = \"{}\"",
+            fmt_len(width_m, lu),
+            fmt_len(height_m, lu)
+        ),
+    };
+    let dist = |d: Option<f64>| d.map(|x| format!("{x:.1} D")).unwrap_or_default();
+    let stack = !s.convention.is_hvac();
+    let mut t = format!(
+        r#"# annulus survey: fill in the empty values, then `annulus compute` this file.
+# Quantities are strings with a unit ("29.92 inHg", "68 F", "8.1 %"); see the README.
+
+[survey]
+title = "{title}"
+site = ""
+client = ""
+plane = ""                       # where the measurement plane is
+date = "{date}"
+convention = "{conv}"
+
+[duct]
+{duct}
+construction = "steel"           # steel | brick
+upstream = "{up}"                # straight run from the upstream disturbance, e.g. "6.2 D"
+downstream = "{down}"            # straight run to the next disturbance or the exit
+port_length = "{port}"           # nipple + wall, added to the probe marks
+
+[layout]
+method = "{method}"
+lines = {lines}
+points_per_line = {ppl}
+
+[probe]
+kind = "{kind}"                  # s-type | standard
+coefficient = {cp}
+serial = ""
+calibrated = ""                  # YYYY-MM-DD of the probe's calibration
+
+[gas]
+barometric = ""                  # absolute, e.g. "29.62 {pu}"
+static = ""                      # duct static (gauge), e.g. "-0.85 inH2O"
+"#,
+        conv = s.convention.name(),
+        up = dist(s.upstream_d),
+        down = dist(s.downstream_d),
+        port = fmt_len(s.port_length_m, lu),
+        method = l.method(),
+        lines = l.lines(),
+        ppl = l.points_per_line(),
+        kind = if stack { "s-type" } else { "standard" },
+        cp = if stack { "0.84" } else { "0.99" },
+    );
+    if stack {
+        t += "o2 = \"\"                         # dry basis; N2 is the balance\nco2 = \"\"\nco = \"0 %\"\nmoisture = \"\"                   # water vapour by volume, e.g. \"9.8 %\"\n";
+    } else {
+        t += "rh = \"\"                         # or wet_bulb / dew_point; remove for dry air\n";
+    }
+    t += "\n[signoff]\ntested_by = \"\"\ncertificate = \"\"\nreviewed_by = \"\"\n";
+    for i in 1..=runs {
+        t += &format!(
+            "\n[[run]]\nid = \"{i}\"\nreadings = \"run{i}.csv\"\nstarted = \"\"                    # YYYY-MM-DDTHH:MM\n"
+        );
+        if stack {
+            t += "leak_check = { before = \"\", after = \"\" }   # pass | fail\n";
+        }
+    }
+    t
+}
+
+/// The blank readings sheet: one row per point, in layout order.
+pub fn readings_text(s: &PlaneSetting, plane: &Plane) -> String {
+    let (dpu, tu, _, _) = units(s.convention);
+    let yaw = !s.convention.is_hvac();
+    let mut t = format!(
+        "line,point,dp[{dpu}],temperature[{tu}]{}\n",
+        if yaw { ",yaw[deg]" } else { "" }
+    );
+    for p in plane.layout.points() {
+        t += &format!("{},{},,{}\n", p.line, p.point, if yaw { "," } else { "" });
+    }
+    t
+}
+
+fn write_new(path: &Path, text: &str, force: bool) -> Result<(), Error> {
+    if path.exists() && !force {
+        return Err(Error::input(
+            Diagnostic::new(format!("`{}` already exists", path.display()))
+                .at(Location::file(path.display().to_string()))
+                .hint("choose another folder, or pass --force to replace it"),
+        ));
+    }
+    crate::report::write::write_atomic(path, text.as_bytes())
+        .map_err(|e| Error::Environment(format!("cannot write `{}`: {e}", path.display())))
+}
+
+pub fn run(args: InitArgs, ctx: &Ctx) -> Result<i32, Error> {
+    if args.runs == 0 || args.runs > 50 {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "--runs {} is not a usable number of runs",
+                args.runs
+            ))
+            .hint("a stack test usually has 3 runs; an HVAC traverse 1"),
+        ));
+    }
+    let date = match &args.date {
+        Some(d) => match chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d") {
+            Ok(_) => d.clone(),
+            Err(_) => {
+                return Err(Error::input(
+                    Diagnostic::new(format!("--date is not a date: `{d}`"))
+                        .hint("write YYYY-MM-DD"),
+                ))
+            }
+        },
+        // The command line is the edge of the program: the only place that reads the clock.
+        None => chrono::Local::now()
+            .date_naive()
+            .format("%Y-%m-%d")
+            .to_string(),
+    };
+    let setting = args.plane.settle(None)?;
+    let plane = plane_for(&setting)?;
+    let title = args.title.clone().unwrap_or_else(|| "New traverse".into());
+    std::fs::create_dir_all(&args.dir)
+        .map_err(|e| Error::Environment(format!("cannot create `{}`: {e}", args.dir.display())))?;
+    let survey_path = args.dir.join("survey.toml");
+    let mut paths = vec![survey_path.clone()];
+    paths.extend((1..=args.runs).map(|i| args.dir.join(format!("run{i}.csv"))));
+    if !args.force {
+        if let Some(p) = paths.iter().find(|p| p.exists()) {
+            return Err(Error::input(
+                Diagnostic::new(format!("`{}` already exists", p.display()))
+                    .at(Location::file(p.display().to_string()))
+                    .hint("choose another folder, or pass --force to replace it"),
+            ));
+        }
+    }
+    write_new(
+        &survey_path,
+        &survey_text(&setting, &plane, args.runs, &title, &date),
+        args.force,
+    )?;
+    let sheet = readings_text(&setting, &plane);
+    for p in &paths[1..] {
+        write_new(p, &sheet, args.force)?;
+    }
+    if !ctx.quiet {
+        eprintln!(
+            "wrote {} and {} blank readings sheet{} ({} points each) in {}",
+            survey_path.display(),
+            args.runs,
+            if args.runs == 1 { "" } else { "s" },
+            plane.layout.total_points(),
+            args.dir.display()
+        );
+        eprintln!(
+            "next: fill in the empty values, then `annulus compute {}`",
+            survey_path.display()
+        );
+    }
+    Ok(0)
+}

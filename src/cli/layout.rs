@@ -1,0 +1,265 @@
+//! `annulus layout`: point positions, probe marks, and the count the rule books ask for.
+
+use super::output::{csv_text, json_text, Ctx, Format, Table};
+use super::plane_args::{PlaneArgs, PlaneSetting};
+use crate::diag::Error;
+use crate::geometry::Shape;
+use crate::layout::{probe_marks, Point, ProbeMark};
+use crate::plane::{lay_out, Plane};
+use crate::units::{format_in, Dimension};
+use clap::Args;
+use serde::Serialize;
+use std::path::PathBuf;
+
+#[derive(Debug, Args)]
+pub struct LayoutArgs {
+    /// A survey file to take the plane from (flags override its values).
+    pub survey: Option<PathBuf>,
+    #[command(flatten)]
+    pub plane: PlaneArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Also write the blank field data sheet as a PDF.
+    #[arg(long, value_name = "OUT.pdf")]
+    pub pdf: Option<PathBuf>,
+}
+
+#[derive(Serialize)]
+struct JsonPoint<'a> {
+    line: &'a str,
+    point: usize,
+    position_m: f64,
+    fraction: f64,
+    insertion_m: f64,
+    mark_m: f64,
+    weight: f64,
+    adjusted: bool,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    line_offset_m: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    line_angle_deg: Option<f64>,
+}
+
+#[derive(Serialize)]
+struct JsonLayout<'a> {
+    area_m2: f64,
+    method: &'a str,
+    source: &'a str,
+    convention: &'a str,
+    lines: usize,
+    points_per_line: usize,
+    required_points: Option<usize>,
+    wall_rule: Option<String>,
+    advice: &'a crate::layout::Advice,
+    points: Vec<JsonPoint<'a>>,
+}
+
+/// Loads a survey file for its plane only (readings are not needed to lay out).
+pub(crate) fn survey_only(path: &std::path::Path) -> Result<crate::survey::Survey, Error> {
+    let name = path.display().to_string();
+    let (_, text) = crate::input::read_text(path, &name)?;
+    crate::input::survey::parse_survey(&name, &text)
+}
+
+pub(crate) fn plane_for(setting: &PlaneSetting) -> Result<Plane, Error> {
+    lay_out(
+        &setting.duct,
+        &setting.request,
+        setting.convention,
+        setting.upstream_d,
+        setting.downstream_d,
+    )
+    .map_err(|e| {
+        Error::input(
+            crate::diag::Diagnostic::new(format!("cannot lay out this plane: {e}"))
+                .hint("see `annulus layout --help` for the counts each method takes"),
+        )
+    })
+}
+
+pub fn run(args: LayoutArgs, ctx: &Ctx) -> Result<i32, Error> {
+    let survey = match &args.survey {
+        Some(p) => Some((p.clone(), survey_only(p)?)),
+        None => None,
+    };
+    let setting = args.plane.settle(survey)?;
+    let plane = plane_for(&setting)?;
+    let marks = probe_marks(&plane.layout, setting.port_length_m, setting.mark_step);
+    let text = match args.format {
+        Format::Json => json_text(&json(&setting, &plane, &marks)),
+        Format::Csv => csv(&plane, &marks),
+        Format::Table => table(&setting, &plane, &marks, ctx),
+    };
+    super::emit(&text)?;
+    if let Some(out) = &args.pdf {
+        super::fieldsheet::write(out, &setting, &plane, &marks)?;
+        if !ctx.quiet {
+            eprintln!("wrote field data sheet {}", out.display());
+        }
+    }
+    Ok(0)
+}
+
+fn json<'a>(s: &'a PlaneSetting, plane: &'a Plane, marks: &'a [ProbeMark]) -> JsonLayout<'a> {
+    let l = &plane.layout;
+    JsonLayout {
+        area_m2: l.duct().area_m2(),
+        method: l.method().name(),
+        source: l.source(),
+        convention: s.convention.name(),
+        lines: l.lines(),
+        points_per_line: l.points_per_line(),
+        required_points: plane.required_points,
+        wall_rule: l
+            .wall_rule()
+            .map(|(r, m)| format!("{} ({:.4} m from the wall)", r.citation(), m)),
+        advice: &plane.advice,
+        points: l
+            .points()
+            .iter()
+            .zip(marks)
+            .map(|(p, m)| JsonPoint {
+                line: &p.line,
+                point: p.point,
+                position_m: p.position_m,
+                fraction: p.fraction,
+                insertion_m: m.insertion_m,
+                mark_m: m.mark_m,
+                weight: p.weight,
+                adjusted: p.adjusted,
+                line_offset_m: p.line_offset_m,
+                line_angle_deg: p.line_angle_deg,
+            })
+            .collect(),
+    }
+}
+
+fn csv(plane: &Plane, marks: &[ProbeMark]) -> String {
+    let rows: Vec<Vec<String>> = plane
+        .layout
+        .points()
+        .iter()
+        .zip(marks)
+        .map(|(p, m): (&Point, &ProbeMark)| {
+            vec![
+                p.line.clone(),
+                p.point.to_string(),
+                format!("{:.6}", p.position_m),
+                format!("{:.6}", p.fraction),
+                format!("{:.6}", m.insertion_m),
+                format!("{:.6}", m.mark_m),
+                format!("{}", p.weight),
+                p.adjusted.to_string(),
+            ]
+        })
+        .collect();
+    csv_text(
+        &[
+            "line",
+            "point",
+            "position[m]",
+            "fraction",
+            "insertion[m]",
+            "mark[m]",
+            "weight",
+            "adjusted",
+        ],
+        &rows,
+    )
+}
+
+fn table(s: &PlaneSetting, plane: &Plane, marks: &[ProbeMark], ctx: &Ctx) -> String {
+    let l = &plane.layout;
+    let sys = s.convention.unit_system();
+    let len_unit = sys.unit_for(Dimension::Length);
+    let dec = if len_unit == "in" { 2 } else { 0 };
+    let mut out = String::new();
+    let shape = match l.duct().shape() {
+        Shape::Round { diameter_m } => format!(
+            "round, {} inside diameter",
+            format_in(diameter_m, len_unit, dec)
+        ),
+        Shape::Rectangular { width_m, height_m } => format!(
+            "rectangular, {} wide (port side) × {} high",
+            format_in(width_m, len_unit, dec),
+            format_in(height_m, len_unit, dec)
+        ),
+    };
+    out += &format!("plane      {shape}\n");
+    out += &format!(
+        "area       {:.4} m² ({:.3} ft²)\n",
+        l.duct().area_m2(),
+        l.duct().area_m2() / (0.3048 * 0.3048)
+    );
+    out += &format!(
+        "method     {} — {} lines × {} points = {} ({})\n",
+        l.method(),
+        l.lines(),
+        l.points_per_line(),
+        l.total_points(),
+        l.source()
+    );
+    if let Some((rule, min)) = l.wall_rule() {
+        out += &format!(
+            "wall rule  {}: no point nearer the wall than {}\n",
+            rule.citation(),
+            format_in(min, len_unit, if len_unit == "in" { 2 } else { 1 })
+        );
+    }
+    let req = match plane.required_points {
+        Some(n) => format!("{n}"),
+        None => "not set by the rule book".into(),
+    };
+    out += &format!("required   {req} under {}\n", s.convention.name());
+    if !ctx.quiet {
+        for r in [
+            &plane.advice.epa_method_1,
+            &plane.advice.en_15259,
+            &plane.advice.hvac,
+        ] {
+            out += &format!("  {:<20} {}\n", r.framework, r.basis);
+        }
+    }
+    if let Some(n) = plane.required_points {
+        if l.total_points() < n {
+            out += &format!(
+                "warning: {} points chosen, {} required — add points or lines\n",
+                l.total_points(),
+                n
+            );
+        }
+    }
+    out.push('\n');
+    let mut t = Table::new(&[
+        "line",
+        "point",
+        "% of line",
+        &format!("from wall [{len_unit}]"),
+        &format!("mark [{len_unit}]"),
+        "note",
+    ])
+    .right(&[1, 2, 3, 4]);
+    for (p, m) in l.points().iter().zip(marks) {
+        let conv = |v: f64| crate::units::to_unit(v, len_unit);
+        let ldec = if len_unit == "in" { 3 } else { 1 };
+        let mdec = if len_unit == "in" { 3 } else { 0 };
+        t.row(vec![
+            p.line.clone(),
+            p.point.to_string(),
+            format!("{:.1}", p.fraction * 100.0),
+            format!("{:.ldec$}", conv(p.position_m)),
+            format!("{:.mdec$}", conv(m.mark_m)),
+            if p.adjusted {
+                "adjusted to the wall limit".into()
+            } else {
+                String::new()
+            },
+        ]);
+    }
+    out += &t.render();
+    if !ctx.quiet {
+        out += "\nMarks add the port length; measure from the outer end of the port nipple.\n";
+    }
+    out
+}

@@ -1,0 +1,223 @@
+//! The results document: what `compute --format json` prints, what the report embeds and what
+//! `verify` re-derives and compares. SI units, the unit in every key (see the contract).
+//!
+//! Also the convention's display units, so every presenter prints the same labels.
+
+use crate::flow::{Average, Convention, EpaForm, PointResult, RunResult};
+use crate::pipeline::{run_is_valid, Evaluation};
+use crate::survey::ConventionId;
+use serde::Serialize;
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Reference {
+    pub temperature_k: f64,
+    pub pressure_pa: f64,
+    pub dry: bool,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PointDoc {
+    pub line: String,
+    pub point: usize,
+    pub position_m: f64,
+    pub dp_pa: f64,
+    pub temperature_k: f64,
+    pub velocity_m_s: f64,
+    pub weight: f64,
+    pub adjusted: bool,
+    pub negative: bool,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub yaw_deg: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pitch_deg: Option<f64>,
+}
+
+impl From<&PointResult> for PointDoc {
+    fn from(p: &PointResult) -> Self {
+        PointDoc {
+            line: p.line.clone(),
+            point: p.point,
+            position_m: p.position_m,
+            dp_pa: p.dp_pa,
+            temperature_k: p.temperature_k,
+            velocity_m_s: p.velocity_m_s,
+            weight: p.weight,
+            adjusted: p.adjusted,
+            negative: p.negative,
+            yaw_deg: p.yaw_deg,
+            pitch_deg: p.pitch_deg,
+        }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RunDoc {
+    pub id: String,
+    /// Counts toward the average (post-run leak check passed, or not required).
+    pub valid: bool,
+    pub points: Vec<PointDoc>,
+    pub density_kg_m3: f64,
+    pub mean_temperature_k: f64,
+    pub absolute_pressure_pa: f64,
+    pub dry_molar_mass_g_mol: f64,
+    pub wet_molar_mass_g_mol: f64,
+    pub moisture_fraction: f64,
+    pub moisture_basis: String,
+    pub wall_factor: f64,
+    pub mean_velocity_m_s: f64,
+    pub actual_flow_m3_s: f64,
+    pub standard_flow_m3_s: f64,
+    pub dry_standard_flow_m3_s: f64,
+    pub mass_flow_kg_s: f64,
+    /// The velocity a √(mean Δp) average would have given (the classic error), for reviewers.
+    pub sqrt_of_mean_dp_velocity_m_s: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub percent_of_design: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub epa: Option<crate::flow::run::EpaFigures>,
+}
+
+/// The whole results document.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ResultsDoc {
+    pub program: String,
+    pub convention: String,
+    pub convention_notes: Vec<String>,
+    pub reference: Reference,
+    pub area_m2: f64,
+    pub layout_method: String,
+    pub points_per_run: usize,
+    pub required_points: Option<usize>,
+    pub negative_policy: crate::survey::NegativePolicy,
+    pub runs: Vec<RunDoc>,
+    pub average: Option<Average>,
+}
+
+impl ResultsDoc {
+    pub fn new(e: &Evaluation) -> ResultsDoc {
+        let s = &e.loaded.survey;
+        let c = &e.convention;
+        ResultsDoc {
+            program: format!("annulus {}", env!("CARGO_PKG_VERSION")),
+            convention: c.id.name().to_string(),
+            convention_notes: c.describe(),
+            reference: Reference {
+                temperature_k: c.reference_temperature_k,
+                pressure_pa: c.reference_pressure_pa,
+                dry: c.dry_basis,
+            },
+            area_m2: e.plane.layout.duct().area_m2(),
+            layout_method: e.plane.layout.method().name().to_string(),
+            points_per_run: e.plane.layout.total_points(),
+            required_points: e.plane.required_points,
+            negative_policy: s.options.negative,
+            runs: e
+                .runs
+                .iter()
+                .zip(&s.runs)
+                .map(|(r, spec)| run_doc(r, run_is_valid(spec, s.convention)))
+                .collect(),
+            average: e.average.clone(),
+        }
+    }
+}
+
+fn run_doc(r: &RunResult, valid: bool) -> RunDoc {
+    RunDoc {
+        id: r.id.clone(),
+        valid,
+        points: r.points.iter().map(PointDoc::from).collect(),
+        density_kg_m3: r.density_kg_m3,
+        mean_temperature_k: r.mean_temperature_k,
+        absolute_pressure_pa: r.gas.absolute_pressure_pa,
+        dry_molar_mass_g_mol: r.gas.dry_molar_mass_g_mol,
+        wet_molar_mass_g_mol: r.gas.wet_molar_mass_g_mol,
+        moisture_fraction: r.gas.bws,
+        moisture_basis: r.gas.moisture_basis.clone(),
+        wall_factor: r.wall_factor,
+        mean_velocity_m_s: r.mean_velocity_m_s,
+        actual_flow_m3_s: r.actual_flow_m3_s,
+        standard_flow_m3_s: r.standard_flow_m3_s,
+        dry_standard_flow_m3_s: r.dry_standard_flow_m3_s,
+        mass_flow_kg_s: r.mass_flow_kg_s,
+        sqrt_of_mean_dp_velocity_m_s: r.wrong_average_velocity_m_s,
+        percent_of_design: r.percent_of_design,
+        epa: r.epa.clone(),
+    }
+}
+
+/// A quantity as a convention prints it: label, unit, factor from SI.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Shown {
+    pub label: &'static str,
+    pub unit: &'static str,
+    pub per_si: f64,
+    pub decimals: usize,
+}
+
+impl Shown {
+    pub fn fmt(&self, si: f64) -> String {
+        format!("{:.*}", self.decimals, si * self.per_si)
+    }
+}
+
+const FT: f64 = 0.3048;
+const FT3: f64 = FT * FT * FT;
+
+/// Display units of the headline quantities under a convention.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct DisplayUnits {
+    pub velocity: Shown,
+    pub actual: Shown,
+    pub standard: Shown,
+    pub dry_standard: Shown,
+    pub mass: Shown,
+}
+
+impl DisplayUnits {
+    pub fn for_convention(c: &Convention) -> DisplayUnits {
+        let s = |label, unit, per_si, decimals| Shown {
+            label,
+            unit,
+            per_si,
+            decimals,
+        };
+        match (c.id, c.epa_form) {
+            (ConventionId::EpaMethod2, EpaForm::English) => DisplayUnits {
+                velocity: s("velocity", "ft/s", 1.0 / FT, 2),
+                actual: s("actual flow", "acfm", 60.0 / FT3, 0),
+                standard: s("wet standard flow", "wscfm", 60.0 / FT3, 0),
+                dry_standard: s("dry standard flow", "dscfm", 60.0 / FT3, 0),
+                mass: s("mass flow", "lb/h", 3600.0 / 0.453_592_37, 0),
+            },
+            (ConventionId::EpaMethod2, EpaForm::Metric) => DisplayUnits {
+                velocity: s("velocity", "m/s", 1.0, 3),
+                actual: s("actual flow", "m³/h", 3600.0, 0),
+                standard: s("wet standard flow", "wscm/h", 3600.0, 0),
+                dry_standard: s("dry standard flow", "dscm/h", 3600.0, 0),
+                mass: s("mass flow", "kg/h", 3600.0, 0),
+            },
+            (ConventionId::Iso16911, _) => DisplayUnits {
+                velocity: s("velocity", "m/s", 1.0, 3),
+                actual: s("actual flow", "m³/h", 3600.0, 0),
+                standard: s("normal flow, wet", "m³/h (n, wet)", 3600.0, 0),
+                dry_standard: s("normal flow, dry", "m³/h (n, dry)", 3600.0, 0),
+                mass: s("mass flow", "kg/h", 3600.0, 0),
+            },
+            (ConventionId::HvacIp, _) => DisplayUnits {
+                velocity: s("velocity", "fpm", 60.0 / FT, 0),
+                actual: s("actual flow", "acfm", 60.0 / FT3, 0),
+                standard: s("standard air flow", "scfm", 60.0 / FT3, 0),
+                dry_standard: s("standard air flow, dry", "scfm (dry air)", 60.0 / FT3, 0),
+                mass: s("mass flow", "lb/min", 60.0 / 0.453_592_37, 1),
+            },
+            (ConventionId::HvacSi, _) => DisplayUnits {
+                velocity: s("velocity", "m/s", 1.0, 2),
+                actual: s("actual flow", "m³/h", 3600.0, 0),
+                standard: s("standard air flow", "m³/h (1.2 kg/m³)", 3600.0, 0),
+                dry_standard: s("standard air flow, dry", "m³/h (dry air)", 3600.0, 0),
+                mass: s("mass flow", "kg/s", 1.0, 3),
+            },
+        }
+    }
+}
