@@ -32,7 +32,7 @@ fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
             } else {
                 Location::file(file)
             };
-            Diagnostic::new(format!("line {line}, point {point} {message}"))
+            Diagnostic::new(format!("line {line}, point {point}: {message}"))
                 .at(loc.with_context(format!("line {line}, point {point}")))
                 .hint(hint)
         }

@@ -55,11 +55,13 @@ struct JsonLayout<'a> {
     points: Vec<JsonPoint<'a>>,
 }
 
-/// Loads a survey file for its plane only (readings are not needed to lay out).
-pub(crate) fn survey_only(path: &std::path::Path) -> Result<crate::survey::Survey, Error> {
+/// Loads a survey file for its plane only: readings and the other sections may still be blank.
+pub(crate) fn survey_only(
+    path: &std::path::Path,
+) -> Result<crate::input::survey::PlaneParts, Error> {
     let name = path.display().to_string();
     let (_, text) = crate::input::read_text(path, &name)?;
-    crate::input::survey::parse_survey(&name, &text)
+    crate::input::survey::parse_plane(&name, &text)
 }
 
 pub(crate) fn plane_for(setting: &PlaneSetting) -> Result<Plane, Error> {

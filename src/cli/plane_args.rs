@@ -56,7 +56,6 @@ pub struct PlaneSetting {
     pub port_length_m: f64,
     pub mark_step: MarkStep,
     pub survey_path: Option<PathBuf>,
-    pub title: Option<String>,
 }
 
 fn flag_err(flag: &str, raw: &str, e: impl std::fmt::Display, hint: String) -> Diagnostic {
@@ -87,7 +86,7 @@ impl PlaneArgs {
     /// Validates the flags, starting from `survey` when one is given.
     pub fn settle(
         &self,
-        survey: Option<(PathBuf, crate::survey::Survey)>,
+        survey: Option<(PathBuf, crate::input::survey::PlaneParts)>,
     ) -> Result<PlaneSetting, Error> {
         let mut d = Diagnostics::new();
         let base = survey.as_ref().map(|(_, s)| s);
@@ -189,7 +188,6 @@ impl PlaneArgs {
                 crate::units::UnitSystem::Si => MarkStep::MILLIMETRE,
             },
         };
-        let title = base.map(|s| s.title.clone());
         let survey_path = survey.map(|(p, _)| p);
         match duct {
             Some(duct) if d.is_empty() => Ok(PlaneSetting {
@@ -201,7 +199,6 @@ impl PlaneArgs {
                 port_length_m,
                 mark_step,
                 survey_path,
-                title,
             }),
             _ => Err(Error::Input(d)),
         }

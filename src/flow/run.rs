@@ -135,7 +135,7 @@ pub fn compute_run(
                 line: p.line.clone(),
                 point: p.point,
                 source_line: 0,
-                message: "has no reading".into(),
+                message: "no reading is given".into(),
                 hint: "every traverse point needs a reading".into(),
             })?;
         ordered.push((p, r));
@@ -148,7 +148,7 @@ pub fn compute_run(
             .ok_or_else(|| {
                 reading_err(
                     r,
-                    "has no temperature".into(),
+                    "no temperature is given".into(),
                     "add a temperature[…] column or [gas] temperature",
                 )
             })?;
@@ -199,7 +199,7 @@ pub fn compute_run(
                 let yaw = r.yaw_deg.ok_or_else(|| {
                     reading_err(
                         r,
-                        "has no yaw angle but the survey corrects for yaw".into(),
+                        "no yaw angle is given but the survey corrects for yaw".into(),
                         "add a yaw[deg] column, or set [flow] angles = \"none\"",
                     )
                 })?;
@@ -207,7 +207,7 @@ pub fn compute_run(
                     r.pitch_deg.ok_or_else(|| {
                         reading_err(
                             r,
-                            "has no pitch angle but the survey corrects for pitch".into(),
+                            "no pitch angle is given but the survey corrects for pitch".into(),
                             "add a pitch[deg] column, or set [flow] angles = \"yaw\"",
                         )
                     })?
@@ -559,7 +559,7 @@ readings = "r.csv"
         s.options.angles = AngleCorrection::Yaw;
         let mut r = readings(&l, &[100.0; 8]);
         let e = compute_run(&s, &c, &l, "1", &r).unwrap_err();
-        assert!(e.to_string().contains("no yaw"));
+        assert!(e.to_string().contains("no yaw"), "{e}");
         for x in r.readings.iter_mut() {
             x.yaw_deg = Some(60.0);
         }

@@ -1,6 +1,7 @@
 //! The only code that reads files: survey TOML, readings CSV. Everything read is kept byte-exact
 //! (the report embeds it) and turned into validated domain values with located diagnostics.
 
+pub mod assess_config;
 pub mod readings;
 pub mod survey;
 pub mod text;

@@ -275,20 +275,7 @@ impl Ctx<'_> {
 
 /// Parses survey text. `file` names the file in diagnostics.
 pub fn parse_survey(file: &str, text: &str) -> Result<Survey, Error> {
-    let raw: RawSurvey = toml::from_str(text).map_err(|e| {
-        let loc = match e.span() {
-            Some(span) => span_location(file, text, span.start),
-            None => Location::file(file),
-        };
-        Error::input(
-            Diagnostic::new(format!(
-                "the survey file is not valid: {}",
-                e.message().trim()
-            ))
-            .at(loc)
-            .hint("see the survey format in the README (sample-data/ has complete examples)"),
-        )
-    })?;
+    let raw: RawSurvey = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
     let mut cx = Ctx {
         file,
         text,
@@ -307,31 +294,23 @@ pub fn parse_survey(file: &str, text: &str) -> Result<Survey, Error> {
     }
 }
 
-fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
-    let m = &raw.survey;
-    let date = cx.date(&m.date, "survey.date");
+/// The plane parts of a survey (convention, duct, straight runs, port, layout request).
+pub struct PlaneParts {
+    pub convention: ConventionId,
+    pub duct: Duct,
+    pub construction: Construction,
+    pub upstream_d: Option<f64>,
+    pub downstream_d: Option<f64>,
+    pub port_length_m: f64,
+    pub layout: LayoutRequest,
+}
+
+fn build_plane(cx: &mut Ctx, raw: &RawSurvey) -> Option<PlaneParts> {
     let convention = cx.choice(
-        &m.convention,
+        &raw.survey.convention,
         "survey.convention",
         &ConventionId::ALL.map(|c| (c.name(), c)),
     );
-    let reference = m.reference.as_ref().and_then(|r| {
-        let t = cx.quantity(
-            &r.temperature,
-            "survey.reference.temperature",
-            Dimension::Temperature,
-        );
-        let p = cx.quantity(
-            &r.pressure,
-            "survey.reference.pressure",
-            Dimension::Pressure,
-        );
-        Some(ReferenceOverride {
-            temperature_k: t?,
-            pressure_pa: p?,
-        })
-    });
-
     let d = &raw.duct;
     let shape = cx.choice(
         &d.shape,
@@ -428,6 +407,69 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         }
     };
 
+    Some(PlaneParts {
+        convention: convention?,
+        duct: duct?,
+        construction: construction?,
+        upstream_d,
+        downstream_d,
+        port_length_m,
+        layout,
+    })
+}
+
+/// Parses only the plane of a survey (for `annulus layout` on a survey still being filled in):
+/// problems in other sections are ignored, problems in the plane are reported.
+pub fn parse_plane(file: &str, text: &str) -> Result<PlaneParts, Error> {
+    let raw: RawSurvey = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
+    let mut cx = Ctx {
+        file,
+        text,
+        diags: Diagnostics::new(),
+    };
+    let plane = build_plane(&mut cx, &raw);
+    match plane {
+        Some(p) if cx.diags.is_empty() => Ok(p),
+        _ => Err(Error::Input(cx.diags)),
+    }
+}
+
+fn toml_error(file: &str, text: &str, e: toml::de::Error) -> Error {
+    let loc = match e.span() {
+        Some(span) => span_location(file, text, span.start),
+        None => Location::file(file),
+    };
+    Error::input(
+        Diagnostic::new(format!(
+            "the survey file is not valid: {}",
+            e.message().trim()
+        ))
+        .at(loc)
+        .hint("see the survey format in the README (sample-data/ has complete examples)"),
+    )
+}
+
+fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
+    let m = &raw.survey;
+    let date = cx.date(&m.date, "survey.date");
+    let reference = m.reference.as_ref().and_then(|r| {
+        let t = cx.quantity(
+            &r.temperature,
+            "survey.reference.temperature",
+            Dimension::Temperature,
+        );
+        let p = cx.quantity(
+            &r.pressure,
+            "survey.reference.pressure",
+            Dimension::Pressure,
+        );
+        Some(ReferenceOverride {
+            temperature_k: t?,
+            pressure_pa: p?,
+        })
+    });
+
+    let plane = build_plane(cx, &raw);
     let p = &raw.probe;
     let kind = cx.choice(
         &p.kind,
@@ -709,20 +751,21 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         })
         .unwrap_or_default();
 
+    let plane = plane?;
     Some(Survey {
+        convention: plane.convention,
+        duct: plane.duct,
+        construction: plane.construction,
+        upstream_d: plane.upstream_d,
+        downstream_d: plane.downstream_d,
+        port_length_m: plane.port_length_m,
+        layout: plane.layout,
         title: raw.survey.title.clone(),
         site: raw.survey.site.clone(),
         client: raw.survey.client.clone(),
         plane: raw.survey.plane.clone(),
         date: date?,
-        convention: convention?,
         reference,
-        duct: duct?,
-        construction: construction?,
-        upstream_d,
-        downstream_d,
-        port_length_m,
-        layout,
         probe: Probe {
             kind: kind?,
             coefficient,
