@@ -218,7 +218,8 @@ mod tests {
     #[test]
     fn renders_in_the_documented_shape() {
         let d = Diagnostic::new("differential pressure is not a number: `0.3l`")
-            .at(Location::at("run-2.csv", 14, 3).with_context("line B, point 3, column `dp[inH2O]`"))
+            .at(Location::at("run-2.csv", 14, 3)
+                .with_context("line B, point 3, column `dp[inH2O]`"))
             .hint("use `.` as the decimal separator; put units in the header, not the cell");
         assert_eq!(
             d.to_string(),

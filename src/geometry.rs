@@ -10,10 +10,15 @@ use std::fmt;
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 #[serde(tag = "shape", rename_all = "lowercase")]
 pub enum Shape {
-    Round { diameter_m: f64 },
+    Round {
+        diameter_m: f64,
+    },
     /// `width_m` is the side the ports are in (traverse lines are spread across it); the points of a
     /// line run along `height_m`.
-    Rectangular { width_m: f64, height_m: f64 },
+    Rectangular {
+        width_m: f64,
+        height_m: f64,
+    },
 }
 
 /// A validated duct cross-section.
@@ -25,9 +30,18 @@ pub struct Duct {
 /// Why a duct could not be made.
 #[derive(Debug, Clone, PartialEq)]
 pub enum GeometryError {
-    NotPositive { what: &'static str, value_m: f64 },
-    LinerTooThick { side: &'static str, side_m: f64, liner_m: f64 },
-    NegativeLiner { liner_m: f64 },
+    NotPositive {
+        what: &'static str,
+        value_m: f64,
+    },
+    LinerTooThick {
+        side: &'static str,
+        side_m: f64,
+        liner_m: f64,
+    },
+    NegativeLiner {
+        liner_m: f64,
+    },
 }
 
 impl fmt::Display for GeometryError {
@@ -45,7 +59,10 @@ impl fmt::Display for GeometryError {
                 "a {liner_m} m liner on both walls leaves nothing of the {side_m} m {side}"
             ),
             GeometryError::NegativeLiner { liner_m } => {
-                write!(f, "the liner thickness cannot be negative, found {liner_m} m")
+                write!(
+                    f,
+                    "the liner thickness cannot be negative, found {liner_m} m"
+                )
             }
         }
     }
@@ -203,17 +220,11 @@ mod tests {
         ));
         assert!(matches!(
             Duct::rectangular(1.0, -2.0),
-            Err(GeometryError::NotPositive {
-                what: "height",
-                ..
-            })
+            Err(GeometryError::NotPositive { what: "height", .. })
         ));
         assert!(matches!(
             Duct::rectangular_lined(0.1, 0.05, 0.03),
-            Err(GeometryError::LinerTooThick {
-                side: "height",
-                ..
-            })
+            Err(GeometryError::LinerTooThick { side: "height", .. })
         ));
         assert!(matches!(
             Duct::rectangular_lined(0.1, 0.05, -0.01),

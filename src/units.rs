@@ -209,11 +209,27 @@ pub fn symbols_for(dimension: Dimension) -> Vec<&'static str> {
 #[derive(Debug, Clone, PartialEq)]
 pub enum UnitError {
     Empty,
-    NotANumber { raw: String },
-    MissingUnit { raw: String, expected: Dimension },
-    UnknownUnit { raw: String, unit: String, expected: Dimension },
-    WrongDimension { raw: String, unit: String, found: Dimension, expected: Dimension },
-    NotFinite { raw: String },
+    NotANumber {
+        raw: String,
+    },
+    MissingUnit {
+        raw: String,
+        expected: Dimension,
+    },
+    UnknownUnit {
+        raw: String,
+        unit: String,
+        expected: Dimension,
+    },
+    WrongDimension {
+        raw: String,
+        unit: String,
+        found: Dimension,
+        expected: Dimension,
+    },
+    NotFinite {
+        raw: String,
+    },
 }
 
 impl UnitError {
@@ -283,9 +299,10 @@ pub fn parse_number(text: &str) -> Option<f64> {
     if t.is_empty() {
         return None;
     }
-    if let Some((whole, frac)) = t.split_once('-').filter(|(w, f)| {
-        !w.is_empty() && f.contains('/') && w.chars().all(|c| c.is_ascii_digit())
-    }) {
+    if let Some((whole, frac)) = t
+        .split_once('-')
+        .filter(|(w, f)| !w.is_empty() && f.contains('/') && w.chars().all(|c| c.is_ascii_digit()))
+    {
         let w: f64 = whole.parse().ok()?;
         return parse_number(frac).map(|f| w + f);
     }
@@ -298,7 +315,9 @@ pub fn parse_number(text: &str) -> Option<f64> {
         return Some(n / d);
     }
     // Rust's parser accepts "inf"/"nan": those are not numbers a user means.
-    if t.chars().any(|c| c.is_ascii_alphabetic() && c != 'e' && c != 'E') {
+    if t.chars()
+        .any(|c| c.is_ascii_alphabetic() && c != 'e' && c != 'E')
+    {
         return None;
     }
     t.parse().ok()
@@ -592,7 +611,10 @@ mod tests {
     /// must agree with our factor.
     #[test]
     fn factors_agree_with_pint() {
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/pint_units.csv");
+        let path = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/tests/reference/pint_units.csv"
+        );
         let text = std::fs::read_to_string(path).expect("reference table is committed");
         let mut rows = 0;
         for line in text.lines().filter(|l| !l.starts_with('#')).skip(1) {
@@ -607,11 +629,8 @@ mod tests {
             // pint (version in the CSV header), same quantity converted to SI base units; the row's
             // tolerance is REL_TOL_FACTOR except where the script documents a different water density
             let ours = convert_in(value, unit, unit.dimension).unwrap();
-            assert!(tol <= 2e-5 && tol >= REL_TOL_FACTOR * 1e-3);
-            assert!(
-                close(ours, si, tol),
-                "{symbol}: ours {ours} pint {si}"
-            );
+            assert!((REL_TOL_FACTOR * 1e-3..=2e-5).contains(&tol));
+            assert!(close(ours, si, tol), "{symbol}: ours {ours} pint {si}");
             rows += 1;
         }
         assert!(rows >= 20, "only {rows} rows compared");

@@ -109,9 +109,9 @@ impl Table {
         let mut out = String::new();
         let line = |cells: &Vec<String>, out: &mut String| {
             let mut s = String::new();
-            for i in 0..n {
+            for (i, width) in w.iter().enumerate() {
                 let c = cells.get(i).map(String::as_str).unwrap_or("");
-                let pad = w[i].saturating_sub(visible_len(c));
+                let pad = width.saturating_sub(visible_len(c));
                 if i > 0 {
                     s.push_str("  ");
                 }

@@ -73,7 +73,11 @@ mod tests {
         let m = probe_marks(&l, 5.0 * IN, MarkStep::EIGHTH_INCH);
         assert_eq!(m.len(), 12);
         assert!((m[0].insertion_m - (l.points()[0].position_m + 5.0 * IN)).abs() < 1e-12);
-        assert!((m[0].mark_m / IN - 8.125).abs() < 1e-9, "{}", m[0].mark_m / IN);
+        assert!(
+            (m[0].mark_m / IN - 8.125).abs() < 1e-9,
+            "{}",
+            m[0].mark_m / IN
+        );
         let m = probe_marks(&l, 0.127, MarkStep::MILLIMETRE);
         assert!((m[0].mark_m * 1000.0 - (m[0].mark_m * 1000.0).round()).abs() < 1e-9);
         let m = probe_marks(&l, 0.127, MarkStep::None);

@@ -120,8 +120,16 @@ impl LayoutSpec {
 /// Why a layout could not be made.
 #[derive(Debug, Clone, PartialEq)]
 pub enum LayoutError {
-    Unsupported { method: Method, shape: &'static str, why: String },
-    BadCount { what: &'static str, found: usize, allowed: String },
+    Unsupported {
+        method: Method,
+        shape: &'static str,
+        why: String,
+    },
+    BadCount {
+        what: &'static str,
+        found: usize,
+        allowed: String,
+    },
     Table(tables::TableError),
     Invalid(String),
 }
@@ -130,7 +138,10 @@ impl fmt::Display for LayoutError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             LayoutError::Unsupported { method, shape, why } => {
-                write!(f, "the {method} method is not available for {shape} ducts: {why}")
+                write!(
+                    f,
+                    "the {method} method is not available for {shape} ducts: {why}"
+                )
             }
             LayoutError::BadCount {
                 what,

@@ -71,7 +71,9 @@ pub fn table_1_1_grid(width_m: f64, height_m: f64, minimum: usize) -> Option<(us
 }
 
 fn centroids(k: usize) -> Vec<f64> {
-    (1..=k).map(|m| (2 * m - 1) as f64 / (2 * k) as f64).collect()
+    (1..=k)
+        .map(|m| (2 * m - 1) as f64 / (2 * k) as f64)
+        .collect()
 }
 
 fn bad(what: &'static str, found: usize, allowed: &str) -> LayoutError {
@@ -87,17 +89,25 @@ pub(super) fn plan(width_m: f64, height_m: f64, spec: &LayoutSpec) -> Result<Pla
         Method::EqualArea => {
             let (kw, kh, source) = match (spec.lines, spec.points_per_line, spec.minimum_points) {
                 (Some(w), Some(h), _) => (w, h, "equal-area grid, centroids of equal rectangles"),
-                (Some(w), None, Some(min)) => {
-                    (w, min.div_ceil(w.max(1)), "equal-area grid sized to the required count")
-                }
-                (None, Some(h), Some(min)) => {
-                    (min.div_ceil(h.max(1)), h, "equal-area grid sized to the required count")
-                }
+                (Some(w), None, Some(min)) => (
+                    w,
+                    min.div_ceil(w.max(1)),
+                    "equal-area grid sized to the required count",
+                ),
+                (None, Some(h), Some(min)) => (
+                    min.div_ceil(h.max(1)),
+                    h,
+                    "equal-area grid sized to the required count",
+                ),
                 (None, None, Some(min)) => {
                     let (w, h) = table_1_1_grid(width_m, height_m, min).ok_or_else(|| {
                         bad("points", min, "EPA Method 1 Table 1-1 goes up to 49 points; give --lines and --points")
                     })?;
-                    (w, h, "EPA Method 1 Table 1-1 grid (table from memory, high confidence)")
+                    (
+                        w,
+                        h,
+                        "EPA Method 1 Table 1-1 grid (table from memory, high confidence)",
+                    )
                 }
                 (w, h, None) => {
                     let (tw, th) = tab_spacing_counts(width_m, height_m);

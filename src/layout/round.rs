@@ -60,7 +60,8 @@ pub(super) fn plan(diameter_m: f64, spec: &LayoutSpec) -> Result<Plan, LayoutErr
             (
                 lines,
                 equal_area_fractions(n),
-                "EPA Method 1 (40 CFR 60 App. A-1) §12.1 equal-area centroids; Table 1-2".to_string(),
+                "EPA Method 1 (40 CFR 60 App. A-1) §12.1 equal-area centroids; Table 1-2"
+                    .to_string(),
             )
         }
         Method::LogLinear | Method::LogTchebycheff => {
@@ -70,11 +71,13 @@ pub(super) fn plan(diameter_m: f64, spec: &LayoutSpec) -> Result<Plan, LayoutErr
                 ROUND_LOG_TCHEBYCHEFF
             };
             let lines = check_lines(spec.lines.unwrap_or(LOG_RULE_DEFAULT_LINES))?;
-            let n = spec.points_per_line.unwrap_or(if diameter_m <= LOG_RULE_SMALL_DUCT_M {
-                6
-            } else {
-                8
-            });
+            let n = spec
+                .points_per_line
+                .unwrap_or(if diameter_m <= LOG_RULE_SMALL_DUCT_M {
+                    6
+                } else {
+                    8
+                });
             let row = table.row(n).ok_or_else(|| LayoutError::BadCount {
                 what: "points per diameter",
                 found: n,
@@ -115,16 +118,24 @@ mod tests {
             (4, &[6.7, 25.0, 75.0, 93.3]),
             (6, &[4.4, 14.6, 29.6, 70.4, 85.4, 95.6]),
             (8, &[3.2, 10.5, 19.4, 32.3, 67.7, 80.6, 89.5, 96.8]),
-            (10, &[2.6, 8.2, 14.6, 22.6, 34.2, 65.8, 77.4, 85.4, 91.8, 97.4]),
+            (
+                10,
+                &[2.6, 8.2, 14.6, 22.6, 34.2, 65.8, 77.4, 85.4, 91.8, 97.4],
+            ),
             (
                 12,
-                &[2.1, 6.7, 11.8, 17.7, 25.0, 35.6, 64.4, 75.0, 82.3, 88.2, 93.3, 97.9],
+                &[
+                    2.1, 6.7, 11.8, 17.7, 25.0, 35.6, 64.4, 75.0, 82.3, 88.2, 93.3, 97.9,
+                ],
             ),
         ];
         for (n, row) in table {
             let f = equal_area_fractions(*n);
             for (a, b) in f.iter().zip(row.iter()) {
-                assert!((a * 100.0 - b).abs() <= TABLE_1_2_TOL_PCT, "n={n}: {a} vs {b}");
+                assert!(
+                    (a * 100.0 - b).abs() <= TABLE_1_2_TOL_PCT,
+                    "n={n}: {a} vs {b}"
+                );
             }
         }
         // EPA Method 1 Table 1-2, 24 points, near half, transcribed

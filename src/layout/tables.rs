@@ -90,10 +90,27 @@ pub const RECT_LOG_TCHEBYCHEFF: Table = Table {
 /// Why a table row was refused.
 #[derive(Debug, Clone, PartialEq)]
 pub enum TableError {
-    WrongCount { table: &'static str, stated: usize, found: usize },
-    NotIncreasing { table: &'static str, points: usize, index: usize },
-    OutsideLine { table: &'static str, points: usize, index: usize },
-    NotSymmetric { table: &'static str, points: usize, index: usize, sum: f64 },
+    WrongCount {
+        table: &'static str,
+        stated: usize,
+        found: usize,
+    },
+    NotIncreasing {
+        table: &'static str,
+        points: usize,
+        index: usize,
+    },
+    OutsideLine {
+        table: &'static str,
+        points: usize,
+        index: usize,
+    },
+    NotSymmetric {
+        table: &'static str,
+        points: usize,
+        index: usize,
+        sum: f64,
+    },
 }
 
 impl fmt::Display for TableError {
@@ -108,12 +125,18 @@ impl fmt::Display for TableError {
                 table,
                 points,
                 index,
-            } => write!(f, "{table}: {points}-point row is out of order at point {index}"),
+            } => write!(
+                f,
+                "{table}: {points}-point row is out of order at point {index}"
+            ),
             TableError::OutsideLine {
                 table,
                 points,
                 index,
-            } => write!(f, "{table}: {points}-point row, point {index} is not inside the duct"),
+            } => write!(
+                f,
+                "{table}: {points}-point row, point {index} is not inside the duct"
+            ),
             TableError::NotSymmetric {
                 table,
                 points,
@@ -192,7 +215,11 @@ mod tests {
 
     #[test]
     fn every_shipped_row_is_valid() {
-        for t in [ROUND_LOG_LINEAR, ROUND_LOG_TCHEBYCHEFF, RECT_LOG_TCHEBYCHEFF] {
+        for t in [
+            ROUND_LOG_LINEAR,
+            ROUND_LOG_TCHEBYCHEFF,
+            RECT_LOG_TCHEBYCHEFF,
+        ] {
             for r in t.rows {
                 validate_row(&t, r).unwrap();
             }
@@ -258,7 +285,11 @@ mod tests {
             }
             built.push(1.0 - wall);
             for (a, b) in built.iter().zip(row.fractions) {
-                assert!((a - b).abs() <= 0.0005 + 1e-9, "n={} {a} vs {b}", row.points);
+                assert!(
+                    (a - b).abs() <= 0.0005 + 1e-9,
+                    "n={} {a} vs {b}",
+                    row.points
+                );
             }
         }
     }
@@ -268,7 +299,10 @@ mod tests {
     #[test]
     fn round_log_tchebycheff_matches_its_construction() {
         // Chebyshev equal-weight nodes on [-1, 1] for 2 and 3 nodes.
-        let nodes: [&[f64]; 2] = [&[-0.5773503, 0.5773503], &[-FRAC_1_SQRT_2, 0.0, FRAC_1_SQRT_2]];
+        let nodes: [&[f64]; 2] = [
+            &[-0.5773503, 0.5773503],
+            &[-FRAC_1_SQRT_2, 0.0, FRAC_1_SQRT_2],
+        ];
         for row in ROUND_LOG_TCHEBYCHEFF.rows {
             let n = row.points / 2; // annuli per radius
             let rb = ((n as f64 - 1.0) / n as f64).sqrt();
