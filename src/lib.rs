@@ -22,6 +22,7 @@
 // on paths that end the command.
 #![allow(clippy::result_large_err)]
 
+pub mod archive;
 pub mod assess;
 pub mod calibration;
 pub mod checks;

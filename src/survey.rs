@@ -259,6 +259,8 @@ pub struct Survey {
     pub upstream_d: Option<f64>,
     pub downstream_d: Option<f64>,
     pub port_length_m: f64,
+    /// Liner thickness already taken off the duct's inside dimensions (kept for reviews).
+    pub liner_m: f64,
     pub layout: LayoutRequest,
     pub probe: Probe,
     pub gas: Gas,

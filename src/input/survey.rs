@@ -302,6 +302,7 @@ pub struct PlaneParts {
     pub upstream_d: Option<f64>,
     pub downstream_d: Option<f64>,
     pub port_length_m: f64,
+    pub liner_m: f64,
     pub layout: LayoutRequest,
 }
 
@@ -414,6 +415,7 @@ fn build_plane(cx: &mut Ctx, raw: &RawSurvey) -> Option<PlaneParts> {
         upstream_d,
         downstream_d,
         port_length_m,
+        liner_m: liner,
         layout,
     })
 }
@@ -759,6 +761,7 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         upstream_d: plane.upstream_d,
         downstream_d: plane.downstream_d,
         port_length_m: plane.port_length_m,
+        liner_m: plane.liner_m,
         layout: plane.layout,
         title: raw.survey.title.clone(),
         site: raw.survey.site.clone(),

@@ -1,0 +1,58 @@
+//! Archive side of a report: the manifest of what it holds, Ed25519 signing, verification and
+//! review of whole folders.
+//!
+//! A report embeds its inputs byte-exact (survey, readings) and the results JSON. The manifest lists
+//! the SHA-256 of each, the program version and the convention; its own SHA-256 is the report's content
+//! fingerprint, printed in the sign-off block. A signature (Ed25519, `ed25519-dalek`) over the manifest
+//! shows who signed what. No file reading here except through the caller's bytes.
+
+pub mod forensics;
+pub mod keys;
+pub mod manifest;
+
+pub use keys::{KeyError, PublicKey, SecretKey};
+pub use manifest::{FileEntry, Manifest, Signature};
+
+/// Lower-case hex of bytes.
+pub fn hex(bytes: &[u8]) -> String {
+    let mut s = String::with_capacity(bytes.len() * 2);
+    for b in bytes {
+        s.push_str(&format!("{b:02x}"));
+    }
+    s
+}
+
+/// Bytes from hex; `None` on odd length or a non-hex digit.
+pub fn unhex(text: &str) -> Option<Vec<u8>> {
+    let t = text.trim();
+    if t.len() % 2 != 0 {
+        return None;
+    }
+    (0..t.len())
+        .step_by(2)
+        .map(|i| u8::from_str_radix(t.get(i..i + 2)?, 16).ok())
+        .collect()
+}
+
+/// SHA-256 of bytes as hex.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    hex(&Sha256::digest(bytes))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn sha256_known_values() {
+        // FIPS 180-2 Appendix B.1 test vector: SHA-256("abc")
+        assert_eq!(
+            sha256_hex(b"abc"),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+        assert_eq!(unhex(&hex(&[0, 1, 254, 255])), Some(vec![0, 1, 254, 255]));
+        assert_eq!(unhex("abc"), None);
+        assert_eq!(unhex("zz"), None);
+    }
+}
