@@ -128,3 +128,13 @@ pub fn run_is_valid(
         None => convention.is_hvac(),
     }
 }
+
+/// Evaluates a loaded survey and runs the acceptance checks and uncertainty budgets on it.
+pub fn evaluate_and_assess(
+    loaded: Loaded,
+) -> Result<(Evaluation, crate::assess::Assessment), Error> {
+    let config = crate::input::assess_config::load_assess_config(&loaded)?;
+    let eval = evaluate(loaded)?;
+    let assessment = crate::assess::assess(&eval, &config);
+    Ok((eval, assessment))
+}

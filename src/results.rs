@@ -3,6 +3,7 @@
 //!
 //! Also the convention's display units, so every presenter prints the same labels.
 
+use crate::assess::{Assessment, RunAssessment};
 use crate::flow::{Average, Convention, EpaForm, PointResult, RunResult};
 use crate::pipeline::{run_is_valid, Evaluation};
 use crate::survey::ConventionId;
@@ -75,6 +76,10 @@ pub struct RunDoc {
     pub percent_of_design: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub epa: Option<crate::flow::run::EpaFigures>,
+    /// The GUM budget of this run (contract shape; `null` degrees of freedom mean infinite).
+    pub uncertainty: Option<crate::assess::UncertaintyReport>,
+    /// This run's findings.
+    pub checks: Vec<crate::checks::Finding>,
 }
 
 /// The whole results document.
@@ -91,10 +96,15 @@ pub struct ResultsDoc {
     pub negative_policy: crate::survey::NegativePolicy,
     pub runs: Vec<RunDoc>,
     pub average: Option<Average>,
+    /// The budget of the average of the valid runs (adds run-to-run variation).
+    pub average_uncertainty: Option<crate::assess::UncertaintyReport>,
+    /// Findings about the plane and the test as a whole.
+    pub checks: Vec<crate::checks::Finding>,
+    pub verdict: crate::assess::Verdict,
 }
 
 impl ResultsDoc {
-    pub fn new(e: &Evaluation) -> ResultsDoc {
+    pub fn new(e: &Evaluation, a: &Assessment) -> ResultsDoc {
         let s = &e.loaded.survey;
         let c = &e.convention;
         ResultsDoc {
@@ -115,14 +125,20 @@ impl ResultsDoc {
                 .runs
                 .iter()
                 .zip(&s.runs)
-                .map(|(r, spec)| run_doc(r, run_is_valid(spec, s.convention)))
+                .map(|(r, spec)| {
+                    let ra = a.runs.iter().find(|x| x.id == r.id);
+                    run_doc(r, run_is_valid(spec, s.convention), ra)
+                })
                 .collect(),
             average: e.average.clone(),
+            average_uncertainty: a.average.as_ref().and_then(|x| x.uncertainty.clone()),
+            checks: a.checks.clone(),
+            verdict: a.verdict,
         }
     }
 }
 
-fn run_doc(r: &RunResult, valid: bool) -> RunDoc {
+fn run_doc(r: &RunResult, valid: bool, a: Option<&RunAssessment>) -> RunDoc {
     RunDoc {
         id: r.id.clone(),
         valid,
@@ -143,6 +159,8 @@ fn run_doc(r: &RunResult, valid: bool) -> RunDoc {
         sqrt_of_mean_dp_velocity_m_s: r.wrong_average_velocity_m_s,
         percent_of_design: r.percent_of_design,
         epa: r.epa.clone(),
+        uncertainty: a.and_then(|x| x.uncertainty.clone()),
+        checks: a.map(|x| x.checks.clone()).unwrap_or_default(),
     }
 }
 

@@ -12,7 +12,10 @@ pub const FORMAT: &str = "annulus-manifest/1";
 /// One embedded file.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
 pub struct FileEntry {
+    /// Attachment name inside the PDF (a file name, no directories).
     pub name: String,
+    /// The path as the survey wrote it (readings) or the survey's own file name.
+    pub path: String,
     /// `survey`, `readings` or `results`.
     pub role: String,
     pub sha256: String,
@@ -40,9 +43,10 @@ impl Manifest {
         }
     }
 
-    pub fn entry(name: &str, role: &str, bytes: &[u8]) -> FileEntry {
+    pub fn entry(name: &str, path: &str, role: &str, bytes: &[u8]) -> FileEntry {
         FileEntry {
             name: name.to_string(),
+            path: path.to_string(),
             role: role.to_string(),
             sha256: sha256_hex(bytes),
             bytes: bytes.len(),
@@ -124,8 +128,8 @@ mod tests {
             "epa-method-2",
             "2026-10-14",
             vec![
-                Manifest::entry("survey.toml", "survey", b"[survey]"),
-                Manifest::entry("run1.csv", "readings", b"line,point"),
+                Manifest::entry("survey.toml", "survey.toml", "survey", b"[survey]"),
+                Manifest::entry("run1.csv", "run1.csv", "readings", b"line,point"),
             ],
         )
     }

@@ -6,6 +6,7 @@
 //! fingerprint, printed in the sign-off block. A signature (Ed25519, `ed25519-dalek`) over the manifest
 //! shows who signed what. No file reading here except through the caller's bytes.
 
+pub mod bundle;
 pub mod forensics;
 pub mod keys;
 pub mod manifest;

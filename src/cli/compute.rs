@@ -3,7 +3,7 @@
 use super::output::{csv_text, json_text, Ctx, Format, Table};
 use crate::diag::Error;
 use crate::input::load;
-use crate::pipeline::{evaluate, run_is_valid, Evaluation};
+use crate::pipeline::{evaluate_and_assess, run_is_valid, Evaluation};
 use crate::results::{DisplayUnits, ResultsDoc};
 use crate::units::to_unit;
 use clap::Args;
@@ -22,8 +22,8 @@ pub struct ComputeArgs {
 }
 
 pub fn run(args: ComputeArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let e = evaluate(load(&args.survey)?)?;
-    let doc = ResultsDoc::new(&e);
+    let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
+    let doc = ResultsDoc::new(&e, &a);
     let text = match args.format {
         Format::Json => json_text(&doc),
         Format::Csv => points_csv(&doc),
@@ -141,6 +141,44 @@ fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, ctx: &Ctx) -> String {
         ]);
     }
     out += &t.render();
+    let u95 = |u: &Option<crate::assess::UncertaintyReport>| {
+        u.as_ref()
+            .map(|x| format!("±{:.1} %", x.expanded_relative * 100.0))
+            .unwrap_or_else(|| "—".into())
+    };
+    out += &format!(
+        "expanded uncertainty (95 %): {}{}
+",
+        doc.runs
+            .iter()
+            .map(|r| format!("run {} {}", r.id, u95(&r.uncertainty)))
+            .collect::<Vec<_>>()
+            .join(", "),
+        if doc.average.is_some() {
+            format!(", average {}", u95(&doc.average_uncertainty))
+        } else {
+            String::new()
+        }
+    );
+    let findings: Vec<&crate::checks::Finding> = doc
+        .checks
+        .iter()
+        .chain(doc.runs.iter().flat_map(|r| r.checks.iter()))
+        .collect();
+    let count = |s: crate::checks::Status| findings.iter().filter(|f| f.status == s).count();
+    out += &format!(
+        "checks: {} — {} fail, {} warn (details: annulus check)\n",
+        super::output::status(
+            match doc.verdict {
+                crate::assess::Verdict::Pass => "pass",
+                crate::assess::Verdict::Warn => "warn",
+                crate::assess::Verdict::Fail => "fail",
+            },
+            ctx.color
+        ),
+        count(crate::checks::Status::Fail),
+        count(crate::checks::Status::Warn)
+    );
     if let Some(a) = &doc.average {
         if a.runs.len() > 1 {
             out += &format!(

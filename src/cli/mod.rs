@@ -4,12 +4,19 @@
 //! into a validated setting (quantities parsed, conflicts refused) before calling the library.
 //! This is the only module that prints.
 
+mod calibrate;
+mod check;
 mod compute;
 mod fieldsheet;
 mod init;
+mod keygen;
 mod layout;
 pub mod output;
 mod plane_args;
+mod rata;
+mod report;
+mod review;
+mod verify;
 
 use crate::diag::Error;
 use clap::{Parser, Subcommand};
@@ -57,6 +64,29 @@ pub enum Command {
         after_help = "Examples:\n  annulus compute sample-data/stack/survey.toml\n  annulus compute sample-data/hvac/survey.toml --format json"
     )]
     Compute(compute::ComputeArgs),
+    /// Acceptance checks, data-quality findings and the uncertainty budget; exit 3 if any check fails.
+    #[command(after_help = "Example:\n  annulus check sample-data/stack/survey.toml")]
+    Check(check::CheckArgs),
+    /// The signed-off PDF test report, with the survey, readings and results embedded.
+    #[command(
+        after_help = "Examples:\n  annulus report sample-data/stack/survey.toml -o boiler2.pdf\n  annulus report sample-data/stack/survey.toml -o boiler2.pdf --sign me.key"
+    )]
+    Report(report::ReportArgs),
+    /// Re-derive a report's results from its embedded data and check its hashes and signature.
+    #[command(after_help = "Example:\n  annulus verify boiler2.pdf --key me.pub")]
+    Verify(verify::VerifyArgs),
+    /// Recompute, check and verify every survey and report under a folder.
+    #[command(after_help = "Example:\n  annulus review archive/ --format csv > review.csv")]
+    Review(review::ReviewArgs),
+    /// Write a new Ed25519 signing key pair.
+    #[command(after_help = "Example:\n  annulus keygen dana-ferrow")]
+    Keygen(keygen::KeygenArgs),
+    /// Type S pitot calibration against a standard pitot (EPA Method 2 §10.1).
+    #[command(after_help = "Example:\n  annulus calibrate sample-data/calibration/ts-0417.toml")]
+    Calibrate(calibrate::CalibrateArgs),
+    /// Flow-monitor relative accuracy test audit from paired runs.
+    #[command(after_help = "Example:\n  annulus rata sample-data/rata/unit2-rata.toml")]
+    Rata(rata::RataArgs),
 }
 
 /// Runs the program on `args`; returns the process exit code.
@@ -87,6 +117,13 @@ where
         Command::Layout(a) => layout::run(a, &ctx),
         Command::Init(a) => init::run(a, &ctx),
         Command::Compute(a) => compute::run(a, &ctx),
+        Command::Check(a) => check::run(a, &ctx),
+        Command::Report(a) => report::run(a, &ctx),
+        Command::Verify(a) => verify::run(a, &ctx),
+        Command::Review(a) => review::run(a, &ctx),
+        Command::Keygen(a) => keygen::run(a, &ctx),
+        Command::Calibrate(a) => calibrate::run(a, &ctx),
+        Command::Rata(a) => rata::run(a, &ctx),
     };
     match result {
         Ok(code) => code,

@@ -24,6 +24,7 @@
 //! ```
 
 pub mod attach;
+pub mod build;
 pub mod charts;
 mod demo;
 pub mod engine;

@@ -1,0 +1,91 @@
+//! What a report carries: the survey and readings byte-exact, the results JSON, the manifest and
+//! (when signed) the signature, as PDF attachments with their names and roles.
+
+use super::manifest::{Manifest, Signature, MANIFEST_NAME, RESULTS_NAME, SIGNATURE_NAME};
+use crate::input::Loaded;
+use crate::report::{Attachment, AttachmentError};
+
+/// The embedded files of a report, before the manifest and signature are added.
+#[derive(Debug, Clone)]
+pub struct Bundle {
+    pub files: Vec<(String, String, &'static str, Vec<u8>)>,
+    pub manifest: Manifest,
+}
+
+fn file_name(path: &str) -> String {
+    std::path::Path::new(path)
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| path.to_string())
+}
+
+/// Packs the inputs and results of an evaluated survey. Attachment names are file names, made
+/// unique by prefixing the run id where two runs' files share a name.
+pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
+    let s = &loaded.survey;
+    let mut files: Vec<(String, String, &'static str, Vec<u8>)> = vec![(
+        file_name(&loaded.survey_file.name),
+        loaded.survey_file.name.clone(),
+        "survey",
+        loaded.survey_file.bytes.clone(),
+    )];
+    for (spec, (src, _)) in s.runs.iter().zip(&loaded.runs) {
+        let mut name = file_name(&src.name);
+        if files.iter().any(|(n, _, _, _)| *n == name) {
+            name = format!("run{}-{name}", spec.id);
+        }
+        files.push((name, src.name.clone(), "readings", src.bytes.clone()));
+    }
+    files.push((
+        RESULTS_NAME.to_string(),
+        RESULTS_NAME.to_string(),
+        "results",
+        results_json,
+    ));
+    let manifest = Manifest::new(
+        program,
+        s.convention.name(),
+        &s.date.to_string(),
+        files
+            .iter()
+            .map(|(n, p, r, b)| Manifest::entry(n, p, r, b))
+            .collect(),
+    );
+    Bundle { files, manifest }
+}
+
+impl Bundle {
+    /// The PDF attachments: every file, the manifest, and the signature when given.
+    pub fn attachments(
+        &self,
+        signature: Option<&Signature>,
+    ) -> Result<Vec<Attachment>, AttachmentError> {
+        let mut v = Vec::new();
+        for (name, path, role, bytes) in &self.files {
+            let (mime, what) = match *role {
+                "survey" => ("application/toml", format!("survey file `{path}` as read")),
+                "readings" => ("text/csv", format!("readings `{path}` as read")),
+                _ => (
+                    "application/json",
+                    "results as computed (SI, contract keys)".to_string(),
+                ),
+            };
+            v.push(Attachment::new(name.clone(), bytes.clone(), mime, what)?);
+        }
+        v.push(Attachment::new(
+            MANIFEST_NAME,
+            self.manifest.canonical_bytes(),
+            "application/json",
+            "manifest: SHA-256 of every embedded file; its own SHA-256 is the content fingerprint",
+        )?);
+        if let Some(sig) = signature {
+            v.push(Attachment::new(
+                SIGNATURE_NAME,
+                sig.to_bytes(),
+                "application/json",
+                "Ed25519 signature of the manifest",
+            )?);
+        }
+        Ok(v)
+    }
+}
