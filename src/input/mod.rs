@@ -2,6 +2,8 @@
 //! (the report embeds it) and turned into validated domain values with located diagnostics.
 
 pub mod assess_config;
+pub mod calibration_file;
+pub mod rata_file;
 pub mod readings;
 pub mod survey;
 pub mod text;
