@@ -117,10 +117,8 @@ impl PublicKey {
     /// Short fingerprint printed on reports, e.g. `3f2a 9c01 77be 4d10`.
     pub fn fingerprint(&self) -> String {
         let h = sha256_hex(self.0.as_bytes());
-        h[..16]
-            .as_bytes()
-            .chunks(4)
-            .map(|c| String::from_utf8_lossy(c).into_owned())
+        (0..4)
+            .map(|i| &h[4 * i..4 * i + 4])
             .collect::<Vec<_>>()
             .join(" ")
     }

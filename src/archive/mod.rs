@@ -26,7 +26,7 @@ pub fn hex(bytes: &[u8]) -> String {
 /// Bytes from hex; `None` on odd length or a non-hex digit.
 pub fn unhex(text: &str) -> Option<Vec<u8>> {
     let t = text.trim();
-    if t.len() % 2 != 0 {
+    if !t.len().is_multiple_of(2) {
         return None;
     }
     (0..t.len())

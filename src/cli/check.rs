@@ -30,7 +30,7 @@ const GROUPS: [(Group, &str); 5] = [
     (Group::Data, "data integrity"),
 ];
 
-fn rows<'a>(a: &'a Assessment) -> Vec<(Option<&'a str>, &'a Finding)> {
+fn rows(a: &Assessment) -> Vec<(Option<&str>, &Finding)> {
     let mut v: Vec<(Option<&str>, &Finding)> = a.checks.iter().map(|f| (None, f)).collect();
     for r in &a.runs {
         v.extend(r.checks.iter().map(|f| (Some(r.id.as_str()), f)));
@@ -99,7 +99,7 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                 let mut hidden = 0;
                 let mut items: Vec<&(Option<&str>, &Finding)> =
                     all.iter().filter(|(_, f)| f.group == g).collect();
-                items.sort_by(|x, y| y.1.status.cmp(&x.1.status));
+                items.sort_by_key(|x| std::cmp::Reverse(x.1.status));
                 for (run, f) in items {
                     if !args.all
                         && matches!(

@@ -27,6 +27,7 @@ pub mod attach;
 pub mod build;
 pub mod charts;
 mod demo;
+pub mod documents;
 pub mod engine;
 pub mod format;
 pub mod model;
