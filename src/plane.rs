@@ -38,6 +38,7 @@ pub fn lay_out(
         points_per_line: request.points_per_line,
         minimum_points: required,
         wall_rule: (convention == ConventionId::EpaMethod2).then_some(WallRule::EpaMethod1),
+        printed_table: convention == ConventionId::EpaMethod2,
     };
     let layout = locate_points(duct, &spec)?;
     let required_points = match convention {

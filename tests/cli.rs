@@ -98,12 +98,106 @@ fn compute_runs_on_every_sample_survey() {
 
 #[test]
 fn bad_inputs_are_rejected_with_located_diagnostics() {
-    for case in ["cell-typo", "survey-units", "missing-point", "negative"] {
+    // one problem each (issue policy), then fixtures with several problems reported in one pass
+    for case in [
+        "ragged-row",
+        "text-in-number",
+        "one-missing-point",
+        "duplicate-point",
+        "unknown-unit",
+        "negative-diameter",
+        "unknown-key",
+        "empty-file",
+        "cell-typo",
+        "survey-units",
+        "missing-point",
+        "negative",
+    ] {
         let survey = format!("tests/data/bad/{case}.toml");
         let (code, out, err) = annulus(&["compute", &survey]);
         assert_eq!(code, 1, "{case}: {err}");
         assert_eq!(out, "", "{case}: nothing on stdout");
         golden(&format!("bad-{case}.txt"), &err);
+    }
+}
+
+#[test]
+fn layout_rejects_the_bad_survey_fixtures() {
+    for case in ["unknown-unit", "negative-diameter", "unknown-key"] {
+        let survey = format!("tests/data/bad/{case}.toml");
+        let (code, out, err) = annulus(&["layout", &survey]);
+        assert_eq!(code, 1, "{case}");
+        assert_eq!(out, "");
+        golden(&format!("layout-bad-{case}.txt"), &err);
+    }
+}
+
+#[test]
+fn layout_of_the_72_inch_example() {
+    // issue example: EPA Method 1 Table 1-2 positions for 2 × 6 points on 72 in, marks + 6 in port
+    let (code, out, _) = annulus(&[
+        "layout",
+        "--round",
+        "72in",
+        "--method",
+        "equal-area",
+        "--lines",
+        "2",
+        "--points",
+        "12",
+        "--port-length",
+        "6in",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let pos: Vec<f64> = v["points"].as_array().unwrap()[..6]
+        .iter()
+        .map(|p| p["position_m"].as_f64().unwrap() / 0.0254)
+        .collect();
+    // methods.md §1.1 [D] from Table 1-2: 3.168, 10.512, 21.312, 50.688, 61.488, 68.832 in
+    for (a, b) in pos
+        .iter()
+        .zip([3.168, 10.512, 21.312, 50.688, 61.488, 68.832])
+    {
+        assert!((a - b).abs() < 1e-9, "{a} vs {b}");
+    }
+    let ins = v["points"][0]["insertion_m"].as_f64().unwrap() / 0.0254;
+    assert!((ins - 9.168).abs() < 1e-9);
+}
+
+#[test]
+fn completions_and_man_pages() {
+    let (code, out, _) = annulus(&["completions", "bash"]);
+    assert_eq!(code, 0);
+    assert!(out.contains("annulus") && out.contains("layout"));
+    let dir = tempfile::tempdir().unwrap();
+    let (code, _, _) = annulus(&["man", "-o", dir.path().to_str().unwrap()]);
+    assert_eq!(code, 0);
+    let page = std::fs::read_to_string(dir.path().join("annulus-layout.1")).unwrap();
+    assert!(
+        page.contains("port"),
+        "layout man page documents its options"
+    );
+    // every subcommand's help carries an example
+    for sub in [
+        "layout",
+        "init",
+        "compute",
+        "check",
+        "report",
+        "verify",
+        "review",
+        "keygen",
+        "calibrate",
+        "rata",
+        "completions",
+        "man",
+    ] {
+        let (code, out, _) = annulus(&[sub, "--help"]);
+        assert_eq!(code, 0, "{sub}");
+        assert!(out.contains("Example"), "{sub} --help has no example");
     }
 }
 
@@ -118,7 +212,7 @@ fn layout_from_flags_and_from_a_survey() {
         "--downstream",
         "2D",
         "--points",
-        "6",
+        "12",
     ]);
     assert_eq!(code, 0, "{err}");
     golden("layout-round.txt", &out);
@@ -131,7 +225,7 @@ fn layout_from_flags_and_from_a_survey() {
         "--lines",
         "4",
         "--points",
-        "3",
+        "12",
         "--format",
         "json",
     ]);
@@ -179,8 +273,10 @@ fn layout_refuses_bad_flags() {
         "60in",
         "--method",
         "log-tchebycheff",
+        "--lines",
+        "2",
         "--points",
-        "10",
+        "20",
     ]);
     assert_eq!(code, 1);
     assert!(err.contains("rows for [6, 8] points"), "{err}");
@@ -224,4 +320,62 @@ fn init_writes_a_survey_that_round_trips_and_never_overwrites() {
     let (code, _, err) = annulus(&["init", d, "--round", "96in"]);
     assert_eq!(code, 1);
     assert!(err.contains("already exists"), "{err}");
+}
+
+#[test]
+fn check_passes_the_samples_and_fails_the_bad_plane() {
+    let (code, out, err) = annulus(&["check", "sample-data/stack/survey.toml"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("verdict: pass"), "{out}");
+    let (code, out, _) = annulus(&["check", "sample-data/bad-plane/survey.toml"]);
+    assert_eq!(code, 3);
+    for id in [
+        "straight-run-epa",
+        "cyclonic-flow",
+        "leak-check",
+        "probe-calibration",
+    ] {
+        assert!(out.contains(id), "bad-plane: no `{id}` finding");
+    }
+    assert!(out.contains("RUN 2 IS INVALID AND EXCLUDED FROM THE AVERAGE"));
+    let (code, json, _) = annulus(&[
+        "check",
+        "sample-data/bad-plane/survey.toml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 3);
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert_eq!(v["verdict"], "fail");
+    let (code, json, _) = annulus(&[
+        "compute",
+        "sample-data/bad-plane/survey.toml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "compute reports, check judges");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert_eq!(
+        v["average"]["runs"],
+        serde_json::json!(["1"]),
+        "the run with a failed leak check is left out"
+    );
+    // contract: every run carries its checks and uncertainty
+    for k in [
+        "expanded_relative",
+        "coverage_factor",
+        "effective_dof",
+        "components",
+    ] {
+        assert!(
+            v["runs"][0]["uncertainty"].get(k).is_some(),
+            "no uncertainty.{k}"
+        );
+    }
+    for k in ["id", "status", "message", "source"] {
+        assert!(
+            v["runs"][0]["checks"][0].get(k).is_some(),
+            "no checks[].{k}"
+        );
+    }
 }

@@ -6,6 +6,7 @@
 
 mod calibrate;
 mod check;
+mod completions;
 mod compute;
 mod fieldsheet;
 mod init;
@@ -87,6 +88,12 @@ pub enum Command {
     /// Flow-monitor relative accuracy test audit from paired runs.
     #[command(after_help = "Example:\n  annulus rata sample-data/rata/unit2-rata.toml")]
     Rata(rata::RataArgs),
+    /// Shell completion script for bash, zsh, fish, elvish or PowerShell.
+    #[command(after_help = "Example:\n  annulus completions bash > /etc/bash_completion.d/annulus")]
+    Completions(completions::CompletionsArgs),
+    /// Man pages generated from the command definitions.
+    #[command(after_help = "Example:\n  annulus man -o man/ && man -l man/annulus-layout.1")]
+    Man(completions::ManArgs),
 }
 
 /// Runs the program on `args`; returns the process exit code.
@@ -124,6 +131,8 @@ where
         Command::Keygen(a) => keygen::run(a, &ctx),
         Command::Calibrate(a) => calibrate::run(a, &ctx),
         Command::Rata(a) => rata::run(a, &ctx),
+        Command::Completions(a) => completions::completions(a, &ctx),
+        Command::Man(a) => completions::man(a, &ctx),
     };
     match result {
         Ok(code) => code,

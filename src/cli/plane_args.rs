@@ -25,7 +25,8 @@ pub struct PlaneArgs {
     /// Traverse lines (diameters of a round duct, ports of a rectangular one).
     #[arg(long)]
     pub lines: Option<usize>,
-    /// Points per line.
+    /// Total traverse points, all lines together (e.g. 12 or 24, as EPA Method 1 counts them);
+    /// must divide evenly by the number of lines.
     #[arg(long)]
     pub points: Option<usize>,
     /// Port nipple plus wall thickness, added to the insertion marks, e.g. `5in`.
@@ -151,10 +152,53 @@ impl PlaneArgs {
                     Method::EqualArea
                 }),
         };
+        let lines = self.lines.or(base.and_then(|s| s.layout.lines));
+        let points_per_line = match self.points {
+            None => base.and_then(|s| s.layout.points_per_line),
+            Some(total) => {
+                let is_round = duct.as_ref().map(|d| d.is_round()).unwrap_or(true);
+                let l = match (lines, is_round, method) {
+                    (Some(l), _, _) => Some(l),
+                    // the methods' own default line counts (layout::round)
+                    (None, true, Method::EqualArea) => Some(2),
+                    (None, true, _) => Some(3),
+                    (None, false, _) => duct
+                        .as_ref()
+                        .and_then(|d| match d.shape() {
+                            crate::geometry::Shape::Rectangular { width_m, height_m } => {
+                                crate::layout::rect_grid_for(width_m, height_m, total)
+                            }
+                            _ => None,
+                        })
+                        .map(|(w, _)| w),
+                };
+                match l {
+                    Some(l) if l > 0 && total % l == 0 && total > 0 => Some(total / l),
+                    Some(l) => {
+                        d.push(flag_err(
+                            "points",
+                            &total.to_string(),
+                            format!("{total} points do not divide evenly over {l} lines"),
+                            "give a total that is a multiple of --lines, e.g. --lines 2 --points 24".into(),
+                        ));
+                        None
+                    }
+                    None => {
+                        d.push(flag_err(
+                            "points",
+                            &total.to_string(),
+                            format!("{total} points is not an EPA Method 1 Table 1-1 grid"),
+                            "give --lines as well (the ports across the width)".into(),
+                        ));
+                        None
+                    }
+                }
+            }
+        };
         let request = LayoutRequest {
             method,
-            lines: self.lines.or(base.and_then(|s| s.layout.lines)),
-            points_per_line: self.points.or(base.and_then(|s| s.layout.points_per_line)),
+            lines,
+            points_per_line,
         };
         let upstream_d = match &self.upstream {
             Some(raw) => distance(&mut d, "upstream", raw, duct.as_ref()),

@@ -140,6 +140,13 @@ fn to_dp(unit: &Unit, v: f64) -> Dp {
 
 /// Parses a readings file in row form.
 pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
+    if text.trim().is_empty() {
+        return Err(Error::input(
+            Diagnostic::new("the readings file is empty")
+                .at(Location::file(file))
+                .hint("fill in one row per traverse point under a header such as `line,point,dp[inH2O]` (annulus init writes a blank sheet)"),
+        ));
+    }
     let mut diags = Diagnostics::new();
     let mut rdr = csv::ReaderBuilder::new()
         .trim(csv::Trim::All)
@@ -222,8 +229,11 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                     rec.len(),
                     headers.len()
                 ))
-                .at(Location::at(file, line_no, 1))
-                .hint("every row needs a value (or an empty field) for each column"),
+                .at(Location::at(file, line_no, 1).with_context(format!(
+                    "`{}`",
+                    rec.iter().collect::<Vec<_>>().join(",")
+                )))
+                .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
             );
             continue;
         }

@@ -327,7 +327,17 @@ fn build_plane(cx: &mut Ctx, raw: &RawSurvey) -> Option<PlaneParts> {
                 .quantity(v, "duct.diameter", Dimension::Length)
                 .and_then(|dm| {
                     Duct::round_lined(dm, liner)
-                        .map_err(|e| cx.error(v.span(), "duct.diameter", e.to_string(), None))
+                        .map_err(|e| {
+                            let msg = match e {
+                                crate::geometry::GeometryError::NotPositive { .. } => format!(
+                                    "`duct.diameter` must be a positive length, found `{}`",
+                                    v.get_ref()
+                                ),
+                                other => other.to_string(),
+                            };
+                            let hint = "give the inside diameter, e.g. \"96 in\"".to_string();
+                            cx.error(v.span(), "duct.diameter", msg, Some(hint))
+                        })
                         .ok()
                 }),
             None => {
@@ -340,27 +350,39 @@ fn build_plane(cx: &mut Ctx, raw: &RawSurvey) -> Option<PlaneParts> {
                 None
             }
         },
-        Some(false) => match (&d.width, &d.height) {
-            (Some(w), Some(h)) => {
-                let wm = cx.quantity(w, "duct.width", Dimension::Length);
-                let hm = cx.quantity(h, "duct.height", Dimension::Length);
-                match (wm, hm) {
+        Some(false) => {
+            match (&d.width, &d.height) {
+                (Some(w), Some(h)) => {
+                    let wm = cx.quantity(w, "duct.width", Dimension::Length);
+                    let hm = cx.quantity(h, "duct.height", Dimension::Length);
+                    match (wm, hm) {
                     (Some(wm), Some(hm)) => Duct::rectangular_lined(wm, hm, liner)
-                        .map_err(|e| cx.error(w.span(), "duct.width", e.to_string(), None))
+                        .map_err(|e| {
+                            let msg = match e {
+                                crate::geometry::GeometryError::NotPositive { what, .. } => {
+                                    let raw = if what == "width" { w.get_ref() } else { h.get_ref() };
+                                    format!("`duct.{what}` must be a positive length, found `{raw}`")
+                                }
+                                other => other.to_string(),
+                            };
+                            let hint = "give inside dimensions, e.g. width = \"48 in\"".to_string();
+                            cx.error(w.span(), "duct.width", msg, Some(hint))
+                        })
                         .ok(),
                     _ => None,
                 }
+                }
+                _ => {
+                    cx.error(
+                        d.shape.span(),
+                        "duct.shape",
+                        "a rectangular duct needs `width` (port side) and `height`".into(),
+                        Some("add e.g. width = \"48 in\" and height = \"24 in\" to [duct]".into()),
+                    );
+                    None
+                }
             }
-            _ => {
-                cx.error(
-                    d.shape.span(),
-                    "duct.shape",
-                    "a rectangular duct needs `width` (port side) and `height`".into(),
-                    Some("add e.g. width = \"48 in\" and height = \"24 in\" to [duct]".into()),
-                );
-                None
-            }
-        },
+        }
         None => None,
     };
     let construction = match &d.construction {
@@ -441,14 +463,42 @@ fn toml_error(file: &str, text: &str, e: toml::de::Error) -> Error {
         Some(span) => span_location(file, text, span.start),
         None => Location::file(file),
     };
+    let msg = e.message().trim().to_string();
+    let hint = did_you_mean(&msg).unwrap_or_else(|| {
+        "see the survey format in the README (sample-data/ has complete examples)".to_string()
+    });
     Error::input(
-        Diagnostic::new(format!(
-            "the survey file is not valid: {}",
-            e.message().trim()
-        ))
-        .at(loc)
-        .hint("see the survey format in the README (sample-data/ has complete examples)"),
+        Diagnostic::new(format!("the survey file is not valid: {msg}"))
+            .at(loc)
+            .hint(hint),
     )
+}
+
+/// For serde's "unknown field `x`, expected one of `a`, `b`": the closest expected name.
+fn did_you_mean(msg: &str) -> Option<String> {
+    let rest = msg.strip_prefix("unknown field `")?;
+    let (found, rest) = rest.split_once('`')?;
+    let expected: Vec<&str> = rest.split('`').skip(1).step_by(2).collect();
+    let best = expected
+        .iter()
+        .map(|e| (edit_distance(found, e), *e))
+        .min()?;
+    (best.0 <= 3).then(|| format!("did you mean `{}`?", best.1))
+}
+
+/// Levenshtein distance (small strings: keys of a survey).
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut cur = vec![i + 1];
+        for (j, cb) in b.iter().enumerate() {
+            let sub = prev[j] + usize::from(ca != *cb);
+            cur.push(sub.min(prev[j + 1] + 1).min(cur[j] + 1));
+        }
+        prev = cur;
+    }
+    prev[b.len()]
 }
 
 fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
@@ -869,6 +919,19 @@ leak_check = { before = "pass", after = "pass" }
             panic!("accepted")
         };
         assert_eq!(d.len(), 3, "{d}");
+    }
+
+    #[test]
+    fn unknown_keys_get_a_suggestion() {
+        let text = GOOD.replace("port_length", "port_lenght");
+        let Err(Error::Input(d)) = parse_survey("s.toml", &text) else {
+            panic!("accepted")
+        };
+        assert_eq!(
+            d.items()[0].hint.as_deref(),
+            Some("did you mean `port_length`?")
+        );
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
     }
 
     #[test]

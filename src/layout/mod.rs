@@ -17,6 +17,12 @@ use std::fmt;
 
 pub use advisor::{advise, Advice};
 pub use marks::{probe_marks, MarkStep, ProbeMark};
+pub use rect::table_1_1_grid;
+
+/// The Table 1-1 grid (width × height counts) with exactly `total` points, if there is one.
+pub fn rect_grid_for(width_m: f64, height_m: f64, total: usize) -> Option<(usize, usize)> {
+    table_1_1_grid(width_m, height_m, total).filter(|(w, h)| w * h == total)
+}
 pub use wall::WallRule;
 
 /// The rule that places the points.
@@ -103,6 +109,9 @@ pub struct LayoutSpec {
     /// advisor), e.g. 12 or 24 under EPA Method 1.
     pub minimum_points: Option<usize>,
     pub wall_rule: Option<WallRule>,
+    /// Round equal-area positions as EPA Method 1 Table 1-2 prints them (percent of the diameter
+    /// to 0.1 %), so marks agree with a crew's printed table, instead of the exact centroids.
+    pub printed_table: bool,
 }
 
 impl LayoutSpec {
@@ -113,6 +122,7 @@ impl LayoutSpec {
             points_per_line: None,
             minimum_points: None,
             wall_rule: None,
+            printed_table: false,
         }
     }
 }

@@ -57,12 +57,27 @@ pub(super) fn plan(diameter_m: f64, spec: &LayoutSpec) -> Result<Plan, LayoutErr
                         .into(),
                 });
             }
-            (
-                lines,
-                equal_area_fractions(n),
-                "EPA Method 1 (40 CFR 60 App. A-1) §12.1 equal-area centroids; Table 1-2"
-                    .to_string(),
-            )
+            if spec.printed_table {
+                // Table 1-2 is the formula rounded to 0.1 % of D; rounding keeps the mirror pairs
+                // summing to 100 % (checked by Layout::new).
+                let f = equal_area_fractions(n)
+                    .into_iter()
+                    .map(|x| (x * 1000.0).round() / 1000.0)
+                    .collect();
+                (
+                    lines,
+                    f,
+                    "EPA Method 1 (40 CFR 60 App. A-1) Table 1-2, percent of diameter as printed (0.1 %)"
+                        .to_string(),
+                )
+            } else {
+                (
+                    lines,
+                    equal_area_fractions(n),
+                    "EPA Method 1 (40 CFR 60 App. A-1) §12.1 equal-area centroids (exact); Table 1-2"
+                        .to_string(),
+                )
+            }
         }
         Method::LogLinear | Method::LogTchebycheff => {
             let table = if spec.method == Method::LogLinear {
@@ -149,6 +164,27 @@ mod tests {
         }
         // methods.md §1.1 rounding trap: point 7 of 24 is 16.1498 %
         assert!((f[6] * 100.0 - 16.1498).abs() < 5e-4);
+    }
+
+    #[test]
+    fn printed_table_positions_are_table_1_2_exactly() {
+        // methods.md §1.1 [D]: D = 72 in, N = 12 (2 × 6) -> 3.168, 10.512, 21.312 in from Table 1-2
+        let mut spec = LayoutSpec::new(Method::EqualArea);
+        spec.points_per_line = Some(6);
+        spec.printed_table = true;
+        let p = plan(72.0 * 0.0254, &spec).unwrap();
+        for (f, want) in p
+            .fractions
+            .iter()
+            .zip([3.168, 10.512, 21.312, 50.688, 61.488, 68.832])
+        {
+            assert!((f * 72.0 - want).abs() < 1e-9, "{f}");
+        }
+        // the N = 24 rounding trap: 16.1498 % prints as 16.1 (mirror 83.9)
+        spec.points_per_line = Some(24);
+        let p = plan(1.0, &spec).unwrap();
+        assert_eq!(p.fractions[6], 0.161);
+        assert_eq!(p.fractions[17], 0.839);
     }
 
     #[test]
