@@ -354,3 +354,45 @@ fn en_style_stack() {
     );
     assert_eq!(w.runs[0].wall_factor, 0.995);
 }
+
+#[test]
+fn unit_system_of_the_input_does_not_change_the_result() {
+    // The same EN-style readings written in Pa, mmH2O and inH2O, and the temperature in C, F and K:
+    // once parsed to SI the flows must agree (to the 12 significant digits the CSV carries).
+    let pa: Vec<f64> = [
+        118., 142., 161., 170., 176., 181., 178., 169., 151., 124., 126., 149., 166., 174., 179.,
+        183., 177., 165., 147., 119.,
+    ]
+    .to_vec();
+    let write = |unit: &str, per_pa: f64| {
+        let mut s = format!("line,point,dp[{unit}]\n");
+        for (i, v) in pa.iter().enumerate() {
+            let line = if i < 10 { "A" } else { "B" };
+            s += &format!("{line},{},{:.12e}\n", i % 10 + 1, v * per_pa);
+        }
+        s
+    };
+    let base = eval(
+        &EN_STACK.replace("WALL", ""),
+        &[("r.csv", &write("Pa", 1.0))],
+    );
+    for (unit, per_pa, temp) in [
+        ("mmH2O", 1.0 / annulus::units::PA_PER_MMH2O, "284 F"),
+        ("inH2O", 1.0 / annulus::units::PA_PER_INH2O, "413.15 K"),
+        ("kPa", 1e-3, "140 C"),
+    ] {
+        let survey = EN_STACK
+            .replace("WALL", "")
+            .replace("\"140 C\"", &format!("\"{temp}\""));
+        let other = eval(&survey, &[("r.csv", &write(unit, per_pa))]);
+        let (a, b) = (&base.runs[0], &other.runs[0]);
+        for (x, y) in [
+            (a.mean_velocity_m_s, b.mean_velocity_m_s),
+            (a.actual_flow_m3_s, b.actual_flow_m3_s),
+            (a.dry_standard_flow_m3_s, b.dry_standard_flow_m3_s),
+            (a.mass_flow_kg_s, b.mass_flow_kg_s),
+        ] {
+            close(y, x, 1e-10);
+        }
+    }
+}
