@@ -80,13 +80,21 @@ fn every_section_is_present_with_page_numbers_and_safety() {
             assert!(t.contains(heading), "no section `{heading}`");
         }
         assert!(t.contains("Page 1 of"), "no page numbers");
-        assert!(t.contains("licensed professional") || t.contains("professional judgment"), "no professional-judgment caution");
+        assert!(
+            t.contains("licensed professional") || t.contains("professional judgment"),
+            "no professional-judgment caution"
+        );
     }
 }
 
 #[test]
 fn printed_results_equal_the_compute_json() {
-    let (code, json, _) = annulus(&["compute", "sample-data/stack/survey.toml", "--format", "json"]);
+    let (code, json, _) = annulus(&[
+        "compute",
+        "sample-data/stack/survey.toml",
+        "--format",
+        "json",
+    ]);
     assert_eq!(code, 0);
     let v: serde_json::Value = serde_json::from_slice(&json).unwrap();
     let t = text(&stack().path);
@@ -104,32 +112,55 @@ fn printed_results_equal_the_compute_json() {
         out
     };
     let avg = v["average"]["dry_standard_flow_m3_s"].as_f64().unwrap();
-    assert!(t.contains(&format!("{} dscfm", dscfm(avg))), "average {} not printed", dscfm(avg));
+    assert!(
+        t.contains(&format!("{} dscfm", dscfm(avg))),
+        "average {} not printed",
+        dscfm(avg)
+    );
     for run in v["runs"].as_array().unwrap() {
         let q = dscfm(run["dry_standard_flow_m3_s"].as_f64().unwrap());
         assert!(t.contains(&q), "run flow {q} not printed");
     }
     // and the embedded results.json is the compute JSON byte for byte
     let files = embedded_files(&stack().pdf).unwrap();
-    let results = files.iter().find(|f| f.name == "results.json").expect("results attached");
+    let results = files
+        .iter()
+        .find(|f| f.name == "results.json")
+        .expect("results attached");
     assert_eq!(results.bytes, json);
 }
 
 #[test]
 fn attachments_are_the_inputs_byte_for_byte() {
     let files = embedded_files(&stack().pdf).unwrap();
-    let by = |n: &str| files.iter().find(|f| f.name == n).unwrap_or_else(|| panic!("no {n}"));
-    assert_eq!(by("survey.toml").bytes, std::fs::read(root().join("sample-data/stack/survey.toml")).unwrap());
+    let by = |n: &str| {
+        files
+            .iter()
+            .find(|f| f.name == n)
+            .unwrap_or_else(|| panic!("no {n}"))
+    };
+    assert_eq!(
+        by("survey.toml").bytes,
+        std::fs::read(root().join("sample-data/stack/survey.toml")).unwrap()
+    );
     for i in 1..=3 {
         let name = format!("run{i}.csv");
-        assert_eq!(by(&name).bytes, std::fs::read(root().join("sample-data/stack").join(&name)).unwrap());
+        assert_eq!(
+            by(&name).bytes,
+            std::fs::read(root().join("sample-data/stack").join(&name)).unwrap()
+        );
         assert_eq!(by(&name).mime.as_deref(), Some("text/csv"));
     }
     // the manifest lists every other attachment with its SHA-256
     let m = annulus::archive::Manifest::parse(&by("annulus-manifest.json").bytes).unwrap();
     assert_eq!(m.files.len(), files.len() - 1);
     for e in &m.files {
-        assert_eq!(e.sha256, annulus::archive::sha256_hex(&by(&e.name).bytes), "{}", e.name);
+        assert_eq!(
+            e.sha256,
+            annulus::archive::sha256_hex(&by(&e.name).bytes),
+            "{}",
+            e.name
+        );
     }
     let t = text(&stack().path);
     assert!(t.contains(&m.report_id()), "report id printed");
@@ -139,7 +170,10 @@ fn attachments_are_the_inputs_byte_for_byte() {
 #[test]
 fn two_renders_are_byte_identical_and_metadata_is_set() {
     let again = render("sample-data/stack/survey.toml");
-    assert!(again.pdf == stack().pdf, "two renders of the same input differ");
+    assert!(
+        again.pdf == stack().pdf,
+        "two renders of the same input differ"
+    );
     let info = Command::new("pdfinfo").arg(&again.path).output().unwrap();
     let info = String::from_utf8_lossy(&info.stdout);
     assert!(info.contains("Boiler 2 stack, annual flow test"), "{info}");
@@ -149,7 +183,10 @@ fn two_renders_are_byte_identical_and_metadata_is_set() {
 #[test]
 fn hvac_report_states_design_and_standard_air() {
     let t = text(&hvac().path);
-    assert!(t.contains("% of design") || t.contains("design"), "design comparison");
+    assert!(
+        t.contains("% of design") || t.contains("design"),
+        "design comparison"
+    );
     assert!(t.contains("scfm"));
     assert!(t.contains("1096.2"), "the IP velocity constant is printed");
 }
@@ -158,7 +195,11 @@ fn hvac_report_states_design_and_standard_air() {
 fn a_broken_user_template_is_located() {
     let dir = tempfile::tempdir().unwrap();
     let tpl = dir.path().join("firm.typ");
-    std::fs::write(&tpl, "#let d = json(\"/data.json\")\n= #d.header.title\n#(1 +\n").unwrap();
+    std::fs::write(
+        &tpl,
+        "#let d = json(\"/data.json\")\n= #d.header.title\n#(1 +\n",
+    )
+    .unwrap();
     let out = dir.path().join("r.pdf");
     let (code, _, err) = annulus(&[
         "report",

@@ -89,7 +89,9 @@ pub enum Command {
     #[command(after_help = "Example:\n  annulus rata sample-data/rata/unit2-rata.toml")]
     Rata(rata::RataArgs),
     /// Shell completion script for bash, zsh, fish, elvish or PowerShell.
-    #[command(after_help = "Example:\n  annulus completions bash > /etc/bash_completion.d/annulus")]
+    #[command(
+        after_help = "Example:\n  annulus completions bash > /etc/bash_completion.d/annulus"
+    )]
     Completions(completions::CompletionsArgs),
     /// Man pages generated from the command definitions.
     #[command(after_help = "Example:\n  annulus man -o man/ && man -l man/annulus-layout.1")]
