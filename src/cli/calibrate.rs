@@ -60,7 +60,7 @@ fn leg_of(c: &LoadedCalibration, leg: Leg) -> &LegResult {
     }
 }
 
-/// (coefficient, |Cp − C̄p|) of each reading, in file order.
+/// (coefficient, |Cp − leg mean|) of each reading, in file order.
 fn per_reading(c: &LoadedCalibration) -> Vec<(f64, f64)> {
     c.readings
         .rows
@@ -81,7 +81,7 @@ fn check_label(id: &str) -> &'static str {
     match id {
         "leg-a-deviation" => "leg A deviation σ",
         "leg-b-deviation" => "leg B deviation σ",
-        "leg-difference" => "|C̄p(A) − C̄p(B)|",
+        "leg-difference" => "|mean A − mean B|",
         _ => "criterion",
     }
 }
@@ -104,21 +104,24 @@ fn standard_text(c: &LoadedCalibration) -> String {
         .unwrap_or_default();
     if cal.standard_coefficient_assumed {
         format!(
-            "{id}Cp(std) {} assumed (not given; the EPA Method 2 §10.1 value for a standard pitot tube)",
+            "{id}Cp(std) {} assumed (none given; EPA Method 2 §10.1)",
             fixed(cal.standard_coefficient, 2)
         )
     } else {
-        format!("{id}Cp(std) {} (given)", fixed(cal.standard_coefficient, CP_DECIMALS))
+        format!(
+            "{id}Cp(std) {} (given)",
+            fixed(cal.standard_coefficient, CP_DECIMALS)
+        )
     }
 }
 
 fn velocity_text(c: &LoadedCalibration) -> Option<String> {
     c.meta.velocity.as_ref().map(|(v, raw)| {
-        format!(
-            "{raw} ({} m/s, {} fpm)",
-            fixed(*v, 2),
-            fixed(to_unit(*v, "fpm"), 0)
-        )
+        if raw.ends_with("m/s") {
+            format!("{raw} ({} fpm)", fixed(to_unit(*v, "fpm"), 0))
+        } else {
+            format!("{raw} ({} m/s)", fixed(*v, 2))
+        }
     })
 }
 
@@ -189,7 +192,7 @@ fn table(c: &LoadedCalibration, ctx: &Ctx) -> String {
         &format!("Δp std [{}]", c.readings.standard_unit),
         &format!("Δp S [{}]", c.readings.s_type_unit),
         "Cp(s)",
-        "|Cp(s) − C̄p|",
+        "|Cp(s) − mean|",
         "note",
     ])
     .right(&[1, 2, 3, 4, 5]);
@@ -207,7 +210,7 @@ fn table(c: &LoadedCalibration, ctx: &Ctx) -> String {
     out += &t.render();
     out.push('\n');
 
-    let mut t = Table::new(&["leg", "pairs", "mean C̄p", "deviation σ"]).right(&[1, 2, 3]);
+    let mut t = Table::new(&["leg", "pairs", "mean Cp(s)", "deviation σ"]).right(&[1, 2, 3]);
     for leg in [&cal.leg_a, &cal.leg_b] {
         t.row(vec![
             leg.leg.label().to_string(),
@@ -231,7 +234,7 @@ fn table(c: &LoadedCalibration, ctx: &Ctx) -> String {
     out += &t.render();
     out += &format!("\n{}\n", verdict_text(c));
     if !ctx.quiet {
-        out += "σ is the mean absolute deviation Σ|Cp(s) − C̄p|/n of a leg, as Method 2 defines it (not the standard deviation).\n";
+        out += "σ is a leg's mean absolute deviation Σ|Cp(s) − mean|/n, as Method 2 defines it (not the standard deviation).\n";
     }
     out
 }
@@ -359,7 +362,13 @@ fn certificate_id(c: &LoadedCalibration) -> String {
         .meta
         .probe
         .chars()
-        .map(|ch| if ch.is_ascii_alphanumeric() { ch.to_ascii_uppercase() } else { '-' })
+        .map(|ch| {
+            if ch.is_ascii_alphanumeric() {
+                ch.to_ascii_uppercase()
+            } else {
+                '-'
+            }
+        })
         .collect();
     format!("CAL-{probe}-{}", c.meta.date.format("%Y%m%d"))
 }
@@ -447,14 +456,25 @@ fn certificate_data(c: &LoadedCalibration) -> Value {
         "checks": checks,
         "verdict": status_word(cal.accepted()),
         "verdict_text": verdict_text(c),
+        "verdict_short": if cal.accepted() {
+            format!(
+                "Accepted: assign Cp(s) = {}, the mean of the leg A and leg B means.",
+                fixed(cal.assigned_coefficient(), CP_DECIMALS)
+            )
+        } else {
+            let why: Vec<&str> = failed_checks(c).iter().map(|k| check_label(k.id)).collect();
+            format!(
+                "Rejected on {}: no coefficient is assigned; repair or re-check the probe and calibrate again.",
+                why.join(" and ")
+            )
+        },
         "assigned": if cal.accepted() { fixed(cal.assigned_coefficient(), CP_DECIMALS) } else { "none".to_string() },
-        "assigned_unrounded": fixed(cal.assigned_coefficient(), CP_DECIMALS),
         "source": cal.limits.source,
         "method": format!(
             "Each pair was read at the same point with the standard pitot and the Type S pitot. \
-             Cp(s) = Cp(std)·√(Δp std / Δp S) per reading; per leg the mean C̄p and the deviation \
-             σ = Σ|Cp(s) − C̄p|/n (mean absolute deviation). Accepted when σ ≤ {} for each leg \
-             and |C̄p(A) − C̄p(B)| ≤ {} ({}).",
+             Cp(s) = Cp(std)·√(Δp std / Δp S) per reading; per leg the mean and the deviation \
+             σ = Σ|Cp(s) − mean|/n (mean absolute deviation, not the standard deviation). \
+             Accepted when σ ≤ {} for each leg and |mean A − mean B| ≤ {} ({}).",
             fixed(cal.limits.max_leg_deviation, 2),
             fixed(cal.limits.max_leg_difference, 2),
             cal.limits.source
@@ -475,7 +495,11 @@ fn certificate_data(c: &LoadedCalibration) -> Value {
 
 fn write_certificate(c: &LoadedCalibration, out: &std::path::Path) -> Result<(), Error> {
     let attachments = vec![
-        attachment(&c.file, "application/toml", "Calibration file (TOML) as read")?,
+        attachment(
+            &c.file,
+            "application/toml",
+            "Calibration file (TOML) as read",
+        )?,
         attachment(
             &c.readings_file,
             "text/csv",
@@ -488,7 +512,10 @@ fn write_certificate(c: &LoadedCalibration, out: &std::path::Path) -> Result<(),
         template_name: "calibration.typ".into(),
         data: certificate_data(c),
         title: format!("Type S pitot calibration certificate, probe {}", m.probe),
-        author: vec![m.calibrated_by.clone(), m.organisation.clone().unwrap_or_default()],
+        author: vec![
+            m.calibrated_by.clone(),
+            m.organisation.clone().unwrap_or_default(),
+        ],
         keywords: vec![
             "pitot calibration".into(),
             "EPA Method 2".into(),
@@ -499,7 +526,11 @@ fn write_certificate(c: &LoadedCalibration, out: &std::path::Path) -> Result<(),
             certificate_id(c),
             m.probe,
             m.date,
-            if c.calibration.accepted() { "accepted" } else { "rejected" }
+            if c.calibration.accepted() {
+                "accepted"
+            } else {
+                "rejected"
+            }
         ),
         ident: format!(
             "annulus-calibration/{}/{}",
