@@ -222,29 +222,44 @@ struct RunCharts {
     profiles: String,
 }
 
+/// Document metadata and the attachment list the entry point reads from `/meta.json`.
 #[derive(Serialize)]
-struct Meta<'a> {
-    title: &'a str,
-    author: Vec<&'a str>,
-    keywords: Vec<String>,
-    description: String,
-    date: MetaDate,
-    attachments: Vec<MetaAttachment<'a>>,
+pub(crate) struct Meta<'a> {
+    pub(crate) title: &'a str,
+    pub(crate) author: Vec<&'a str>,
+    pub(crate) keywords: Vec<String>,
+    pub(crate) description: String,
+    pub(crate) date: MetaDate,
+    pub(crate) attachments: Vec<MetaAttachment<'a>>,
 }
 
 #[derive(Serialize)]
-struct MetaDate {
+pub(crate) struct MetaDate {
     year: i32,
     month: u32,
     day: u32,
 }
 
 #[derive(Serialize)]
-struct MetaAttachment<'a> {
+pub(crate) struct MetaAttachment<'a> {
     name: &'a str,
     path: String,
     mime: &'a str,
     description: &'a str,
+}
+
+/// The attachment list of `/meta.json`: attachment `i` is served at `/attachments/i`.
+pub(crate) fn meta_attachments(attachments: &[Attachment]) -> Vec<MetaAttachment<'_>> {
+    attachments
+        .iter()
+        .enumerate()
+        .map(|(i, a)| MetaAttachment {
+            name: a.name(),
+            path: format!("/attachments/{i}"),
+            mime: a.mime(),
+            description: a.description(),
+        })
+        .collect()
 }
 
 fn file_id(path: &str) -> Result<FileId, RenderError> {
@@ -253,7 +268,7 @@ fn file_id(path: &str) -> Result<FileId, RenderError> {
     Ok(RootedPath::new(VirtualRoot::Project, vpath).intern())
 }
 
-fn to_json(value: &impl Serialize) -> Result<Bytes, RenderError> {
+pub(crate) fn to_json(value: &impl Serialize) -> Result<Bytes, RenderError> {
     serde_json::to_vec(value)
         .map(Bytes::new)
         .map_err(|e| RenderError::Internal(e.to_string()))
@@ -351,16 +366,16 @@ impl RenderWorld<'_> {
 }
 
 /// What one compile is made of.
-struct Job<'a> {
-    template: &'a str,
-    template_name: &'a str,
-    data: Bytes,
-    charts: Bytes,
-    meta: Bytes,
-    attachments: &'a [Attachment],
-    date: chrono::NaiveDate,
-    ident: String,
-    standard: PdfStandard,
+pub(crate) struct Job<'a> {
+    pub(crate) template: &'a str,
+    pub(crate) template_name: &'a str,
+    pub(crate) data: Bytes,
+    pub(crate) charts: Bytes,
+    pub(crate) meta: Bytes,
+    pub(crate) attachments: &'a [Attachment],
+    pub(crate) date: chrono::NaiveDate,
+    pub(crate) ident: String,
+    pub(crate) standard: PdfStandard,
 }
 
 impl Engine {
@@ -497,17 +512,7 @@ impl Engine {
                 h.report_id, h.site, h.plane_location, h.content_sha256
             ),
             date: meta_date(options.date),
-            attachments: options
-                .attachments
-                .iter()
-                .enumerate()
-                .map(|(i, a)| MetaAttachment {
-                    name: a.name(),
-                    path: format!("/attachments/{i}"),
-                    mime: a.mime(),
-                    description: a.description(),
-                })
-                .collect(),
+            attachments: meta_attachments(&options.attachments),
         };
         self.run(Job {
             template,
@@ -522,7 +527,8 @@ impl Engine {
         })
     }
 
-    fn run(&self, job: Job<'_>) -> Result<Rendered, RenderError> {
+    /// Compiles and exports one job in a world that serves exactly its files.
+    pub(crate) fn run(&self, job: Job<'_>) -> Result<Rendered, RenderError> {
         use chrono::Datelike;
         let today = u8::try_from(job.date.month())
             .ok()
@@ -562,7 +568,7 @@ impl Engine {
     }
 }
 
-fn meta_date(date: chrono::NaiveDate) -> MetaDate {
+pub(crate) fn meta_date(date: chrono::NaiveDate) -> MetaDate {
     use chrono::Datelike;
     MetaDate {
         year: date.year(),
