@@ -152,6 +152,12 @@ pub const UNITS: &[Unit] = &[
     u("L/s", Dimension::Flow, 0.001),
     u("cfm", Dimension::Flow, FT3_M3 / 60.0),
     u("ft3/min", Dimension::Flow, FT3_M3 / 60.0),
+    u("ft3/h", Dimension::Flow, FT3_M3 / 3600.0),
+    u("cfh", Dimension::Flow, FT3_M3 / 3600.0),
+    // Standard-condition labels (flow monitors report scfh): the volume unit only; the reference
+    // conditions are stated by the convention or the RATA file, never by the label.
+    u("scfm", Dimension::Flow, FT3_M3 / 60.0),
+    u("scfh", Dimension::Flow, FT3_M3 / 3600.0),
     // velocity
     u("m/s", Dimension::Velocity, 1.0),
     u("ft/s", Dimension::Velocity, FOOT_M),
