@@ -79,6 +79,20 @@ pub struct Probe {
     pub calibrated: Option<NaiveDate>,
     /// Specific gravity of the gauge fluid when Δp is read as a liquid column (`dp[in]`, `dp[mm]`).
     pub gauge_fluid_sg: Option<f64>,
+    /// The calibration file the coefficient came from, when the survey references one.
+    pub calibration: Option<ProbeCalibration>,
+}
+
+/// A Type S calibration a survey references (`annulus calibrate` format).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ProbeCalibration {
+    /// Path as written in the survey.
+    pub file: String,
+    pub probe: String,
+    pub date: NaiveDate,
+    pub assigned_coefficient: f64,
+    /// All EPA Method 2 §10.1 acceptance criteria met.
+    pub accepted: bool,
 }
 
 /// The dry gas: a composition, a given molar mass, or air.

@@ -379,3 +379,59 @@ fn check_passes_the_samples_and_fails_the_bad_plane() {
         );
     }
 }
+
+#[test]
+fn a_survey_takes_its_coefficient_from_a_calibration_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let stack = root().join("sample-data/stack");
+    let survey = std::fs::read_to_string(stack.join("survey.toml")).unwrap();
+    for i in 1..=3 {
+        std::fs::copy(
+            stack.join(format!("run{i}.csv")),
+            dir.path().join(format!("run{i}.csv")),
+        )
+        .unwrap();
+    }
+    let cal = root().join("tests/data/calibration");
+    for f in ["rejected.toml", "rejected.csv"] {
+        std::fs::copy(cal.join(f), dir.path().join(f)).unwrap();
+    }
+    // a calibration that fails Method 2 §10.1 acceptance is a failed finding
+    let rejected = survey.replace("../calibration/ts-0417.toml", "rejected.toml");
+    let p = dir.path().join("rejected-survey.toml");
+    std::fs::write(&p, rejected).unwrap();
+    let (code, out, err) = annulus(&["check", p.to_str().unwrap()]);
+    assert_eq!(code, 3, "{err}");
+    assert!(out.contains("FAILS Method 2 §10.1 acceptance"), "{out}");
+    // a coefficient that contradicts the calibration is refused, located
+    let sub = dir.path().join("stack");
+    let calib = dir.path().join("calibration");
+    std::fs::create_dir_all(&sub).unwrap();
+    std::fs::create_dir_all(&calib).unwrap();
+    for f in ["ts-0417.toml", "ts-0417.csv"] {
+        std::fs::copy(
+            root().join("sample-data/calibration").join(f),
+            calib.join(f),
+        )
+        .unwrap();
+    }
+    for i in 1..=3 {
+        std::fs::copy(
+            stack.join(format!("run{i}.csv")),
+            sub.join(format!("run{i}.csv")),
+        )
+        .unwrap();
+    }
+    let conflicting = survey.replace(
+        "serial = \"TS-0417\"",
+        "serial = \"TS-0417\"\ncoefficient = 0.81",
+    );
+    let q = sub.join("survey.toml");
+    std::fs::write(&q, conflicting).unwrap();
+    let (code, _, err) = annulus(&["compute", q.to_str().unwrap()]);
+    assert_eq!(code, 1);
+    assert!(
+        err.contains("differs from 0.8396 assigned by the calibration file"),
+        "{err}"
+    );
+}

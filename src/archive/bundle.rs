@@ -36,6 +36,29 @@ pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
         }
         files.push((name, src.name.clone(), "readings", src.bytes.clone()));
     }
+    if let (Some((cal, cal_readings)), Some(pc)) = (&loaded.calibration, &s.probe.calibration) {
+        // paths relative to the survey's folder, so the files can be laid out again from the PDF
+        let dir = loaded
+            .survey_file
+            .path
+            .parent()
+            .unwrap_or(std::path::Path::new(""));
+        let readings_rel = cal_readings
+            .path
+            .strip_prefix(dir)
+            .map(|p| p.to_string_lossy().into_owned())
+            .unwrap_or_else(|_| cal_readings.name.clone());
+        for (src, path, role) in [
+            (cal, pc.file.clone(), "calibration"),
+            (cal_readings, readings_rel, "calibration-readings"),
+        ] {
+            let mut name = file_name(&src.name);
+            if files.iter().any(|(n, _, _, _)| *n == name) {
+                name = format!("calibration-{name}");
+            }
+            files.push((name, path, role, src.bytes.clone()));
+        }
+    }
     files.push((
         RESULTS_NAME.to_string(),
         RESULTS_NAME.to_string(),
@@ -65,6 +88,11 @@ impl Bundle {
             let (mime, what) = match *role {
                 "survey" => ("application/toml", format!("survey file `{path}` as read")),
                 "readings" => ("text/csv", format!("readings `{path}` as read")),
+                "calibration" => ("application/toml", format!("pitot calibration `{path}` as read")),
+                "calibration-readings" => (
+                    "text/csv",
+                    format!("pitot calibration readings `{path}` as read"),
+                ),
                 _ => (
                     "application/json",
                     "results as computed (SI, contract keys)".to_string(),

@@ -118,7 +118,36 @@ fn probe_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
         Some(serial) => format!("pitot {serial}"),
         None => "the pitot".to_string(),
     };
-    vec![match p.calibrated {
+    let mut out = Vec::new();
+    if let Some(c) = &p.calibration {
+        // EPA Method 2 §10.1: a Type S tube whose calibration fails acceptance may not be used.
+        let mut f = if c.accepted {
+            rule.finding(
+                Status::Pass,
+                Some(c.assigned_coefficient),
+                "1",
+                format!(
+                    "calibration `{}` of {} on {} meets Method 2 §10.1 acceptance; assigned Cp {:.4}",
+                    c.file, c.probe, c.date, c.assigned_coefficient
+                ),
+                &[],
+            )
+        } else {
+            rule.finding(
+                Status::Fail,
+                Some(c.assigned_coefficient),
+                "1",
+                format!(
+                    "calibration `{}` of {} on {} FAILS Method 2 §10.1 acceptance (leg deviations or A–B difference over 0.01): the probe's coefficient is not usable",
+                    c.file, c.probe, c.date
+                ),
+                &[],
+            )
+        };
+        f.subject = Some("calibration file".into());
+        out.push(f);
+    }
+    out.push(match p.calibrated {
         Some(date) => judge(rule, &what, date, interval, s.survey.date),
         None if p.kind == ProbeKind::SType => rule.finding(
             Status::Warn,
@@ -130,7 +159,8 @@ fn probe_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
         None => rule.not_applicable(
             "standard pitot with no calibration date: its coefficient is taken by design",
         ),
-    }]
+    });
+    out
 }
 
 fn instrument_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {

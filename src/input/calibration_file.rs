@@ -41,7 +41,7 @@
 //! more are accepted.
 
 use super::text::{span_location, Spanned};
-use super::{read_text, SourceFile};
+use super::SourceFile;
 use crate::calibration::{
     calibrate, Calibration, CalibrationError, Leg, PairedReading, METHOD_2_LIMITS,
     MIN_READINGS_PER_SIDE,
@@ -208,13 +208,18 @@ impl LoadedCalibration {
 /// Reads a calibration file and its readings and computes the calibration; every input problem
 /// is reported, located, in one pass.
 pub fn load(path: &Path) -> Result<LoadedCalibration, Error> {
+    load_with(path, &|p| std::fs::read(p))
+}
+
+/// [`load`] with the bytes of each file supplied by `source` (a survey loaded from memory).
+pub fn load_with(path: &Path, source: crate::input::FileSource) -> Result<LoadedCalibration, Error> {
     let name = path.display().to_string();
-    let (bytes, text) = read_text(path, &name)?;
+    let (bytes, text) = crate::input::read_text_with(path, &name, source)?;
     let spec = parse_calibration(&name, &text)?;
     let dir = path.parent().unwrap_or(Path::new("."));
     let rpath = dir.join(&spec.readings);
     let rname = rpath.display().to_string();
-    let (rbytes, rtext) = read_text(&rpath, &rname)?;
+    let (rbytes, rtext) = crate::input::read_text_with(&rpath, &rname, source)?;
     let readings = parse_readings(&rname, &rtext)?;
     let calibration = calibrate(
         &readings.leg(Leg::A),

@@ -29,6 +29,8 @@ pub struct Loaded {
     pub survey: Survey,
     /// One per `[[run]]`, in survey order.
     pub runs: Vec<(SourceFile, RunReadings)>,
+    /// The probe calibration file and its readings, when the survey references one.
+    pub calibration: Option<(SourceFile, SourceFile)>,
 }
 
 /// Reads a file as UTF-8 text, with a located error.
@@ -75,8 +77,15 @@ pub fn load(path: &Path) -> Result<Loaded, Error> {
 pub fn load_with(path: &Path, source: FileSource) -> Result<Loaded, Error> {
     let name = path.display().to_string();
     let (bytes, text) = read_text_with(path, &name, source)?;
-    let survey = survey::parse_survey(&name, &text)?;
     let dir = path.parent().unwrap_or(Path::new("."));
+    let calibration_files = std::cell::RefCell::new(None);
+    let resolve = |rel: &str| {
+        let c = calibration_file::load_with(&dir.join(rel), source)?;
+        let record = c.record();
+        *calibration_files.borrow_mut() = Some((c.file, c.readings_file));
+        Ok(record)
+    };
+    let survey = survey::parse_survey_with(&name, &text, Some(&resolve))?;
     let mut diags = Diagnostics::new();
     let mut runs = Vec::new();
     for run in &survey.runs {
@@ -117,5 +126,6 @@ pub fn load_with(path: &Path, source: FileSource) -> Result<Loaded, Error> {
         },
         survey,
         runs,
+        calibration: calibration_files.into_inner(),
     })
 }

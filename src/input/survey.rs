@@ -8,6 +8,7 @@ use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::geometry::Duct;
 use crate::layout::Method;
 use crate::survey::*;
+use crate::input::calibration_file::CalibrationRecord;
 use crate::units::{parse_quantity, Dimension};
 use chrono::NaiveDate;
 use serde::Deserialize;
@@ -82,7 +83,9 @@ struct RawLayout {
 #[serde(deny_unknown_fields)]
 struct RawProbe {
     kind: S,
-    coefficient: Spanned<f64>,
+    coefficient: Option<Spanned<f64>>,
+    /// A calibration file (`annulus calibrate` format), relative to the survey.
+    calibration: Option<S>,
     serial: Option<String>,
     calibrated: Option<Spanned<toml::Value>>,
     gauge_fluid_sg: Option<Spanned<f64>>,
@@ -275,13 +278,26 @@ impl Ctx<'_> {
 
 /// Parses survey text. `file` names the file in diagnostics.
 pub fn parse_survey(file: &str, text: &str) -> Result<Survey, Error> {
+    parse_survey_with(file, text, None)
+}
+
+/// Reads a calibration file a survey references (path as written in the survey).
+pub type CalibrationResolver<'a> = &'a dyn Fn(&str) -> Result<CalibrationRecord, Error>;
+
+/// [`parse_survey`] with a way to read a `[probe] calibration` file; without one such a survey is
+/// refused with a hint (files are read by `input::load`).
+pub fn parse_survey_with(
+    file: &str,
+    text: &str,
+    calibration: Option<CalibrationResolver>,
+) -> Result<Survey, Error> {
     let raw: RawSurvey = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
     let mut cx = Ctx {
         file,
         text,
         diags: Diagnostics::new(),
     };
-    let survey = build(&mut cx, raw);
+    let survey = build(&mut cx, raw, calibration);
     match survey {
         Some(s) if cx.diags.is_empty() => Ok(s),
         _ => {
@@ -501,7 +517,11 @@ fn edit_distance(a: &str, b: &str) -> usize {
     prev[b.len()]
 }
 
-fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
+fn build(
+    cx: &mut Ctx,
+    raw: RawSurvey,
+    resolver: Option<CalibrationResolver>,
+) -> Option<Survey> {
     let m = &raw.survey;
     let date = cx.date(&m.date, "survey.date");
     let reference = m.reference.as_ref().and_then(|r| {
@@ -531,19 +551,84 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
             ("standard", ProbeKind::Standard),
         ],
     );
-    let coefficient = *p.coefficient.get_ref();
-    if !(coefficient > 0.5 && coefficient <= 1.05) {
-        cx.error(
-            p.coefficient.span(),
-            "probe.coefficient",
-            format!("a pitot coefficient of {coefficient} is not plausible"),
-            Some("S-type pitots calibrate near 0.84, standard pitots 0.99".into()),
-        );
+    let given = p.coefficient.as_ref().map(|c| (*c.get_ref(), c.span()));
+    if let Some((c, span)) = &given {
+        if !(*c > 0.5 && *c <= 1.05) {
+            cx.error(
+                span.clone(),
+                "probe.coefficient",
+                format!("a pitot coefficient of {c} is not plausible"),
+                Some("S-type pitots calibrate near 0.84, standard pitots 0.99".into()),
+            );
+        }
     }
-    let calibrated = p
+    let mut calibrated = p
         .calibrated
         .as_ref()
         .and_then(|v| cx.date(v, "probe.calibrated"));
+    let mut calibration = None;
+    let coefficient = match (&p.calibration, given) {
+        (None, Some((c, _))) => Some(c),
+        (None, None) => {
+            cx.error(
+                p.kind.span(),
+                "probe",
+                "[probe] needs a `coefficient` or a `calibration` file".into(),
+                Some("add coefficient = 0.84, or calibration = \"ts-0417.toml\" (annulus calibrate format)".into()),
+            );
+            None
+        }
+        (Some(path), given) => match resolver {
+            None => {
+                cx.error(
+                    path.span(),
+                    "probe.calibration",
+                    "a calibration file is read only when the survey is loaded with its files".into(),
+                    None,
+                );
+                None
+            }
+            Some(resolve) => match resolve(path.get_ref()) {
+                Err(Error::Input(d)) => {
+                    cx.diags.extend(d);
+                    None
+                }
+                Err(other) => {
+                    cx.error(path.span(), "probe.calibration", other.to_string(), None);
+                    None
+                }
+                Ok(rec) => {
+                    let assigned = rec.assigned_coefficient;
+                    let given_value = given.as_ref().map(|(c, _)| *c);
+                    match given {
+                        Some((c, span)) if (c - assigned).abs() > 0.0005 => {
+                            cx.error(
+                                span,
+                                "probe.coefficient",
+                                format!(
+                                    "coefficient {c} differs from {assigned:.4} assigned by the calibration file `{}`",
+                                    path.get_ref()
+                                ),
+                                Some("remove `coefficient` to use the calibration's, or fix one of them".into()),
+                            );
+                        }
+                        _ => {}
+                    }
+                    if calibrated.is_none() {
+                        calibrated = Some(rec.date);
+                    }
+                    calibration = Some(ProbeCalibration {
+                        file: path.get_ref().clone(),
+                        probe: rec.probe.clone(),
+                        date: rec.date,
+                        assigned_coefficient: assigned,
+                        accepted: rec.accepted,
+                    });
+                    Some(given_value.unwrap_or(assigned))
+                }
+            },
+        },
+    };
     let gauge_fluid_sg = p.gauge_fluid_sg.as_ref().and_then(|v| {
         let sg = *v.get_ref();
         if sg > 0.0 && sg < 20.0 {
@@ -821,10 +906,11 @@ fn build(cx: &mut Ctx, raw: RawSurvey) -> Option<Survey> {
         reference,
         probe: Probe {
             kind: kind?,
-            coefficient,
+            coefficient: coefficient?,
             serial: raw.probe.serial.clone(),
             calibrated,
             gauge_fluid_sg,
+            calibration,
         },
         gas: Gas {
             barometric_pa: barometric_pa?,
