@@ -193,6 +193,23 @@ pub struct DisplayUnits {
 }
 
 impl DisplayUnits {
+    /// SI display units for any convention (`compute --si`).
+    pub fn si() -> DisplayUnits {
+        let s = |label, unit, per_si, decimals| Shown {
+            label,
+            unit,
+            per_si,
+            decimals,
+        };
+        DisplayUnits {
+            velocity: s("velocity", "m/s", 1.0, 3),
+            actual: s("actual flow", "m³/h", 3600.0, 0),
+            standard: s("standard flow, wet", "m³/h (ref, wet)", 3600.0, 0),
+            dry_standard: s("standard flow, dry", "m³/h (ref, dry)", 3600.0, 0),
+            mass: s("mass flow", "kg/h", 3600.0, 0),
+        }
+    }
+
     pub fn for_convention(c: &Convention) -> DisplayUnits {
         let s = |label, unit, per_si, decimals| Shown {
             label,

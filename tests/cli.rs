@@ -435,3 +435,13 @@ fn a_survey_takes_its_coefficient_from_a_calibration_file() {
         "{err}"
     );
 }
+
+#[test]
+fn compute_prints_si_on_request() {
+    let (code, us, _) = annulus(&["compute", "sample-data/stack/survey.toml"]);
+    assert_eq!(code, 0);
+    assert!(us.contains("dscfm"));
+    let (code, si, _) = annulus(&["compute", "sample-data/stack/survey.toml", "--si"]);
+    assert_eq!(code, 0);
+    assert!(si.contains("m³/h (ref, dry)") && !si.contains("dscfm"), "{si}");
+}

@@ -19,6 +19,9 @@ pub struct ComputeArgs {
     /// Show every point's reading and velocity in the table.
     #[arg(long)]
     pub points: bool,
+    /// Print the table in SI units (m/s, m³/h, kg/h, °C) whatever the convention.
+    #[arg(long)]
+    pub si: bool,
 }
 
 pub fn run(args: ComputeArgs, ctx: &Ctx) -> Result<i32, Error> {
@@ -27,7 +30,7 @@ pub fn run(args: ComputeArgs, ctx: &Ctx) -> Result<i32, Error> {
     let text = match args.format {
         Format::Json => json_text(&doc),
         Format::Csv => points_csv(&doc),
-        Format::Table => table(&e, &doc, args.points, ctx),
+        Format::Table => table(&e, &doc, args.points, args.si, ctx),
     };
     super::emit(&text)?;
     Ok(0)
@@ -70,9 +73,13 @@ fn points_csv(doc: &ResultsDoc) -> String {
     )
 }
 
-fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, ctx: &Ctx) -> String {
+fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, si: bool, ctx: &Ctx) -> String {
     let s = &e.loaded.survey;
-    let u = DisplayUnits::for_convention(&e.convention);
+    let u = if si {
+        DisplayUnits::si()
+    } else {
+        DisplayUnits::for_convention(&e.convention)
+    };
     let mut out = format!("{}\n", s.title);
     if let Some(site) = &s.site {
         out += &format!("site        {site}\n");
@@ -89,9 +96,9 @@ fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, ctx: &Ctx) -> String {
         }
     }
     out.push('\n');
-    let (tu, tdec) = match s.convention.unit_system() {
-        crate::units::UnitSystem::Us => ("F", 1),
-        crate::units::UnitSystem::Si => ("C", 1),
+    let (tu, tdec) = match (si, s.convention.unit_system()) {
+        (false, crate::units::UnitSystem::Us) => ("F", 1),
+        _ => ("C", 1),
     };
     let mut t = Table::new(&[
         "run",
