@@ -41,7 +41,7 @@ fn golden(name: &str, found: &str) {
 
 #[test]
 fn compute_runs_on_every_sample_survey() {
-    for dir in ["stack", "hvac"] {
+    for dir in ["stack", "en-stack", "hvac"] {
         let survey = format!("sample-data/{dir}/survey.toml");
         let (code, out, err) = annulus(&["compute", &survey]);
         assert_eq!(code, 0, "{err}");
