@@ -10,6 +10,8 @@ pub mod bundle;
 pub mod forensics;
 pub mod keys;
 pub mod manifest;
+pub mod review;
+pub mod verify;
 
 pub use keys::{KeyError, PublicKey, SecretKey};
 pub use manifest::{FileEntry, Manifest, Signature};

@@ -1,17 +1,90 @@
-//! `annulus keygen` (being written).
+//! `annulus keygen NAME`: writes a new Ed25519 key pair, `NAME.key` (secret) and `NAME.pub`, and
+//! prints the key fingerprint reports show.
+//!
+//! The secret file is created with owner-only permissions (0600 on Unix) in the same call that
+//! creates it, so it is never readable by others, not even for an instant; neither file is ever
+//! overwritten (`create_new`).
 
 use super::output::Ctx;
-use crate::diag::Error;
+use crate::archive::SecretKey;
+use crate::diag::{Diagnostic, Error, Location};
 use clap::Args;
+use std::io::Write;
+use std::path::{Path, PathBuf};
 
 #[derive(Debug, Args)]
 pub struct KeygenArgs {
-    /// Input file or folder.
-    pub input: std::path::PathBuf,
+    /// Base name of the pair: writes NAME.key (keep it private) and NAME.pub (give it out).
+    pub name: PathBuf,
 }
 
-pub fn run(_args: KeygenArgs, _ctx: &Ctx) -> Result<i32, Error> {
-    Err(Error::Environment(
-        "`annulus keygen` is not built yet".into(),
-    ))
+fn with_suffix(base: &Path, ext: &str) -> PathBuf {
+    let mut s = base.as_os_str().to_os_string();
+    s.push(ext);
+    PathBuf::from(s)
+}
+
+/// Creates `path` (refusing an existing file) and writes `text` to it; `secret` files are owner
+/// read/write only from creation.
+fn create(path: &Path, text: &str, secret: bool) -> std::io::Result<()> {
+    let mut options = std::fs::OpenOptions::new();
+    options.write(true).create_new(true);
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::OpenOptionsExt;
+        options.mode(if secret { 0o600 } else { 0o644 });
+    }
+    #[cfg(not(unix))]
+    let _ = secret;
+    let mut f = options.open(path)?;
+    f.write_all(text.as_bytes())?;
+    f.sync_all()
+}
+
+pub fn run(args: KeygenArgs, ctx: &Ctx) -> Result<i32, Error> {
+    let secret_path = with_suffix(&args.name, ".key");
+    let public_path = with_suffix(&args.name, ".pub");
+    for p in [&secret_path, &public_path] {
+        if p.exists() {
+            let n = p.display().to_string();
+            return Err(Error::input(
+                Diagnostic::new(format!(
+                    "`{n}` already exists; a key file is never overwritten"
+                ))
+                .at(Location::file(&n))
+                .hint("choose another NAME, or move the old pair away first"),
+            ));
+        }
+    }
+    let key = SecretKey::generate().map_err(|e| Error::Environment(e.to_string()))?;
+    let public = key.public();
+    let failed = |p: &Path, e: std::io::Error| {
+        let n = p.display().to_string();
+        if e.kind() == std::io::ErrorKind::AlreadyExists {
+            Error::input(
+                Diagnostic::new(format!(
+                    "`{n}` already exists; a key file is never overwritten"
+                ))
+                .at(Location::file(&n)),
+            )
+        } else {
+            Error::Environment(format!("cannot write `{n}`: {e}"))
+        }
+    };
+    create(&secret_path, &key.to_text(), true).map_err(|e| failed(&secret_path, e))?;
+    if let Err(e) = create(&public_path, &public.to_text(), false) {
+        // Leave no half pair behind: the secret file is the one this call just created.
+        let _ = std::fs::remove_file(&secret_path);
+        return Err(failed(&public_path, e));
+    }
+    if !ctx.quiet {
+        eprintln!(
+            "wrote {} (secret: keep it private; sign with `annulus report … --sign {}`) and {} (public: give it to whoever verifies)",
+            secret_path.display(),
+            secret_path.display(),
+            public_path.display()
+        );
+    }
+    super::emit(&format!("key fingerprint {}\n", public.fingerprint()))?;
+    Ok(0)
 }
