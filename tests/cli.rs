@@ -443,5 +443,8 @@ fn compute_prints_si_on_request() {
     assert!(us.contains("dscfm"));
     let (code, si, _) = annulus(&["compute", "sample-data/stack/survey.toml", "--si"]);
     assert_eq!(code, 0);
-    assert!(si.contains("m³/h (ref, dry)") && !si.contains("dscfm"), "{si}");
+    assert!(
+        si.contains("m³/h (ref, dry)") && !si.contains("dscfm"),
+        "{si}"
+    );
 }

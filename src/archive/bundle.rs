@@ -88,7 +88,10 @@ impl Bundle {
             let (mime, what) = match *role {
                 "survey" => ("application/toml", format!("survey file `{path}` as read")),
                 "readings" => ("text/csv", format!("readings `{path}` as read")),
-                "calibration" => ("application/toml", format!("pitot calibration `{path}` as read")),
+                "calibration" => (
+                    "application/toml",
+                    format!("pitot calibration `{path}` as read"),
+                ),
                 "calibration-readings" => (
                     "text/csv",
                     format!("pitot calibration readings `{path}` as read"),

@@ -212,7 +212,10 @@ pub fn load(path: &Path) -> Result<LoadedCalibration, Error> {
 }
 
 /// [`load`] with the bytes of each file supplied by `source` (a survey loaded from memory).
-pub fn load_with(path: &Path, source: crate::input::FileSource) -> Result<LoadedCalibration, Error> {
+pub fn load_with(
+    path: &Path,
+    source: crate::input::FileSource,
+) -> Result<LoadedCalibration, Error> {
     let name = path.display().to_string();
     let (bytes, text) = crate::input::read_text_with(path, &name, source)?;
     let spec = parse_calibration(&name, &text)?;

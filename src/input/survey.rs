@@ -6,9 +6,9 @@
 use super::text::{span_location, Spanned};
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::geometry::Duct;
+use crate::input::calibration_file::CalibrationRecord;
 use crate::layout::Method;
 use crate::survey::*;
-use crate::input::calibration_file::CalibrationRecord;
 use crate::units::{parse_quantity, Dimension};
 use chrono::NaiveDate;
 use serde::Deserialize;
@@ -517,11 +517,7 @@ fn edit_distance(a: &str, b: &str) -> usize {
     prev[b.len()]
 }
 
-fn build(
-    cx: &mut Ctx,
-    raw: RawSurvey,
-    resolver: Option<CalibrationResolver>,
-) -> Option<Survey> {
+fn build(cx: &mut Ctx, raw: RawSurvey, resolver: Option<CalibrationResolver>) -> Option<Survey> {
     let m = &raw.survey;
     let date = cx.date(&m.date, "survey.date");
     let reference = m.reference.as_ref().and_then(|r| {
@@ -583,7 +579,8 @@ fn build(
                 cx.error(
                     path.span(),
                     "probe.calibration",
-                    "a calibration file is read only when the survey is loaded with its files".into(),
+                    "a calibration file is read only when the survey is loaded with its files"
+                        .into(),
                     None,
                 );
                 None
