@@ -34,4 +34,7 @@ pub struct Reading {
 pub struct RunReadings {
     pub file: String,
     pub readings: Vec<Reading>,
+    /// The unit the Δp column was recorded in (from its header), for resolution checks.
+    #[serde(skip)]
+    pub dp_unit: Option<&'static crate::units::Unit>,
 }

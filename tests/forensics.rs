@@ -79,6 +79,8 @@ fn base() -> Evaluation {
 }
 
 /// EPA eq. 2-9 (ft/s) and eq. 2-10 (dscfm) from the worked intermediates, with a chosen mistake.
+/// The arguments are the equations' own variables, kept apart so each mistake changes one.
+#[allow(clippy::too_many_arguments)]
 fn epa(
     sqrt_dp: f64,
     ts: f64,

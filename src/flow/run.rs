@@ -476,6 +476,7 @@ readings = "r.csv"
     fn readings(l: &Layout, dps: &[f64]) -> RunReadings {
         RunReadings {
             file: "r.csv".into(),
+            dp_unit: None,
             readings: l
                 .points()
                 .iter()

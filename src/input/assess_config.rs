@@ -674,19 +674,10 @@ pub fn dp_record_units(loaded: &Loaded) -> Vec<Option<&'static Unit>> {
         .runs
         .iter()
         .zip(&loaded.runs)
-        .map(|(spec, (file, _))| match &spec.form {
+        .map(|(spec, (_, readings))| match &spec.form {
             ReadingsForm::Matrix { header } => header_unit(header),
-            ReadingsForm::Rows => {
-                let text = String::from_utf8_lossy(&file.bytes);
-                let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
-                let mut rdr = csv::ReaderBuilder::new()
-                    .trim(csv::Trim::All)
-                    .comment(Some(b'#'))
-                    .flexible(true)
-                    .from_reader(text.as_bytes());
-                let headers = rdr.headers().ok()?.clone();
-                headers.iter().find_map(header_unit)
-            }
+            // recorded by the readings parser from the header, so the file is not read twice
+            ReadingsForm::Rows => readings.dp_unit,
         })
         .collect()
 }
