@@ -834,20 +834,7 @@ readings = "data/run1.csv"
 leak_check = { before = "pass", after = "pass" }
 "#;
 
-    const READINGS: &str = "line,point,dp[inH2O],temperature[F]
-A,1,0.50,300
-A,2,0.55,302
-A,3,0.60,305
-A,4,0.62,306
-A,5,0.58,304
-A,6,0.52,301
-B,1,0.48,299
-B,2,0.54,303
-B,3,0.61,305
-B,4,0.63,307
-B,5,0.57,304
-B,6,0.51,300
-";
+    const READINGS: &str = include_str!("../../tests/data/epa-english/run1.csv");
 
     /// The attachments `annulus report` would embed (name → bytes) and the manifest.
     fn packed() -> (HashMap<String, Vec<u8>>, Manifest) {
