@@ -11,6 +11,10 @@
 //! Criterion prints the time per survey or per report. The `stage/*` figures split the compute
 //! path (the per-survey work of `annulus review`) into its stages, to show where time goes.
 
+// The same allocator as the annulus binary (src/main.rs), so the figures are the program's.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 use annulus::archive::bundle::pack;
 use annulus::archive::{SecretKey, Signature};
 use annulus::assess::assess;

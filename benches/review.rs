@@ -13,6 +13,10 @@
 //! `thrpt` figures is the parallel speed-up. `ANNULUS_BENCH_SURVEYS=1000 cargo bench --bench review`
 //! runs a smaller archive.
 
+// The same allocator as the annulus binary (src/main.rs), so the figures are the program's.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 use annulus::archive::review::{review_all, review_path, Review};
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::collections::HashMap;
