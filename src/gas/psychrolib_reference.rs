@@ -2,7 +2,7 @@
 //!
 //! Test-only. Reads tests/reference/psychrolib.csv (written by tests/reference/psychrolib_gen.py
 //! with the PyPI package psychrolib) and recomputes every row with [`super::saturation`] and
-//! [`super::psychro`]. Catches transcription errors in coefficients and equation forms; it cannot
+//! [`super::psychro`]. Catches copying errors in coefficients and equation forms; it cannot
 //! catch an error both implementations share, which the published check values in the other
 //! modules' tests cover.
 

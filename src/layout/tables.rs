@@ -266,7 +266,7 @@ mod tests {
 
     /// methods.md §2.2 [D]: the construction "wall points at 1/(n·e), inner points at Chebyshev
     /// nodes of the centre part" reproduces every ASHRAE 111 row to 3 decimals. This checks the
-    /// transcription of the table against that independent construction.
+    /// copy of the table against that independent construction.
     #[test]
     fn rect_log_tchebycheff_matches_its_construction() {
         let nodes: [&[f64]; 5] = [
