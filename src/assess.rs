@@ -33,7 +33,7 @@ pub mod defaults {
     use super::*;
 
     /// Type S pitot coefficient: expanded 2 % at k = 2 (typical calibration 1–3 %,
-    /// calculations.md §5 [P]).
+    /// calculations.md §5 \[P\]).
     pub const S_TYPE_CP_EXPANDED: f64 = 0.02;
     /// Standard pitot coefficient: expanded 1 % at k = 2 (common practice).
     pub const STANDARD_CP_EXPANDED: f64 = 0.01;

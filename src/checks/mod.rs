@@ -15,7 +15,7 @@
 //! Must not read files, print, or look at the clock (the survey date is the reference date), and
 //! imports nothing from `input`: the stage in `assess` hands it a [`Subject`].
 //!
-//! Limits marked *from memory* in methods.md ([M]) carry `from_memory: true`: every finding of such
+//! Limits marked *from memory* in methods.md (\[M\]) carry `from_memory: true`: every finding of such
 //! a check says so in words and never presents the rule as a verified requirement.
 
 pub mod flow_quality;
@@ -188,7 +188,7 @@ pub struct CheckDef {
     pub criterion: &'static str,
     pub limits: &'static [LimitSpec],
     pub conventions: &'static [ConventionId],
-    /// The limit is from memory (methods.md [M]): findings say so.
+    /// The limit is from memory (methods.md \[M\]): findings say so.
     pub from_memory: bool,
     /// The status a violated limit gives (`Fail`, or `Warn` for indicators).
     pub on_violation: Status,

@@ -25,10 +25,10 @@ pub const EPA_PSTD_MMHG: f64 = 760.0;
 /// EN ISO 16911-1 normal conditions: 273.15 K, 101.325 kPa.
 pub const ISO_TREF_K: f64 = 273.15;
 pub const ISO_PREF_PA: f64 = 101_325.0;
-/// HVAC inch-pound velocity constant: V[fpm] = 1096.2·√(VP[inH2O]/ρ[lb/ft³]) (TAB/ASHRAE
+/// HVAC inch-pound velocity constant: V\[fpm\] = 1096.2·√(VP\[inH2O\]/ρ\[lb/ft³\]) (TAB/ASHRAE
 /// practice; the value implies an inch of water of about 248.4 Pa, i.e. water near 70 °F).
 pub const HVAC_IP_CONSTANT: f64 = 1096.2;
-/// HVAC dry-air density shortcut ρ[lb/ft³] = 1.325·Pb[inHg]/T[°R] (ASHRAE/TAB practice).
+/// HVAC dry-air density shortcut ρ\[lb/ft³\] = 1.325·Pb\[inHg\]/T\[°R\] (ASHRAE/TAB practice).
 pub const HVAC_IP_DRY_AIR_FACTOR: f64 = 1.325;
 /// Standard air 0.075 lb/ft³ (HVAC/AMCA definition) and 1.2 kg/m³ (ISO 5801).
 pub const HVAC_IP_STANDARD_LB_FT3: f64 = 0.075;

@@ -43,7 +43,7 @@ const fn s(from_d: f64, points: usize, confirmed: bool) -> Step {
 }
 
 /// EPA Method 1 Figure 1-1 (particulate traverses), diameters downstream of the disturbance (B).
-/// Steps from memory (methods.md §3 [M]); the 8 D step is §11.2.1's published 12-point rule.
+/// Steps from memory (methods.md §3 \[M\]); the 8 D step is §11.2.1's published 12-point rule.
 pub const FIG_1_1_UPSTREAM: StepTable = StepTable {
     name: "EPA Method 1 Figure 1-1, distance from upstream disturbance",
     source: "EPA Method 1 (40 CFR 60 App. A-1) Figure 1-1; intermediate steps from memory, not yet confirmed",
@@ -68,7 +68,7 @@ pub const FIG_1_1_DOWNSTREAM: StepTable = StepTable {
     ],
 };
 /// EPA Method 1 Figure 1-2 (velocity traverses): top step 16 points; breakpoints from memory with
-/// low confidence (methods.md §3 [M]).
+/// low confidence (methods.md §3 \[M\]).
 pub const FIG_1_2_UPSTREAM: StepTable = StepTable {
     name: "EPA Method 1 Figure 1-2, distance from upstream disturbance",
     source: "EPA Method 1 (40 CFR 60 App. A-1) Figure 1-2; breakpoints from memory (low confidence), not yet confirmed",
