@@ -4,10 +4,9 @@
 //! same parsing a user's files go through.
 
 use annulus::flow::{epa_vs, EpaForm};
-use annulus::input::load_with;
+use annulus::input::{load_with, MemoryFiles};
 use annulus::pipeline::{evaluate, Evaluation};
-use std::collections::HashMap;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 /// EPA results computed with the published constants must match to 1e-5 (issue policy).
 const REL_TOL_EPA: f64 = 1e-5;
@@ -17,16 +16,12 @@ const REL_TOL_WORKED: f64 = 1e-4;
 const FT3_M3: f64 = 0.028_316_846_592;
 
 fn eval(survey: &str, files: &[(&str, &str)]) -> Evaluation {
-    let mut map: HashMap<PathBuf, Vec<u8>> = HashMap::new();
-    map.insert(PathBuf::from("mem/survey.toml"), survey.as_bytes().to_vec());
+    let mut map = MemoryFiles::new();
+    map.insert("mem/survey.toml", survey.as_bytes());
     for (n, t) in files {
-        map.insert(Path::new("mem").join(n), t.as_bytes().to_vec());
+        map.insert(Path::new("mem").join(n), t.as_bytes());
     }
-    let source = move |p: &Path| {
-        map.get(p)
-            .cloned()
-            .ok_or_else(|| std::io::Error::new(std::io::ErrorKind::NotFound, "no such file"))
-    };
+    let source = |p: &Path| map.read(p);
     let loaded = load_with(Path::new("mem/survey.toml"), &source).unwrap_or_else(|e| panic!("{e}"));
     evaluate(loaded).unwrap_or_else(|e| panic!("{e}"))
 }

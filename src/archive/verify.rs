@@ -26,7 +26,7 @@ use serde::Serialize;
 use serde_json::Value;
 use std::collections::HashMap;
 use std::fmt;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 /// Relative tolerance when comparing a recomputed number with the embedded one. The embedded
 /// results are this program's own output written as JSON (shortest round-trip decimal), so an
@@ -589,7 +589,7 @@ fn recompute(
         .parent()
         .map(Path::to_path_buf)
         .unwrap_or_default();
-    let mut files: HashMap<PathBuf, Vec<u8>> = HashMap::new();
+    let mut files = crate::input::MemoryFiles::new();
     files.insert(survey_path.clone(), survey_bytes.to_vec());
     for e in manifest
         .files
@@ -600,14 +600,7 @@ fn recompute(
             files.insert(dir.join(&e.path), b.to_vec());
         }
     }
-    let source = |p: &Path| {
-        files.get(p).cloned().ok_or_else(|| {
-            std::io::Error::new(
-                std::io::ErrorKind::NotFound,
-                "not among the report's embedded files",
-            )
-        })
-    };
+    let source = |p: &Path| files.read(p);
     let loaded = match load_with(&survey_path, &source) {
         Ok(l) => l,
         Err(e) => {
@@ -838,17 +831,10 @@ leak_check = { before = "pass", after = "pass" }
 
     /// The attachments `annulus report` would embed (name → bytes) and the manifest.
     fn packed() -> (HashMap<String, Vec<u8>>, Manifest) {
-        let files: HashMap<PathBuf, Vec<u8>> =
-            [("site/s.toml", SURVEY), ("site/data/run1.csv", READINGS)]
-                .into_iter()
-                .map(|(p, t)| (PathBuf::from(p), t.as_bytes().to_vec()))
-                .collect();
-        let src = |p: &Path| {
-            files
-                .get(p)
-                .cloned()
-                .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
-        };
+        let mut files = crate::input::MemoryFiles::new();
+        files.insert("site/s.toml", SURVEY);
+        files.insert("site/data/run1.csv", READINGS);
+        let src = |p: &Path| files.read(p);
         let (e, a) =
             evaluate_and_assess(load_with(Path::new("site/s.toml"), &src).unwrap()).unwrap();
         let json = serde_json::to_vec_pretty(&ResultsDoc::new(&e, &a)).unwrap();

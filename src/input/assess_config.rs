@@ -221,14 +221,10 @@ impl Ctx<'_> {
 
     fn date(&mut self, v: &Option<V>, key: &str) -> Option<NaiveDate> {
         let v = v.as_ref()?;
-        let text = match v.get_ref() {
-            toml::Value::String(s) => s.clone(),
-            toml::Value::Datetime(d) => d.to_string(),
-            other => other.to_string(),
-        };
-        match NaiveDate::parse_from_str(text.trim(), "%Y-%m-%d") {
-            Ok(d) => Some(d),
-            Err(_) => {
+        let (text, parsed) = super::text::toml_date(v.get_ref());
+        match parsed {
+            Some(d) => Some(d),
+            None => {
                 self.error(
                     v.span(),
                     key,

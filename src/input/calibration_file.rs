@@ -316,14 +316,10 @@ pub fn parse_calibration(file: &str, text: &str) -> Result<CalibrationSpec, Erro
         "readings = \"ts-0417.csv\"",
     );
 
-    let date_text = match c.date.get_ref() {
-        toml::Value::String(s) => s.clone(),
-        toml::Value::Datetime(d) => d.to_string(),
-        other => other.to_string(),
-    };
-    let date = match NaiveDate::parse_from_str(date_text.trim(), "%Y-%m-%d") {
-        Ok(d) => Some(d),
-        Err(_) => {
+    let (date_text, parsed) = super::text::toml_date(c.date.get_ref());
+    let date = match parsed {
+        Some(d) => Some(d),
+        None => {
             diags.push(
                 Diagnostic::new(format!("`calibration.date` is not a date: `{date_text}`"))
                     .at(located(file, text, c.date.span(), "calibration.date"))

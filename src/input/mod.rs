@@ -41,6 +41,31 @@ pub fn read_text(path: &Path, name: &str) -> Result<(Vec<u8>, String), Diagnosti
 /// Where file bytes come from: the file system, or memory in tests and when re-deriving a report.
 pub type FileSource<'a> = &'a dyn Fn(&Path) -> std::io::Result<Vec<u8>>;
 
+/// Files held in memory by path (a report's embedded inputs, test fixtures); use
+/// `&|p| files.read(p)` as a [`FileSource`].
+#[derive(Debug, Clone, Default)]
+pub struct MemoryFiles(std::collections::HashMap<PathBuf, Vec<u8>>);
+
+impl MemoryFiles {
+    pub fn new() -> Self {
+        Self::default()
+    }
+
+    pub fn insert(&mut self, path: impl Into<PathBuf>, bytes: impl Into<Vec<u8>>) {
+        self.0.insert(path.into(), bytes.into());
+    }
+
+    /// The bytes at `path`, or `NotFound`.
+    pub fn read(&self, path: &Path) -> std::io::Result<Vec<u8>> {
+        self.0.get(path).cloned().ok_or_else(|| {
+            std::io::Error::new(
+                std::io::ErrorKind::NotFound,
+                "no such file among these files",
+            )
+        })
+    }
+}
+
 fn read_text_with(
     path: &Path,
     name: &str,

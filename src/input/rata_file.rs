@@ -294,14 +294,10 @@ pub fn parse_rata(file: &str, text: &str) -> Result<RataSpec, Error> {
         diags: Diagnostics::new(),
     };
     let r = &raw.rata;
-    let date_text = match r.date.get_ref() {
-        toml::Value::String(s) => s.clone(),
-        toml::Value::Datetime(d) => d.to_string(),
-        other => other.to_string(),
-    };
-    let date = match NaiveDate::parse_from_str(date_text.trim(), "%Y-%m-%d") {
-        Ok(d) => Some(d),
-        Err(_) => {
+    let (date_text, parsed) = super::text::toml_date(r.date.get_ref());
+    let date = match parsed {
+        Some(d) => Some(d),
+        None => {
             cx.error(
                 r.date.span(),
                 "rata.date",

@@ -240,14 +240,10 @@ impl Ctx<'_> {
     }
 
     fn date(&mut self, v: &Spanned<toml::Value>, key: &str) -> Option<NaiveDate> {
-        let text = match v.get_ref() {
-            toml::Value::String(s) => s.clone(),
-            toml::Value::Datetime(d) => d.to_string(),
-            other => other.to_string(),
-        };
-        match NaiveDate::parse_from_str(text.trim(), "%Y-%m-%d") {
-            Ok(d) => Some(d),
-            Err(_) => {
+        let (text, parsed) = super::text::toml_date(v.get_ref());
+        match parsed {
+            Some(d) => Some(d),
+            None => {
                 self.error(
                     v.span(),
                     key,
@@ -830,11 +826,7 @@ fn build(cx: &mut Ctx, raw: RawSurvey, resolver: Option<CalibrationResolver>) ->
         );
     }
     for r in &raw.runs {
-        let id = match r.id.get_ref() {
-            toml::Value::String(s) => s.clone(),
-            toml::Value::Integer(i) => i.to_string(),
-            other => other.to_string(),
-        };
+        let id = super::text::toml_text(r.id.get_ref());
         if runs.iter().any(|x: &RunSpec| x.id == id) {
             cx.error(
                 r.id.span(),
@@ -868,10 +860,10 @@ fn build(cx: &mut Ctx, raw: RawSurvey, resolver: Option<CalibrationResolver>) ->
                 },
                 None => ReadingsForm::Rows,
             },
-            started: r.started.as_ref().map(|v| match v.get_ref() {
-                toml::Value::String(s) => s.clone(),
-                other => other.to_string(),
-            }),
+            started: r
+                .started
+                .as_ref()
+                .map(|v| super::text::toml_text(v.get_ref())),
             leak_check,
         });
     }

@@ -14,6 +14,22 @@ pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
     (line, column)
 }
 
+/// A TOML value as the text a user wrote: strings unquoted, dates and numbers as printed.
+pub fn toml_text(v: &toml::Value) -> String {
+    match v {
+        toml::Value::String(s) => s.clone(),
+        toml::Value::Datetime(d) => d.to_string(),
+        other => other.to_string(),
+    }
+}
+
+/// A date written `YYYY-MM-DD` (as a TOML string or a bare TOML date); the text and the date.
+pub fn toml_date(v: &toml::Value) -> (String, Option<chrono::NaiveDate>) {
+    let text = toml_text(v);
+    let date = chrono::NaiveDate::parse_from_str(text.trim(), "%Y-%m-%d").ok();
+    (text, date)
+}
+
 /// A location for byte `offset` of `text` in `file`.
 pub fn span_location(file: &str, text: &str, offset: usize) -> Location {
     let (l, c) = line_column(text, offset);
