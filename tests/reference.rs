@@ -232,8 +232,9 @@ matrix = "dp[inH2O]"
     );
     let fpm = r.mean_velocity_m_s * 60.0 / 0.3048;
     close(fpm, 1994.53, REL_TOL_WORKED);
-    // standard-air velocity 4005·mean √VP = 1949.47 fpm
-    close(4005.0 * 0.486759, 1949.47, REL_TOL_WORKED);
+    // standard-air velocity 4005·mean √VP = 1949.47 fpm, from the computed mean √VP
+    let mean_sqrt_vp = r.mean_sqrt_dp_pa / annulus::units::PA_PER_INH2O.sqrt();
+    close(4005.0 * mean_sqrt_vp, 1949.47, REL_TOL_WORKED);
     close(r.actual_flow_m3_s * 60.0 / FT3_M3, 5318.8, REL_TOL_WORKED);
     close(r.standard_flow_m3_s * 60.0 / FT3_M3, 5075.4, REL_TOL_WORKED);
     close(r.percent_of_design.unwrap(), 106.4, 5e-4);
