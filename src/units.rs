@@ -33,6 +33,10 @@ pub enum Dimension {
     Mass,
     Volume,
     Angle,
+    /// A cross-sectional area (duct planes, terminal free areas).
+    Area,
+    /// Mass per unit time.
+    MassFlow,
 }
 
 impl Dimension {
@@ -51,6 +55,8 @@ impl Dimension {
             Dimension::Mass => "mass",
             Dimension::Volume => "volume",
             Dimension::Angle => "angle",
+            Dimension::Area => "area",
+            Dimension::MassFlow => "mass flow",
         }
     }
 
@@ -68,6 +74,8 @@ impl Dimension {
             Dimension::Mass => "kg",
             Dimension::Volume => "m3",
             Dimension::Angle => "deg",
+            Dimension::Area => "m2",
+            Dimension::MassFlow => "kg/s",
         }
     }
 }
@@ -154,10 +162,20 @@ pub const UNITS: &[Unit] = &[
     u("ft3/min", Dimension::Flow, FT3_M3 / 60.0),
     u("ft3/h", Dimension::Flow, FT3_M3 / 3600.0),
     u("cfh", Dimension::Flow, FT3_M3 / 3600.0),
-    // Standard-condition labels (flow monitors report scfh): the volume unit only; the reference
-    // conditions are stated by the convention or the RATA file, never by the label.
+    // Flow units that name their basis (see [`FlowBasis`] and [`flow_basis`]): the symbol says
+    // actual, standard (wet or dry) or normal; the reference conditions of "standard" are the
+    // convention's (or the RATA file's), never the label's.
+    u("acfm", Dimension::Flow, FT3_M3 / 60.0),
     u("scfm", Dimension::Flow, FT3_M3 / 60.0),
+    u("wscfm", Dimension::Flow, FT3_M3 / 60.0),
+    u("dscfm", Dimension::Flow, FT3_M3 / 60.0),
     u("scfh", Dimension::Flow, FT3_M3 / 3600.0),
+    u("wscfh", Dimension::Flow, FT3_M3 / 3600.0),
+    u("dscfh", Dimension::Flow, FT3_M3 / 3600.0),
+    u("wscm/h", Dimension::Flow, 1.0 / 3600.0),
+    u("dscm/h", Dimension::Flow, 1.0 / 3600.0),
+    u("Nm3/h", Dimension::Flow, 1.0 / 3600.0),
+    u("dNm3/h", Dimension::Flow, 1.0 / 3600.0),
     // velocity
     u("m/s", Dimension::Velocity, 1.0),
     u("ft/s", Dimension::Velocity, FOOT_M),
@@ -177,7 +195,109 @@ pub const UNITS: &[Unit] = &[
     u("ft3", Dimension::Volume, FT3_M3),
     // angle
     u("deg", Dimension::Angle, 1.0),
+    // area
+    u("m2", Dimension::Area, 1.0),
+    u("cm2", Dimension::Area, 1e-4),
+    u("mm2", Dimension::Area, 1e-6),
+    u("in2", Dimension::Area, INCH_M * INCH_M),
+    u("ft2", Dimension::Area, FOOT_M * FOOT_M),
+    // mass flow
+    u("kg/s", Dimension::MassFlow, 1.0),
+    u("kg/h", Dimension::MassFlow, 1.0 / 3600.0),
+    u("lb/h", Dimension::MassFlow, LB_KG / 3600.0),
+    u("lb/min", Dimension::MassFlow, LB_KG / 60.0),
 ];
+
+/// What a volume flow is measured against: the gas at duct conditions, or corrected to reference
+/// conditions (wet or dry). The flow unit names it: `cfm`, `acfm`, `m3/h`, `m3/s`, `L/s` are actual;
+/// `scfm`, `wscfm`, `wscm/h` standard (wet); `dscfm`, `dscm/h` dry standard; `Nm3/h` normal (wet) and
+/// `dNm3/h` normal dry (0 °C, 101.325 kPa; [`FlowBasis::reference`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum FlowBasis {
+    /// At the duct's own temperature, pressure and moisture.
+    Actual,
+    /// At the convention's reference temperature and pressure, wet (HVAC: standard air density).
+    Standard,
+    /// At the convention's reference temperature and pressure, dry.
+    DryStandard,
+    /// At 273.15 K and 101.325 kPa, wet.
+    Normal,
+    /// At 273.15 K and 101.325 kPa, dry.
+    NormalDry,
+}
+
+impl FlowBasis {
+    pub const ALL: [FlowBasis; 5] = [
+        FlowBasis::Actual,
+        FlowBasis::Standard,
+        FlowBasis::DryStandard,
+        FlowBasis::Normal,
+        FlowBasis::NormalDry,
+    ];
+
+    /// The name used in JSON and messages.
+    pub fn name(self) -> &'static str {
+        match self {
+            FlowBasis::Actual => "actual",
+            FlowBasis::Standard => "standard",
+            FlowBasis::DryStandard => "dry-standard",
+            FlowBasis::Normal => "normal",
+            FlowBasis::NormalDry => "normal-dry",
+        }
+    }
+
+    /// Words for a page or a screen ("actual", "standard, wet", …).
+    pub fn words(self) -> &'static str {
+        match self {
+            FlowBasis::Actual => "actual",
+            FlowBasis::Standard => "standard, wet",
+            FlowBasis::DryStandard => "standard, dry",
+            FlowBasis::Normal => "normal (0 °C, 101.325 kPa), wet",
+            FlowBasis::NormalDry => "normal (0 °C, 101.325 kPa), dry",
+        }
+    }
+
+    /// True for the dry bases.
+    pub fn is_dry(self) -> bool {
+        matches!(self, FlowBasis::DryStandard | FlowBasis::NormalDry)
+    }
+
+    /// Reference temperature (K) and pressure (Pa) the basis itself fixes: normal conditions
+    /// (273.15 K, 101.325 kPa) for the `N` units; `None` for actual and for standard, whose
+    /// reference is the convention's.
+    pub fn reference(self) -> Option<(f64, f64)> {
+        match self {
+            FlowBasis::Normal | FlowBasis::NormalDry => Some((273.15, 101_325.0)),
+            _ => None,
+        }
+    }
+}
+
+/// The basis a flow unit names, or `None` when `unit` is not a volume flow unit.
+/// Plain `cfm`, `ft3/min`, `cfh`, `m3/h`, `m3/s` and `L/s` are actual flows.
+pub fn flow_basis(unit: &Unit) -> Option<FlowBasis> {
+    if unit.dimension != Dimension::Flow {
+        return None;
+    }
+    Some(match unit.symbol {
+        "scfm" | "wscfm" | "scfh" | "wscfh" | "wscm/h" => FlowBasis::Standard,
+        "dscfm" | "dscfh" | "dscm/h" => FlowBasis::DryStandard,
+        "Nm3/h" => FlowBasis::Normal,
+        "dNm3/h" => FlowBasis::NormalDry,
+        _ => FlowBasis::Actual,
+    })
+}
+
+/// Parses a volume flow with its basis, e.g. `"8000 scfm"` → (3.7756 m³/s, standard).
+pub fn parse_flow(text: &str) -> Result<(f64, FlowBasis), UnitError> {
+    let si = parse_quantity(text, Dimension::Flow)?;
+    let (_, unit) = split_number_unit(text.trim());
+    let basis = lookup_unit(unit)
+        .and_then(flow_basis)
+        .unwrap_or(FlowBasis::Actual);
+    Ok((si, basis))
+}
 
 /// Finds a unit by symbol. `°F`, `°C`, `degF`, `degC` and lower-case `f`/`c`/`k`/`r` are accepted as
 /// temperature spellings; `in. wg`-style spellings are not (ambiguous about the water density).
@@ -547,6 +667,38 @@ mod tests {
         assert!(close(q("5000 cfm"), 5000.0 * 0.028316846592 / 60.0, 1e-12));
         assert!(close(q("3600 m3/h"), 1.0, 1e-12));
         assert!(close(q("2.5 m3/s"), 2.5, 1e-12));
+    }
+
+    #[test]
+    fn flow_units_carry_their_basis() {
+        // Trade usage (common practice): acfm/cfm actual, scfm and wscfm standard wet, dscfm dry
+        // standard; Nm3/h normal wet, dNm3/h normal dry (the contract's list).
+        let cases = [
+            ("8000 cfm", FlowBasis::Actual),
+            ("8000 acfm", FlowBasis::Actual),
+            ("8000 scfm", FlowBasis::Standard),
+            ("8000 wscfm", FlowBasis::Standard),
+            ("8000 dscfm", FlowBasis::DryStandard),
+            ("13600 m3/h", FlowBasis::Actual),
+            ("3.8 m3/s", FlowBasis::Actual),
+            ("3800 L/s", FlowBasis::Actual),
+            ("12000 Nm3/h", FlowBasis::Normal),
+            ("11000 dNm3/h", FlowBasis::NormalDry),
+        ];
+        for (text, basis) in cases {
+            assert_eq!(parse_flow(text).unwrap().1, basis, "{text}");
+        }
+        // 1 ft³/min = 0.028316846592/60 m³/s whatever the basis label
+        let (a, _) = parse_flow("8000 acfm").unwrap();
+        let (d, _) = parse_flow("8000 dscfm").unwrap();
+        assert_eq!(a, d);
+        assert!(close(a, 8000.0 * 0.028316846592 / 60.0, 1e-12));
+        assert!(matches!(
+            parse_flow("8000"),
+            Err(UnitError::MissingUnit { .. })
+        ));
+        assert_eq!(FlowBasis::NormalDry.reference(), Some((273.15, 101_325.0)));
+        assert!(FlowBasis::DryStandard.is_dry() && !FlowBasis::Standard.is_dry());
     }
 
     #[test]

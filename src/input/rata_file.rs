@@ -763,7 +763,7 @@ mod tests {
         assert_eq!((loc.line, loc.column), (Some(10), Some(6)));
         assert_eq!(
             d.items()[1].to_string(),
-            "error: `run.monitor`: expected a volume flow, found `50.5 ft/s` (`ft/s` is a unit of velocity)\n --> r.toml:11:11 (`run.monitor`)\n   = hint: a volume flow takes one of: m3/s, m3/h, L/s, cfm, ft3/min, ft3/h, cfh, scfm, scfh"
+            "error: `run.monitor`: expected a volume flow, found `50.5 ft/s` (`ft/s` is a unit of velocity)\n --> r.toml:11:11 (`run.monitor`)\n   = hint: a volume flow takes one of: m3/s, m3/h, L/s, cfm, ft3/min, ft3/h, cfh, acfm, scfm, wscfm, dscfm, scfh, wscfh, dscfh, wscm/h, dscm/h, Nm3/h, dNm3/h"
         );
     }
 

@@ -1,0 +1,556 @@
+//! The display table: in which unit, with which symbol and how many decimals every kind of quantity
+//! is shown, for each unit system. One table, asked by every screen, CSV, check message, report,
+//! certificate, field sheet and `init`, so a job read in inches of water is shown in inches of water
+//! everywhere.
+//!
+//! Owns the choice of display units and the number formatting rules (true minus, no negative zero,
+//! thousands grouping). Must not convert for calculation: values stay SI inside the program and are
+//! converted here only to be printed. Conversion factors come from the unit table in
+//! [`crate::units`]; this module only chooses among its symbols.
+//!
+//! The unit system comes from the convention ([`UnitSystem::of`]) unless the user overrides it
+//! (`--si`, `--units`). Flow labels also depend on the convention: an EPA job speaks of dscfm, an
+//! HVAC job of scfm of standard air, an EN ISO 16911 job of m³/h at normal conditions.
+
+use crate::survey::ConventionId;
+use crate::units::{lookup_unit, Unit};
+use serde::Serialize;
+
+/// A family of display units.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum UnitSystem {
+    /// Inches, inches of water and of mercury, °F, ft/s or fpm, cfm.
+    InchPound,
+    /// mm, Pa, kPa, °C, m/s, m³/h.
+    Si,
+    /// EPA Method 2's metric form: mm of water and of mercury, °C, m/s, dscm/h.
+    EpaMetric,
+}
+
+impl UnitSystem {
+    pub const ALL: [UnitSystem; 3] = [UnitSystem::InchPound, UnitSystem::Si, UnitSystem::EpaMetric];
+
+    /// The name used on the command line (`--units`) and in JSON.
+    pub fn name(self) -> &'static str {
+        match self {
+            UnitSystem::InchPound => "inch-pound",
+            UnitSystem::Si => "si",
+            UnitSystem::EpaMetric => "epa-metric",
+        }
+    }
+
+    pub fn parse(text: &str) -> Option<UnitSystem> {
+        let t = text.trim().to_ascii_lowercase();
+        UnitSystem::ALL.into_iter().find(|u| u.name() == t)
+    }
+
+    /// The system a convention reads and prints in: EPA Method 2 English and hvac-ip in
+    /// inch-pound units, EPA Method 2 metric in its own metric units, the others in SI.
+    pub fn of(convention: ConventionId, epa_metric: bool) -> UnitSystem {
+        match convention {
+            ConventionId::EpaMethod2 if epa_metric => UnitSystem::EpaMetric,
+            ConventionId::EpaMethod2 | ConventionId::HvacIp => UnitSystem::InchPound,
+            ConventionId::Iso16911 | ConventionId::HvacSi => UnitSystem::Si,
+        }
+    }
+
+    pub fn is_inch_pound(self) -> bool {
+        self == UnitSystem::InchPound
+    }
+}
+
+/// What a number on a screen or page is: the kinds of quantity the program prints. Finer than
+/// [`crate::units::Dimension`]: a velocity pressure and a barometric pressure are both pressures
+/// but are read in different units.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Kind {
+    /// Duct dimensions, point positions, port lengths.
+    Length,
+    /// Plane and terminal areas.
+    Area,
+    /// Pitot differential (velocity) pressure Δp.
+    VelocityPressure,
+    /// Duct static (gauge) pressure.
+    StaticPressure,
+    /// Barometric pressure.
+    Barometric,
+    /// Absolute duct pressure.
+    AbsolutePressure,
+    /// Dry gas meter orifice pressure ΔH (EPA Method 4 / 5 trains).
+    OrificePressure,
+    Temperature,
+    TemperatureDifference,
+    Velocity,
+    ActualFlow,
+    /// Standard (wet) flow, or normal flow under EN ISO 16911-1.
+    StandardFlow,
+    /// Dry standard flow (dscfm, dscm/h, m³/h at normal conditions dry).
+    DryStandardFlow,
+    MassFlow,
+    Density,
+    MolarMass,
+    /// A fraction shown in percent (moisture, composition, percent of design).
+    Percent,
+    Angle,
+    /// Condensed water volume (impingers), mL everywhere.
+    LiquidVolume,
+    /// Weighed water (silica gel), g everywhere.
+    Mass,
+    /// Dry gas meter volume.
+    GasVolume,
+}
+
+impl Kind {
+    pub const ALL: [Kind; 21] = [
+        Kind::Length,
+        Kind::Area,
+        Kind::VelocityPressure,
+        Kind::StaticPressure,
+        Kind::Barometric,
+        Kind::AbsolutePressure,
+        Kind::OrificePressure,
+        Kind::Temperature,
+        Kind::TemperatureDifference,
+        Kind::Velocity,
+        Kind::ActualFlow,
+        Kind::StandardFlow,
+        Kind::DryStandardFlow,
+        Kind::MassFlow,
+        Kind::Density,
+        Kind::MolarMass,
+        Kind::Percent,
+        Kind::Angle,
+        Kind::LiquidVolume,
+        Kind::Mass,
+        Kind::GasVolume,
+    ];
+}
+
+/// How one kind of quantity is shown.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Shown {
+    /// The symbol as printed on screens and pages (`inH2O`, `°F`, `ft²`, `m³/h`).
+    pub symbol: &'static str,
+    /// The same unit as the input parser accepts it, for CSV headers (`inH2O`, `F`, `ft2`,
+    /// `m3/h`). Every `ascii` symbol is in the unit table, so what is printed can be read back.
+    pub ascii: &'static str,
+    /// Decimals printed by default.
+    pub decimals: usize,
+    /// Words naming the quantity where the unit alone does not (flows: "dry standard flow").
+    pub label: &'static str,
+    /// Relative to SI: `shown = si · factor + offset` (°F and °C have offsets).
+    factor: f64,
+    offset: f64,
+}
+
+impl Shown {
+    fn new(
+        symbol: &'static str,
+        ascii: &'static str,
+        decimals: usize,
+        label: &'static str,
+    ) -> Shown {
+        // `ascii` symbols are literals of this file, checked by the tests against the unit
+        // table; a miss would be a programming error caught there.
+        let (factor, offset) = match ascii {
+            "1" => (1.0, 0.0),
+            "%" => (100.0, 0.0),
+            "g/mol" | "lb/lb-mol" => (1.0, 0.0),
+            other => match lookup_unit(other) {
+                Some(Unit { factor, offset, .. }) => (1.0 / factor, -offset / factor),
+                None => (f64::NAN, 0.0),
+            },
+        };
+        Shown {
+            symbol,
+            ascii,
+            decimals,
+            label,
+            factor,
+            offset,
+        }
+    }
+
+    /// An SI value in this unit.
+    pub fn value(&self, si: f64) -> f64 {
+        si * self.factor + self.offset
+    }
+
+    /// An SI difference (a spread, an uncertainty) in this unit: no offset.
+    pub fn difference(&self, si: f64) -> f64 {
+        si * self.factor
+    }
+
+    /// The number alone, with the default decimals (`0.464`).
+    pub fn number(&self, si: f64) -> String {
+        fixed(self.value(si), self.decimals)
+    }
+
+    /// The number alone with `decimals` places.
+    pub fn number_with(&self, si: f64, decimals: usize) -> String {
+        fixed(self.value(si), decimals)
+    }
+
+    /// The number with thousands grouped (`93,249`), for flows on pages.
+    pub fn grouped(&self, si: f64) -> String {
+        grouped(self.value(si), self.decimals)
+    }
+
+    /// Number and unit (`0.464 inH2O`, `301.2 °F`, `12 %`).
+    pub fn format(&self, si: f64) -> String {
+        self.with_unit(self.number(si))
+    }
+
+    /// Number (to `sig` significant figures, at least the unit's decimals' worth of sense) and
+    /// unit, for check messages that quote a measured value (`0.0512 inH2O`).
+    pub fn format_sig(&self, si: f64, sig: usize) -> String {
+        self.with_unit(significant(self.value(si), sig))
+    }
+
+    /// A header cell for CSV (`dp[inH2O]`): the name and the parseable symbol.
+    pub fn header(&self, name: &str) -> String {
+        format!("{name}[{}]", self.ascii)
+    }
+
+    /// `text` followed by the printed symbol with the spacing the symbol wants (`12 %`,
+    /// `45°`, `301.2 °F`).
+    pub fn with_unit(&self, text: String) -> String {
+        match self.symbol {
+            "" => text,
+            "°" => format!("{text}°"),
+            s => format!("{text} {s}"),
+        }
+    }
+}
+
+/// The display table of one job: its unit system and its convention.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct DisplayTable {
+    pub system: UnitSystem,
+    pub convention: ConventionId,
+    /// The convention's reference conditions were overridden by the survey (flows at reference
+    /// conditions are then not "normal" or "standard" in the usual sense).
+    pub reference_overridden: bool,
+}
+
+impl DisplayTable {
+    /// The table a convention implies, or the one the user asked for.
+    pub fn new(convention: ConventionId, system: UnitSystem) -> DisplayTable {
+        DisplayTable {
+            system,
+            convention,
+            reference_overridden: false,
+        }
+    }
+
+    /// Marks the reference conditions as the survey's own.
+    pub fn with_reference_overridden(mut self, overridden: bool) -> DisplayTable {
+        self.reference_overridden = overridden;
+        self
+    }
+
+    /// How `kind` is shown in this job.
+    pub fn get(&self, kind: Kind) -> Shown {
+        use UnitSystem::*;
+        let s = Shown::new;
+        let hvac = self.convention.is_hvac();
+        match (kind, self.system) {
+            (Kind::Length, InchPound) => s("in", "in", 2, "length"),
+            (Kind::Length, _) => s("mm", "mm", 0, "length"),
+            (Kind::Area, InchPound) => s("ft²", "ft2", 4, "area"),
+            (Kind::Area, _) => s("m²", "m2", 4, "area"),
+            (Kind::VelocityPressure, InchPound) => s("inH2O", "inH2O", 3, "velocity pressure"),
+            (Kind::VelocityPressure, Si) => s("Pa", "Pa", 1, "velocity pressure"),
+            (Kind::VelocityPressure, EpaMetric) => s("mmH2O", "mmH2O", 2, "velocity pressure"),
+            (Kind::StaticPressure, InchPound) => s("inH2O", "inH2O", 2, "static pressure"),
+            (Kind::StaticPressure, Si) => s("Pa", "Pa", 0, "static pressure"),
+            (Kind::StaticPressure, EpaMetric) => s("mmH2O", "mmH2O", 1, "static pressure"),
+            (Kind::OrificePressure, InchPound) => s("inH2O", "inH2O", 2, "orifice pressure"),
+            (Kind::OrificePressure, Si) => s("Pa", "Pa", 0, "orifice pressure"),
+            (Kind::OrificePressure, EpaMetric) => s("mmH2O", "mmH2O", 1, "orifice pressure"),
+            (Kind::Barometric, InchPound) => s("inHg", "inHg", 2, "barometric pressure"),
+            (Kind::Barometric, Si) => s("kPa", "kPa", 2, "barometric pressure"),
+            (Kind::Barometric, EpaMetric) => s("mmHg", "mmHg", 1, "barometric pressure"),
+            (Kind::AbsolutePressure, InchPound) => s("inHg", "inHg", 3, "absolute pressure"),
+            (Kind::AbsolutePressure, Si) => s("kPa", "kPa", 3, "absolute pressure"),
+            (Kind::AbsolutePressure, EpaMetric) => s("mmHg", "mmHg", 1, "absolute pressure"),
+            (Kind::Temperature, InchPound) => s("°F", "F", 1, "temperature"),
+            (Kind::Temperature, _) => s("°C", "C", 1, "temperature"),
+            (Kind::TemperatureDifference, InchPound) => s("°F", "R", 1, "temperature difference"),
+            (Kind::TemperatureDifference, _) => s("K", "K", 1, "temperature difference"),
+            (Kind::Velocity, InchPound) if hvac => s("fpm", "fpm", 0, "velocity"),
+            (Kind::Velocity, InchPound) => s("ft/s", "ft/s", 2, "velocity"),
+            (Kind::Velocity, _) if hvac => s("m/s", "m/s", 2, "velocity"),
+            (Kind::Velocity, _) => s("m/s", "m/s", 2, "velocity"),
+            (Kind::ActualFlow | Kind::StandardFlow | Kind::DryStandardFlow, _) => self.flow(kind),
+            (Kind::MassFlow, InchPound) if hvac => s("lb/min", "lb/min", 1, "mass flow"),
+            (Kind::MassFlow, InchPound) => s("lb/h", "lb/h", 0, "mass flow"),
+            (Kind::MassFlow, _) if hvac => s("kg/s", "kg/s", 3, "mass flow"),
+            (Kind::MassFlow, _) => s("kg/h", "kg/h", 0, "mass flow"),
+            (Kind::Density, InchPound) => s("lb/ft³", "lb/ft3", 4, "density"),
+            (Kind::Density, _) => s("kg/m³", "kg/m3", 3, "density"),
+            (Kind::MolarMass, InchPound) => s("lb/lb-mol", "lb/lb-mol", 2, "molar mass"),
+            (Kind::MolarMass, _) => s("g/mol", "g/mol", 2, "molar mass"),
+            (Kind::Percent, _) => s("%", "%", 1, "percent"),
+            (Kind::Angle, _) => s("°", "deg", 0, "angle"),
+            (Kind::LiquidVolume, _) => s("mL", "mL", 1, "condensed water"),
+            (Kind::Mass, _) => s("g", "g", 1, "mass"),
+            (Kind::GasVolume, InchPound) => s("ft³", "ft3", 3, "gas volume"),
+            (Kind::GasVolume, _) => s("m³", "m3", 4, "gas volume"),
+        }
+    }
+
+    /// Flows: the unit names the basis the way the job's trade writes it.
+    fn flow(&self, kind: Kind) -> Shown {
+        use UnitSystem::*;
+        let s = Shown::new;
+        let hvac = self.convention.is_hvac();
+        let iso = self.convention == ConventionId::Iso16911;
+        let ov = self.reference_overridden;
+        match (kind, self.system) {
+            (Kind::ActualFlow, InchPound) => s("acfm", "acfm", 0, "actual flow"),
+            (Kind::ActualFlow, _) => s("m³/h", "m3/h", 0, "actual flow"),
+            // HVAC: standard air by density (0.075 lb/ft³ or 1.2 kg/m³).
+            (Kind::StandardFlow, InchPound) if hvac => s("scfm", "scfm", 0, "standard air flow"),
+            (Kind::DryStandardFlow, InchPound) if hvac => {
+                s("scfm", "scfm", 0, "standard air flow, dry air")
+            }
+            (Kind::StandardFlow, _) if hvac => s("m³/h", "m3/h", 0, "standard air flow"),
+            (Kind::DryStandardFlow, _) if hvac => {
+                s("m³/h", "m3/h", 0, "standard air flow, dry air")
+            }
+            (Kind::StandardFlow, InchPound) => s("wscfm", "wscfm", 0, "wet standard flow"),
+            (Kind::DryStandardFlow, InchPound) => s("dscfm", "dscfm", 0, "dry standard flow"),
+            (Kind::StandardFlow, EpaMetric) => s("wscm/h", "wscm/h", 0, "wet standard flow"),
+            (Kind::DryStandardFlow, EpaMetric) => s("dscm/h", "dscm/h", 0, "dry standard flow"),
+            (Kind::StandardFlow, _) if iso && !ov => s("Nm³/h", "Nm3/h", 0, "normal flow, wet"),
+            (Kind::DryStandardFlow, _) if iso && !ov => {
+                s("dNm³/h", "dNm3/h", 0, "normal flow, dry")
+            }
+            (Kind::StandardFlow, _) => s("m³/h", "m3/h", 0, "standard flow, wet"),
+            (Kind::DryStandardFlow, _) => s("m³/h", "m3/h", 0, "standard flow, dry"),
+            _ => unreachable!("flow() is called for flow kinds only"),
+        }
+    }
+
+    /// Shorthand: `get(kind).format(si)`.
+    pub fn format(&self, kind: Kind, si: f64) -> String {
+        self.get(kind).format(si)
+    }
+
+    /// Shorthand: `get(kind).number(si)`.
+    pub fn number(&self, kind: Kind, si: f64) -> String {
+        self.get(kind).number(si)
+    }
+
+    /// The same quantity in SI, for a page that shows SI beside the job's units.
+    pub fn si(&self) -> DisplayTable {
+        DisplayTable {
+            system: UnitSystem::Si,
+            ..*self
+        }
+    }
+}
+
+/// Fixed decimals, with a true minus sign and no negative zero; never `inf` or `NaN` (a
+/// non-finite value prints as an em dash: it is a bug upstream, but a page must not show it).
+pub fn fixed(value: f64, decimals: usize) -> String {
+    if !value.is_finite() {
+        return "\u{2014}".to_string();
+    }
+    let s = format!("{value:.decimals$}");
+    if s.trim_start_matches('-')
+        .chars()
+        .all(|c| c == '0' || c == '.')
+    {
+        return s.trim_start_matches('-').to_string();
+    }
+    match s.strip_prefix('-') {
+        Some(rest) => format!("\u{2212}{rest}"),
+        None => s,
+    }
+}
+
+/// Fixed decimals with thousands separated by commas.
+pub fn grouped(value: f64, decimals: usize) -> String {
+    if !value.is_finite() {
+        return fixed(value, decimals);
+    }
+    let s = fixed(value.abs(), decimals);
+    let (int, frac) = match s.split_once('.') {
+        Some((i, f)) => (i.to_string(), format!(".{f}")),
+        None => (s.clone(), String::new()),
+    };
+    let mut out = String::new();
+    for (i, c) in int.chars().enumerate() {
+        if i > 0 && (int.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    let sign = if value < 0.0 && fixed(value, decimals).starts_with('\u{2212}') {
+        "\u{2212}"
+    } else {
+        ""
+    };
+    format!("{sign}{out}{frac}")
+}
+
+/// `sig` significant figures, never in exponent form, with trailing zeros of the fraction kept
+/// only up to the significance asked (`0.05120` → `0.0512`).
+pub fn significant(value: f64, sig: usize) -> String {
+    if !value.is_finite() {
+        return fixed(value, 0);
+    }
+    if value == 0.0 {
+        return "0".to_string();
+    }
+    let magnitude = value.abs().log10().floor() as i64;
+    let decimals = (sig as i64 - 1 - magnitude).clamp(0, 12) as usize;
+    let s = fixed(value, decimals);
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::units::{parse_quantity, Dimension};
+
+    fn all_tables() -> Vec<DisplayTable> {
+        let mut v = Vec::new();
+        for c in ConventionId::ALL {
+            for s in UnitSystem::ALL {
+                v.push(DisplayTable::new(c, s));
+                v.push(DisplayTable::new(c, s).with_reference_overridden(true));
+            }
+        }
+        v
+    }
+
+    /// Everything the program prints can be read back: each CSV symbol is in the unit table and
+    /// converts back to the SI value it came from.
+    #[test]
+    fn every_shown_unit_reads_back() {
+        for t in all_tables() {
+            for k in Kind::ALL {
+                let sh = t.get(k);
+                assert!(sh.factor.is_finite(), "{:?} {:?}: {}", t, k, sh.ascii);
+                if matches!(sh.ascii, "1" | "%" | "g/mol" | "lb/lb-mol") {
+                    continue;
+                }
+                let unit = lookup_unit(sh.ascii).expect("ascii symbol in the unit table");
+                let si = 1.2345;
+                let dim = if k == Kind::TemperatureDifference {
+                    Dimension::TemperatureDifference
+                } else {
+                    unit.dimension
+                };
+                let shown = if k == Kind::TemperatureDifference {
+                    sh.difference(si)
+                } else {
+                    sh.value(si)
+                };
+                let back = parse_quantity(&format!("{shown} {}", sh.ascii), dim).unwrap();
+                assert!((back - si).abs() < 1e-9, "{k:?} {}", sh.ascii);
+            }
+        }
+    }
+
+    #[test]
+    fn a_job_read_in_inches_of_water_is_shown_in_inches_of_water() {
+        let t = DisplayTable::new(ConventionId::HvacIp, UnitSystem::InchPound);
+        // NIST SP 811 B.8: 1 inH2O (conventional) = 249.0889 Pa
+        assert_eq!(
+            t.format(Kind::VelocityPressure, 0.464 * 249.0889),
+            "0.464 inH2O"
+        );
+        // 68 °F = 293.15 K (definition of the scales)
+        assert_eq!(t.format(Kind::Temperature, 293.15), "68.0 °F");
+        // 1000 fpm = 5.08 m/s (1 ft = 0.3048 m exactly)
+        assert_eq!(t.format(Kind::Velocity, 5.08), "1000 fpm");
+        assert_eq!(t.get(Kind::ActualFlow).symbol, "acfm");
+        // 1 ft² = 0.09290304 m²
+        assert_eq!(t.format(Kind::Area, 0.557_418_24), "6.0000 ft²");
+        let stack = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
+        assert_eq!(stack.get(Kind::Velocity).symbol, "ft/s");
+        assert_eq!(stack.get(Kind::DryStandardFlow).symbol, "dscfm");
+        // 29.92 inHg = 101320.7 Pa (NIST SP 811 B.8 conventional inch of mercury)
+        assert_eq!(
+            stack.format(Kind::Barometric, 29.92 * 3386.389),
+            "29.92 inHg"
+        );
+    }
+
+    #[test]
+    fn epa_metric_and_si_are_their_own() {
+        let m = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::EpaMetric);
+        // 1 mmH2O (conventional) = 9.80665 Pa
+        assert_eq!(
+            m.format(Kind::VelocityPressure, 12.0 * 9.80665),
+            "12.00 mmH2O"
+        );
+        assert_eq!(m.format(Kind::Temperature, 423.15), "150.0 °C");
+        assert_eq!(m.get(Kind::DryStandardFlow).symbol, "dscm/h");
+        let iso = DisplayTable::new(ConventionId::Iso16911, UnitSystem::Si);
+        assert_eq!(iso.get(Kind::DryStandardFlow).symbol, "dNm³/h");
+        assert_eq!(
+            iso.with_reference_overridden(true)
+                .get(Kind::DryStandardFlow)
+                .symbol,
+            "m³/h"
+        );
+        assert_eq!(iso.format(Kind::StaticPressure, -250.4), "\u{2212}250 Pa");
+        assert_eq!(
+            UnitSystem::of(ConventionId::EpaMethod2, true),
+            UnitSystem::EpaMetric
+        );
+        assert_eq!(
+            UnitSystem::of(ConventionId::HvacIp, false),
+            UnitSystem::InchPound
+        );
+        assert_eq!(UnitSystem::of(ConventionId::HvacSi, false), UnitSystem::Si);
+        for s in UnitSystem::ALL {
+            assert_eq!(UnitSystem::parse(s.name()), Some(s));
+        }
+    }
+
+    #[test]
+    fn csv_headers_carry_parseable_symbols() {
+        let t = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
+        assert_eq!(t.get(Kind::VelocityPressure).header("dp"), "dp[inH2O]");
+        assert_eq!(
+            t.get(Kind::Temperature).header("temperature"),
+            "temperature[F]"
+        );
+        assert_eq!(
+            t.si().get(Kind::Temperature).header("temperature"),
+            "temperature[C]"
+        );
+    }
+
+    #[test]
+    fn numbers_never_print_inf_nan_or_negative_zero() {
+        assert_eq!(fixed(-0.85, 2), "\u{2212}0.85");
+        assert_eq!(fixed(-0.0004, 3), "0.000");
+        assert_eq!(fixed(f64::INFINITY, 1), "\u{2014}");
+        assert_eq!(fixed(f64::NAN, 1), "\u{2014}");
+        assert_eq!(grouped(1234567.891, 1), "1,234,567.9");
+        assert_eq!(grouped(-5318.8, 0), "\u{2212}5,319");
+        assert_eq!(grouped(999.0, 0), "999");
+        assert_eq!(significant(0.051_204, 3), "0.0512");
+        assert_eq!(significant(93_249.4, 4), "93249");
+        assert_eq!(significant(-2.5, 3), "\u{2212}2.5");
+    }
+
+    #[test]
+    fn percent_and_angles_take_their_own_spacing() {
+        let t = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
+        assert_eq!(t.format(Kind::Percent, 0.098), "9.8 %");
+        assert_eq!(t.format(Kind::Angle, 12.0), "12°");
+    }
+}
