@@ -8,7 +8,7 @@
 use super::axis;
 use super::colour::{LINE_COLOURS, LINE_DASHES};
 use super::svg::{esc, num, Anchor, Svg};
-use crate::report::model::{DisplayUnits, FieldPoint, Plane};
+use crate::report::model::{ChartUnits, FieldPoint, Plane};
 
 const WIDTH: f64 = 300.0;
 const HEIGHT: f64 = 250.0;
@@ -83,7 +83,7 @@ fn marker(svg: &mut Svg, shape: Shape, x: f64, y: f64, fill: &str, stroke: &str,
 }
 
 /// The profile chart of one run as an SVG document.
-pub fn profiles_svg(plane: &Plane, field: &[FieldPoint], units: &DisplayUnits) -> String {
+pub fn profiles_svg(plane: &Plane, field: &[FieldPoint], units: &ChartUnits) -> String {
     let mut svg = Svg::new(WIDTH, HEIGHT);
     let length = plane.line_length_m() * units.length_per_m;
     // The velocity axis spans the valid points (an excluded reading, e.g. a negative one, must not
