@@ -40,6 +40,21 @@ pub(crate) fn evaluated_text(name: &str, extra: &str) -> (Evaluation, Assessment
     evaluate_and_assess(loaded).unwrap_or_else(|e| panic!("sample `{name}` evaluates: {e:?}"))
 }
 
+/// The stack sample with its three runs read twice more (runs 4–6 repeat runs 1–3): a survey
+/// with more runs than fit one table.
+pub(crate) fn six_runs() -> (Evaluation, Assessment) {
+    let extra: String = (4..=6)
+        .map(|i| {
+            format!(
+                "\n[[run]]\nid = \"{i}\"\nreadings = \"run{}.csv\"\n\
+                 leak_check = {{ before = \"pass\", after = \"pass\" }}\n",
+                i - 3
+            )
+        })
+        .collect();
+    evaluated_text("stack", &extra)
+}
+
 /// A fixed identity: the report's id and fingerprint come from the archive bundle, which these
 /// tests do not make.
 pub(crate) fn identity() -> Identity {

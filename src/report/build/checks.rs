@@ -231,6 +231,19 @@ mod tests {
     }
 
     #[test]
+    fn many_runs_make_several_matrices_that_fit_the_page() {
+        let (e, a) = crate::report::testkit::six_runs();
+        let c = section(&Job::new(&e, &a));
+        assert_eq!(c.matrices.len(), 2);
+        assert_eq!(c.matrices[0].runs.len(), MAX_RUN_COLUMNS);
+        assert_eq!(c.matrices[1].runs, ["Run 6"]);
+        assert!(c
+            .matrices
+            .iter()
+            .all(|m| m.rows.iter().all(|r| r.cells.len() == m.runs.len())));
+    }
+
+    #[test]
     fn a_changed_check_says_so_without_repeating_the_reason() {
         let (e, a) = evaluated("bad-plane");
         let c = section(&Job::new(&e, &a));

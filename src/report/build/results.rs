@@ -6,16 +6,20 @@ use crate::display::{fixed, Kind};
 use crate::report::model::{ResultRow, ResultsTable, MAX_RUN_COLUMNS};
 
 pub(super) fn section(job: &Job) -> Vec<ResultsTable> {
+    let runs = job.e.runs.len();
     let mut columns: Vec<String> = job.e.runs.iter().map(|r| format!("Run {}", r.id)).collect();
     if job.e.average.is_some() {
         columns.push("Average".into());
     }
     let rows = rows(job);
-    // split the columns into groups that fit the page; the average stays with the last runs
+    // groups of runs that fit the page; the average goes with the last group
     let mut out = Vec::new();
     let mut start = 0;
     while start < columns.len() {
-        let end = (start + MAX_RUN_COLUMNS + 1).min(columns.len());
+        let mut end = (start + MAX_RUN_COLUMNS).min(runs);
+        if end == runs {
+            end = columns.len();
+        }
         out.push(ResultsTable {
             columns: columns[start..end].to_vec(),
             rows: rows.iter().map(|r| slice(r, start, end)).collect(),
@@ -238,14 +242,16 @@ mod tests {
 
     #[test]
     fn many_runs_split_into_tables_that_fit() {
-        let (e, a) = evaluated("stack");
-        let row = flow_row(&Job::new(&e, &a), Kind::ActualFlow);
-        let wide = ResultRow {
-            values: vec!["1".into(); 9],
-            si_values: vec!["2".into(); 9],
-            ..row
-        };
-        let left = slice(&wide, 0, 6);
-        assert_eq!((left.values.len(), left.si_values.len()), (6, 6));
+        let (e, a) = crate::report::testkit::six_runs();
+        let tables = section(&Job::new(&e, &a));
+        assert_eq!(tables.len(), 2);
+        assert_eq!(tables[0].columns.len(), MAX_RUN_COLUMNS);
+        assert_eq!(tables[1].columns, ["Run 6", "Average"]);
+        for t in &tables {
+            for r in &t.rows {
+                assert_eq!(r.values.len(), t.columns.len(), "{}", r.label);
+                assert!(r.si_values.is_empty() || r.si_values.len() == t.columns.len());
+            }
+        }
     }
 }
