@@ -50,7 +50,14 @@ fn probe(job: &Job) -> InstrumentRow {
                 "Cp {} (assigned by the calibration)",
                 fixed(p.coefficient, 4)
             ),
-            format!("calibration file {}", c.file),
+            // the report embeds the calibration file under its own name
+            format!(
+                "calibration file {} (attached)",
+                std::path::Path::new(&c.file)
+                    .file_name()
+                    .map(|n| n.to_string_lossy().into_owned())
+                    .unwrap_or_else(|| c.file.clone())
+            ),
         ),
         None => (
             format!("Cp {}", fixed(p.coefficient, 3)),
@@ -118,6 +125,19 @@ mod tests {
         assert_eq!(row(&rows, "air temperature").detail, "±1.8 °F");
         assert_eq!(row(&rows, "duct dimensions").detail, "±0.125 in");
         assert!(rows.iter().all(|r| !r.reference.contains(".md")));
+    }
+
+    #[test]
+    fn a_calibrated_probe_names_its_attached_certificate() {
+        let (e, a) = evaluated("stack");
+        let rows = section(&Job::new(&e, &a));
+        // sample-data/stack takes Cp from ../calibration/ts-0417.toml, assigned 0.8396
+        assert_eq!(rows[0].detail, "Cp 0.8396 (assigned by the calibration)");
+        assert_eq!(
+            rows[0].reference,
+            "calibration file ts-0417.toml (attached)"
+        );
+        assert_eq!(rows[0].due, "2027-05-11 (12 months)");
     }
 
     #[test]
