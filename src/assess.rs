@@ -14,6 +14,7 @@
 use crate::checks::instruments::{Instruments, TemperatureAccuracy};
 use crate::checks::integrity::ReportedValue;
 use crate::checks::{self, Finding, RunView, Settings, Status, Subject};
+use crate::display::Kind;
 use crate::flow::RunResult;
 use crate::geometry::Shape;
 use crate::input::assess_config::dp_record_units;
@@ -165,9 +166,23 @@ pub struct AverageAssessment {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Assumption {
     pub input: &'static str,
-    pub value: String,
+    pub value: AssumedValue,
     /// `[instruments]` or the default's source.
     pub basis: String,
+}
+
+/// The value of a budget input: a quantity a page prints in the job's units, or words.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum AssumedValue {
+    /// A bound (`±`) or a step of a kind of quantity, SI (a temperature bound is a difference).
+    Quantity {
+        kind: crate::display::Kind,
+        si: f64,
+        plus_minus: bool,
+    },
+    /// A relative figure or a choice, in words (`u = 0.5 % of the mean velocity`).
+    Words(String),
 }
 
 /// Everything the check stage found.
@@ -181,6 +196,8 @@ pub struct Assessment {
     pub average: Option<AverageAssessment>,
     /// The budget inputs and their sources (printed beside the budget).
     pub assumptions: Vec<Assumption>,
+    /// Every dated calibration with the interval the checks judged it by.
+    pub calibrations: Vec<checks::records::CalibrationDue>,
 }
 
 impl Assessment {
@@ -225,6 +242,7 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
         reported: &config.reported,
     };
     let findings = checks::run_all(&subject, &config.checks);
+    let calibrations = checks::records::calibration_dues(&subject, &config.checks);
 
     let mut assumptions = Vec::new();
     let mut budgets: Vec<Option<Budget>> = Vec::new();
@@ -272,6 +290,7 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
         runs,
         average,
         assumptions,
+        calibrations,
     }
 }
 
@@ -369,6 +388,18 @@ fn line_means(result: &RunResult) -> Vec<f64> {
     acc.into_iter().map(|(_, s, w)| s / w).collect()
 }
 
+fn words(text: String) -> AssumedValue {
+    AssumedValue::Words(text)
+}
+
+fn quantity(kind: Kind, si: f64, plus_minus: bool) -> AssumedValue {
+    AssumedValue::Quantity {
+        kind,
+        si,
+        plus_minus,
+    }
+}
+
 /// The budget inputs of one run and, for the record, where each came from.
 fn run_inputs(
     eval: &Evaluation,
@@ -380,7 +411,7 @@ fn run_inputs(
     let hvac = survey.convention.is_hvac();
     let root3 = 3f64.sqrt();
     let mut used = Vec::new();
-    let mut note = |input: &'static str, value: String, stated: bool, default_basis: &str| {
+    let mut note = |input: &'static str, value: AssumedValue, stated: bool, default_basis: &str| {
         used.push(Assumption {
             input,
             value,
@@ -415,21 +446,21 @@ fn run_inputs(
         if cp_stated {
             ", [instruments.pitot]"
         } else if survey.probe.kind == ProbeKind::SType {
-            ", default for a calibrated Type S pitot (calculations.md §5: 1–3 %)"
+            ", default for a calibrated Type S pitot (typically 1–3 %, common practice)"
         } else {
             ", default for a standard pitot (common practice)"
         }
     );
     note(
         "pitot coefficient",
-        format!(
+        words(format!(
             "U = {} % (k = {})",
             checks::num(cp_big_u * 100.0),
             checks::num(cp_k)
-        ),
+        )),
         cp_stated,
         if survey.probe.kind == ProbeKind::SType {
-            "a calibrated Type S pitot, typically 1–3 % (calculations.md §5)"
+            "a calibrated Type S pitot, typically 1–3 % (common practice)"
         } else {
             "a standard pitot (common practice)"
         },
@@ -438,7 +469,7 @@ fn run_inputs(
     let dp_acc = ins.dp.accuracy_fraction.unwrap_or(defaults::DP_ACCURACY);
     note(
         "dp accuracy",
-        format!("±{} % of reading", checks::num(dp_acc * 100.0)),
+        words(format!("±{} % of reading", checks::num(dp_acc * 100.0))),
         ins.dp.accuracy_fraction.is_some(),
         "common practice for a calibrated gauge",
     );
@@ -446,34 +477,40 @@ fn run_inputs(
     let resolution = ins.dp.resolution_pa.unwrap_or(step);
     note(
         "dp resolution",
-        format!("{} Pa", checks::num(resolution)),
+        quantity(Kind::VelocityPressure, resolution, false),
         ins.dp.resolution_pa.is_some(),
         "the last recorded decimal of the readings",
     );
     let zero = ins.dp.zero_pa.unwrap_or(resolution / 2.0);
     note(
         "dp zero",
-        format!("±{} Pa", checks::num(zero)),
+        quantity(Kind::VelocityPressure, zero, true),
         ins.dp.zero_pa.is_some(),
         "half a resolution step (common practice: a zeroed gauge reads zero to its last digit)",
     );
 
     let t = result.mean_temperature_k;
     let (t_bound, t_text, t_basis) = match ins.thermometer.accuracy {
-        Some(TemperatureAccuracy::Kelvin(a)) => (a, format!("±{} K", checks::num(a)), ""),
+        Some(TemperatureAccuracy::Kelvin(a)) => {
+            (a, quantity(Kind::TemperatureDifference, a, true), "")
+        }
         Some(TemperatureAccuracy::FractionOfAbsolute(f)) => (
             f * t,
-            format!("±{} % of absolute", checks::num(f * 100.0)),
+            words(format!("±{} % of absolute", checks::num(f * 100.0))),
             "",
         ),
         None if hvac => (
             defaults::AIR_THERMOMETER_K,
-            format!("±{} K", defaults::AIR_THERMOMETER_K),
+            quantity(
+                Kind::TemperatureDifference,
+                defaults::AIR_THERMOMETER_K,
+                true,
+            ),
             "common practice",
         ),
         None => (
             defaults::STACK_THERMOMETER_FRACTION * t,
-            "±1.5 % of absolute".to_string(),
+            words("±1.5 % of absolute".to_string()),
             "EPA Method 2 §6.3 sensor requirement (from memory)",
         ),
     };
@@ -487,16 +524,20 @@ fn run_inputs(
     let bar = ins.barometer.accuracy_pa.unwrap_or(defaults::BAROMETER_PA);
     note(
         "barometric pressure",
-        format!("±{} Pa", checks::num(bar)),
+        quantity(Kind::Barometric, bar, true),
         ins.barometer.accuracy_pa.is_some(),
-        "±0.1 inHg, EPA Method 2 §6.5 barometer requirement (from memory)",
+        if hvac {
+            "common practice"
+        } else {
+            "EPA Method 2 §6.5 barometer requirement (from memory)"
+        },
     );
     let stat = ins.static_gauge.accuracy_pa.unwrap_or(defaults::STATIC_PA);
     note(
         "static pressure",
-        format!("±{} Pa", checks::num(stat)),
+        quantity(Kind::StaticPressure, stat, true),
         ins.static_gauge.accuracy_pa.is_some(),
-        "±0.1 inH2O (common practice)",
+        "common practice",
     );
     let mm = ins.gas.molar_mass_u_rel.unwrap_or(if hvac {
         defaults::AIR_MOLAR_MASS_U
@@ -505,7 +546,10 @@ fn run_inputs(
     });
     note(
         "gas composition and moisture",
-        format!("u = {} % of the wet molar mass", checks::num(mm * 100.0)),
+        words(format!(
+            "u = {} % of the wet molar mass",
+            checks::num(mm * 100.0)
+        )),
         ins.gas.molar_mass_u_rel.is_some(),
         if hvac {
             "air (common practice)"
@@ -516,9 +560,9 @@ fn run_inputs(
     let tape = ins.tape.accuracy_m.unwrap_or(defaults::TAPE_M);
     note(
         "duct dimensions",
-        format!("±{} mm", checks::num(tape * 1000.0)),
+        quantity(Kind::Length, tape, true),
         ins.tape.accuracy_m.is_some(),
-        "±1/8 in (common practice)",
+        "common practice for a tape or rule",
     );
     let duct = match eval.plane.layout.duct().shape() {
         Shape::Round { diameter_m } => DuctDimensions::Round { diameter_m },
@@ -529,9 +573,10 @@ fn run_inputs(
     let spatial = ins.spatial_method.unwrap_or(SpatialMethod::Scatter);
     note(
         "spatial integration",
-        spatial.name().to_string(),
+        words(spatial.name().to_string()),
         ins.spatial_method.is_some(),
-        "point-scatter, the conservative option (calculations.md §5)",
+        "point-scatter, the conservative option (JCGM 100:2008 Type A evaluation of the point \
+         scatter; common practice)",
     );
     let wall_u = if result.wall_factor < 1.0 {
         let u = ins
@@ -539,9 +584,9 @@ fn run_inputs(
             .unwrap_or(defaults::WALL_FACTOR_BOUND / root3);
         note(
             "wall factor",
-            format!("u = {} %", checks::num(u * 100.0)),
+            words(format!("u = {} %", checks::num(u * 100.0))),
             ins.wall_factor_u_rel.is_some(),
-            "±0.5 % rectangular (common practice)",
+            "±0.5 %, rectangular (common practice)",
         );
         u
     } else {
@@ -550,10 +595,10 @@ fn run_inputs(
     let positioning = ins.positioning_u_rel.unwrap_or(defaults::POSITIONING_U);
     note(
         "probe positioning",
-        format!(
+        words(format!(
             "u = {} % of the mean velocity",
             checks::num(positioning * 100.0)
-        ),
+        )),
         ins.positioning_u_rel.is_some(),
         "common practice",
     );

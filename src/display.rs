@@ -63,7 +63,8 @@ impl UnitSystem {
 /// What a number on a screen or page is: the kinds of quantity the program prints. Finer than
 /// [`crate::units::Dimension`]: a velocity pressure and a barometric pressure are both pressures
 /// but are read in different units.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Kind {
     /// Duct dimensions, point positions, port lengths.
     Length,
@@ -397,6 +398,30 @@ pub fn grouped(value: f64, decimals: usize) -> String {
     format!("{sign}{out}{frac}")
 }
 
+/// A length in inches to the nearest eighth, as a probe is marked or a tape read: `12 3/8`, `7`,
+/// `1/4` (the 1/8 in marking increment is common practice on inch-scale probes). `None` when
+/// `inches` is not within 0.001 in of an eighth (marks made to another step keep their decimals).
+pub fn inch_eighths(inches: f64) -> Option<String> {
+    let eighths = (inches * 8.0).round();
+    if !inches.is_finite() || (inches - eighths / 8.0).abs() > 1e-3 {
+        return None;
+    }
+    let sign = if eighths < 0.0 { "\u{2212}" } else { "" };
+    let n = eighths.abs() as u64;
+    let (whole, rest) = (n / 8, n % 8);
+    // reduce k/8 to its lowest terms
+    let (num, den) = match rest {
+        2 | 6 => (rest / 2, 4),
+        4 => (1, 2),
+        r => (r, 8),
+    };
+    Some(match (whole, rest) {
+        (w, 0) => format!("{sign}{w}"),
+        (0, _) => format!("{sign}{num}/{den}"),
+        (w, _) => format!("{sign}{w} {num}/{den}"),
+    })
+}
+
 /// `sig` significant figures, never in exponent form, with trailing zeros of the fraction kept
 /// only up to the significance asked (`0.05120` → `0.0512`).
 pub fn significant(value: f64, sig: usize) -> String {
@@ -545,6 +570,16 @@ mod tests {
         assert_eq!(significant(0.051_204, 3), "0.0512");
         assert_eq!(significant(93_249.4, 4), "93249");
         assert_eq!(significant(-2.5, 3), "\u{2212}2.5");
+    }
+
+    #[test]
+    fn probe_marks_read_in_eighths() {
+        assert_eq!(inch_eighths(12.375).as_deref(), Some("12 3/8"));
+        assert_eq!(inch_eighths(8.0).as_deref(), Some("8"));
+        assert_eq!(inch_eighths(0.25).as_deref(), Some("1/4"));
+        assert_eq!(inch_eighths(30.5).as_deref(), Some("30 1/2"));
+        assert_eq!(inch_eighths(2.875).as_deref(), Some("2 7/8"));
+        assert_eq!(inch_eighths(2.016), None, "not a mark to the eighth");
     }
 
     #[test]

@@ -17,7 +17,7 @@ use crate::uncertainty::t_975;
 const M_PER_FT: f64 = 0.3048;
 
 /// Limits of a flow-monitor RATA, with their source.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct RataLimits {
     /// Fewest runs that must remain after rejections.
     pub min_used_runs: usize,

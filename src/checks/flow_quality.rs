@@ -58,7 +58,7 @@ pub static RESULTANT_ANGLE: CheckDef = CheckDef {
     id: "resultant-angle",
     group: Group::Flow,
     description: "alternative site procedure: resultant angle R = arccos(cos Y·cos P), its mean and sample standard deviation",
-    source: "EPA Method 1 (40 CFR 60 App. A-1) §11.5 alternative procedure (methods.md §3 [M])",
+    source: "EPA Method 1 (40 CFR 60 App. A-1) §11.5 alternative procedure (from memory)",
     criterion: "",
     limits: &[
         spec("mean", "mean R ≤ {}", 20.0, ANGLE, Stricter::Lower),
@@ -74,7 +74,7 @@ pub static EN15259_FLOW_ANGLE: CheckDef = CheckDef {
     id: "en15259-flow-angle",
     group: Group::Flow,
     description: "flow angle to the duct axis at every point (resultant of yaw and pitch where pitch is read)",
-    source: "EN 15259 measurement-plane criteria (methods.md §3 [M])",
+    source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "",
     limits: &[spec("limit", "every point's flow angle < {}", 15.0, ANGLE, Stricter::Lower)],
     conventions: ISO,
@@ -87,7 +87,7 @@ pub static EN15259_REVERSE_FLOW: CheckDef = CheckDef {
     id: "en15259-reverse-flow",
     group: Group::Flow,
     description: "no local negative (reverse) flow in the plane",
-    source: "EN 15259 measurement-plane criteria (methods.md §3 [M])",
+    source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "no negative Δp at any point",
     limits: &[],
     conventions: ISO,
@@ -100,7 +100,7 @@ pub static EN15259_MINIMUM_DP: CheckDef = CheckDef {
     id: "en15259-minimum-dp",
     group: Group::Flow,
     description: "every pitot differential pressure above the EN 15259 minimum",
-    source: "EN 15259 measurement-plane criteria (methods.md §3 [M])",
+    source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "",
     limits: &[spec(
         "limit",
@@ -119,7 +119,7 @@ pub static EN15259_VELOCITY_RATIO: CheckDef = CheckDef {
     id: "en15259-velocity-ratio",
     group: Group::Flow,
     description: "ratio of the highest to the lowest point velocity",
-    source: "EN 15259 measurement-plane criteria (methods.md §3 [M])",
+    source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "",
     limits: &[spec(
         "limit",
@@ -138,7 +138,7 @@ pub static DISTRIBUTION: CheckDef = CheckDef {
     id: "distribution",
     group: Group::Flow,
     description: "share of velocity-pressure readings above a tenth of the largest, and none negative",
-    source: "AMCA Publication 203 distribution rule, as restated in TAB procedures (methods.md §4; AMCA wording from memory)",
+    source: "AMCA Publication 203 distribution rule, as restated in TAB procedures (AMCA wording from memory)",
     criterion: "no negative reading",
     limits: &[
         spec("share", "more than {} of the readings", 0.75, FRACTION, Stricter::Higher),
@@ -155,7 +155,7 @@ pub static NEGATIVE_READINGS: CheckDef = CheckDef {
     group: Group::Flow,
     description:
         "every zero or negative Δp reading, with the treatment the survey chose for the average",
-    source: "TAB procedures; EPA Method 2 practice (methods.md §4)",
+    source: "TAB procedures; EPA Method 2 practice",
     criterion: "no zero or negative Δp",
     limits: &[],
     conventions: ALL,

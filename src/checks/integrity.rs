@@ -95,7 +95,7 @@ pub static REPORTED_VALUES: CheckDef = CheckDef {
     id: "reported-values",
     group: Group::Data,
     description: "values stated in [reported] agree with the results recomputed from the readings",
-    source: "common practice (QA review; the √(mean Δp) error per calculations.md §8)",
+    source: "common practice (QA review; a figure recomputed from √(mean Δp) instead of the mean of √Δp is a known slip)",
     criterion: "",
     limits: &[LimitSpec {
         key: "tolerance",

@@ -51,6 +51,22 @@ pub enum Group {
     Data,
 }
 
+/// How a finding's message carries the survey's setting of the check: ` (limit relaxed …: reason)`.
+fn setting_suffix(setting: &str) -> String {
+    format!(" ({setting})")
+}
+
+impl Finding {
+    /// The message without the survey's setting, for a page that prints each setting once on its
+    /// own (the report's deviations).
+    pub fn message_without_setting(&self) -> String {
+        match &self.setting {
+            Some(s) => self.message.replacen(&setting_suffix(s), "", 1),
+            None => self.message.clone(),
+        }
+    }
+}
+
 /// The outcome of one check.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
 #[serde(rename_all = "kebab-case")]
@@ -705,7 +721,7 @@ impl<'a> Rule<'a> {
         let mut message = message.into();
         let setting = self.setting_text(computed);
         if let Some(s) = &setting {
-            message.push_str(&format!(" ({s})"));
+            message.push_str(&setting_suffix(s));
         }
         if self.def.from_memory && status != Status::NotApplicable {
             message.push_str(" [limit from memory, not yet confirmed against the standard]");

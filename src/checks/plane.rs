@@ -54,7 +54,7 @@ pub static STRAIGHT_RUN_EN15259: CheckDef = CheckDef {
     id: "straight-run-en15259",
     group: Group::Plane,
     description: "straight duct before and after the plane against the EN 15259 guidance (the plane criteria decide)",
-    source: "EN 15259 measurement-plane guidance (methods.md §3 [M])",
+    source: "EN 15259 measurement-plane guidance (from memory)",
     criterion: "",
     limits: &[
         at_least("upstream", "≥ {} upstream (hydraulic diameters)", 5.0, DIAMETERS),
@@ -70,7 +70,7 @@ pub static STRAIGHT_RUN_HVAC: CheckDef = CheckDef {
     id: "straight-run-hvac",
     group: Group::Plane,
     description: "straight duct before and after the plane against HVAC field guidance",
-    source: "HVAC test-and-balance field practice (methods.md §3 [P secondary])",
+    source: "HVAC test-and-balance field practice",
     criterion: "",
     limits: &[
         at_least(
@@ -196,7 +196,7 @@ pub static WALL_DISTANCE_EN15259: CheckDef = CheckDef {
     id: "wall-distance-en15259",
     group: Group::Plane,
     description: "no traverse point closer to a wall than the EN 15259 minimum",
-    source: "EN 15259 minimum wall distance (methods.md §1.4 [M])",
+    source: "EN 15259 minimum wall distance (from memory)",
     criterion: "",
     limits: &[
         at_least(
@@ -547,10 +547,8 @@ fn point_count(rule: &Rule, s: &Subject) -> Vec<Finding> {
 fn point_count_source(c: ConventionId) -> &'static str {
     match c {
         ConventionId::EpaMethod2 => "EPA Method 1 (40 CFR 60 App. A-1) §11.2, Figures 1-1/1-2",
-        ConventionId::Iso16911 => "EN 15259 minimum points by plane area (methods.md §1.4 [M])",
-        ConventionId::HvacIp | ConventionId::HvacSi => {
-            "TAB field procedures (methods.md §1.2, §2.1 [P])"
-        }
+        ConventionId::Iso16911 => "EN 15259 minimum points by plane area (from memory)",
+        ConventionId::HvacIp | ConventionId::HvacSi => "TAB field procedures",
     }
 }
 

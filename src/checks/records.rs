@@ -4,13 +4,14 @@
 //! Owns the date arithmetic of calibration intervals (calendar months, chrono). The survey date is
 //! the reference: this module never looks at the clock. No files, no printing.
 
-use super::instruments::Calibration;
+use super::instruments::{Calibration, Role};
 use super::{
     CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, Status, Stricter,
     Subject, ALL,
 };
 use crate::survey::ProbeKind;
 use chrono::{Months, NaiveDate};
+use serde::Serialize;
 
 const INTERVAL: LimitSpec = LimitSpec {
     key: "interval_months",
@@ -63,6 +64,64 @@ pub enum CalibrationState {
     },
 }
 
+/// The last day a calibration made on `calibrated` covers with an interval of `interval_months`
+/// calendar months (chrono month arithmetic clamps to the month's end, e.g. 31 Jan + 1 month =
+/// 28/29 Feb); `None` beyond the calendar's range. The one place a due date is worked out.
+pub fn valid_until(calibrated: NaiveDate, interval_months: u32) -> Option<NaiveDate> {
+    calibrated.checked_add_months(Months::new(interval_months))
+}
+
+/// A dated calibration on record, with the interval the calibration checks judge it by and the
+/// last day it covers: the checks and the report's instrument table read the same datum.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CalibrationDue {
+    /// `[instruments]` key of the instrument (`pitot`, `dp`, …); the survey's `[probe]` is `pitot`.
+    pub key: &'static str,
+    /// The instrument in words, e.g. `dp gauge`.
+    pub instrument: &'static str,
+    pub serial: Option<String>,
+    pub calibrated: NaiveDate,
+    pub interval_months: u32,
+    pub valid_until: Option<NaiveDate>,
+}
+
+fn probe_interval(rule: &Rule) -> u32 {
+    rule.value("interval_months").round() as u32
+}
+
+/// Every dated calibration of a survey: the probe's (`[probe] calibrated`), then each
+/// `[instruments]` entry's, with the interval in force (the survey's `[checks]` setting, the
+/// instrument's own `interval_months`, or the default).
+pub fn calibration_dues(s: &Subject, settings: &super::Settings) -> Vec<CalibrationDue> {
+    let rule = |def: &'static CheckDef| Rule::new(def, settings.get(def.id), s.units());
+    let mut out = Vec::new();
+    if let Some(date) = s.survey.probe.calibrated {
+        let months = probe_interval(&rule(&PROBE_CALIBRATION));
+        out.push(CalibrationDue {
+            key: Role::Pitot.key(),
+            instrument: Role::Pitot.name(),
+            serial: s.survey.probe.serial.clone(),
+            calibrated: date,
+            interval_months: months,
+            valid_until: valid_until(date, months),
+        });
+    }
+    let default = probe_interval(&rule(&INSTRUMENT_CALIBRATION));
+    for (role, cal) in s.instruments.calibrations() {
+        let Some(date) = cal.calibrated else { continue };
+        let months = cal.interval_months.unwrap_or(default);
+        out.push(CalibrationDue {
+            key: role.key(),
+            instrument: role.name(),
+            serial: cal.serial.clone(),
+            calibrated: date,
+            interval_months: months,
+            valid_until: valid_until(date, months),
+        });
+    }
+    out
+}
+
 /// Judges `calibrated + interval_months` against `test_date`. A calibration covers the test up to
 /// and including the same calendar day `interval_months` later (chrono month arithmetic clamps to
 /// the month's end, e.g. 31 Jan + 1 month = 28/29 Feb).
@@ -74,7 +133,7 @@ pub fn calibration_state(
     if calibrated > test_date {
         return CalibrationState::AfterTest;
     }
-    match calibrated.checked_add_months(Months::new(interval_months)) {
+    match valid_until(calibrated, interval_months) {
         Some(until) if test_date <= until => CalibrationState::Current { valid_until: until },
         Some(until) => CalibrationState::Expired { expired_on: until },
         None => CalibrationState::Current {
@@ -113,7 +172,7 @@ fn judge(
 
 fn probe_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
     let p = &s.survey.probe;
-    let interval = rule.value("interval_months").round() as u32;
+    let interval = probe_interval(rule);
     let what = match &p.serial {
         Some(serial) => format!("pitot {serial}"),
         None => "the pitot".to_string(),
@@ -164,7 +223,7 @@ fn probe_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
 }
 
 fn instrument_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
-    let default = rule.value("interval_months").round() as u32;
+    let default = probe_interval(rule);
     let mut out = Vec::new();
     for (role, cal) in s.instruments.calibrations() {
         let Calibration {

@@ -39,7 +39,7 @@ pub static LEAK_CHECK: CheckDef = CheckDef {
     id: "leak-check",
     group: Group::Run,
     description: "pitot leak checks before and after the run recorded and passed; a failed or missing post-run check voids the run",
-    source: "EPA Method 2 (40 CFR 60 App. A-1) §8.1 post-test leak check (methods.md §4 [P secondary])",
+    source: "EPA Method 2 (40 CFR 60 App. A-1) §8.1 post-test leak check",
     criterion: "pre- and post-run leak checks recorded and passed",
     limits: &[],
     conventions: ALL,
@@ -131,8 +131,7 @@ pub static STEADY_FLOW_METHOD_1A: CheckDef = CheckDef {
     group: Group::Run,
     description:
         "small-duct (Method 1A) velocity traverses before and after agree, showing steady flow",
-    source:
-        "EPA Method 1A (40 CFR 60 App. A-1) steady-flow requirement (methods.md §4 [P secondary])",
+    source: "EPA Method 1A (40 CFR 60 App. A-1) steady-flow requirement",
     criterion: "",
     limits: &[spec(
         "limit",

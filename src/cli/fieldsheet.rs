@@ -2,28 +2,52 @@
 
 use super::plane_args::PlaneSetting;
 use crate::diag::Error;
+use crate::display::UnitSystem;
+use crate::input::survey::PlaneParts;
 use crate::layout::ProbeMark;
 use crate::plane::Plane;
-use crate::report::build::field_sheet_data;
+use crate::report::build::{field_sheet_data, SheetPlane};
 use crate::report::{write_atomic, Engine};
 use std::path::Path;
 
-pub fn write(out: &Path, s: &PlaneSetting, p: &Plane, marks: &[ProbeMark]) -> Result<(), Error> {
-    let title = s
-        .survey_path
-        .as_ref()
-        .map(|p| format!("Field data sheet — {}", p.display()))
-        .unwrap_or_else(|| "Field data sheet".to_string());
-    let data = field_sheet_data(
-        &p.layout,
+/// What the sheet takes from a survey file besides its plane: the names in its heading and the
+/// EPA unit form.
+pub struct SheetNames {
+    pub title: String,
+    pub site: Option<String>,
+    pub plane: Option<String>,
+    pub epa_metric: bool,
+}
+
+impl SheetNames {
+    pub fn of(p: &PlaneParts) -> SheetNames {
+        SheetNames {
+            title: p.title.clone(),
+            site: p.site.clone(),
+            plane: p.plane.clone(),
+            epa_metric: p.epa_metric,
+        }
+    }
+}
+
+pub fn write(
+    out: &Path,
+    s: &PlaneSetting,
+    p: &Plane,
+    marks: &[ProbeMark],
+    names: Option<&SheetNames>,
+) -> Result<(), Error> {
+    let data = field_sheet_data(&SheetPlane {
+        layout: &p.layout,
         marks,
-        s.convention,
-        s.port_length_m,
-        s.upstream_d,
-        s.downstream_d,
-        p.required_points,
-        &title,
-    );
+        convention: s.convention,
+        system: UnitSystem::of(s.convention, names.is_some_and(|n| n.epa_metric)),
+        port_length_m: s.port_length_m,
+        required_points: p.required_points,
+        title: names.map(|n| n.title.clone()),
+        site: names.and_then(|n| n.site.clone()),
+        plane_location: names.and_then(|n| n.plane.clone()),
+    });
     // A blank sheet is dated the day it is printed (SOURCE_DATE_EPOCH pins it); the command line is
     // the edge where the clock may be read.
     let date = super::report::document_date(chrono::Local::now().date_naive())?;

@@ -85,6 +85,9 @@ pub fn run(args: LayoutArgs, ctx: &Ctx) -> Result<i32, Error> {
         Some(p) => Some((p.clone(), survey_only(p)?)),
         None => None,
     };
+    let names = survey
+        .as_ref()
+        .map(|(_, p)| super::fieldsheet::SheetNames::of(p));
     let setting = args.plane.settle(survey)?;
     let plane = plane_for(&setting)?;
     let marks = probe_marks(&plane.layout, setting.port_length_m, setting.mark_step);
@@ -95,7 +98,7 @@ pub fn run(args: LayoutArgs, ctx: &Ctx) -> Result<i32, Error> {
     };
     super::emit(&text)?;
     if let Some(out) = &args.pdf {
-        super::fieldsheet::write(out, &setting, &plane, &marks)?;
+        super::fieldsheet::write(out, &setting, &plane, &marks, names.as_ref())?;
         if !ctx.quiet {
             eprintln!("wrote field data sheet {}", out.display());
         }

@@ -154,7 +154,29 @@ impl Convention {
 
     /// Lines that say how the numbers were made, printed with every result.
     pub fn describe(&self) -> Vec<String> {
-        let mut v = match (self.id, self.epa_form) {
+        let mut v = self.formulas();
+        v.push(format!(
+            "reference {:.2} K, {:.1} Pa, {} basis{}",
+            self.reference_temperature_k,
+            self.reference_pressure_pa,
+            if self.dry_basis {
+                "dry"
+            } else {
+                "wet (by density)"
+            },
+            if self.overridden {
+                " (set by the survey)"
+            } else {
+                ""
+            }
+        ));
+        v
+    }
+
+    /// The equations the convention computes with, in the form's own units (the report prints
+    /// them; the reference conditions it states in the job's units on its own).
+    pub fn formulas(&self) -> Vec<String> {
+        match (self.id, self.epa_form) {
             (ConventionId::EpaMethod2, EpaForm::English) => vec![
                 "EPA Method 2 (40 CFR 60 App. A-1) eqs. 2-6 to 2-10, English units".to_string(),
                 "vs = 85.49·Cp·(√Δp)avg·√(Ts/(Ps·Ms)); Ts = °F + 460; Ps = Pbar + Pg/13.6".to_string(),
@@ -180,23 +202,7 @@ impl Convention {
                 "HVAC SI: v = C·√(2·Δp/ρ); moist air density by ASHRAE Fundamentals ch. 1".to_string(),
                 "standard flow by density: Q_std = Q·ρ/1.2".to_string(),
             ],
-        };
-        v.push(format!(
-            "reference {:.2} K, {:.1} Pa, {} basis{}",
-            self.reference_temperature_k,
-            self.reference_pressure_pa,
-            if self.dry_basis {
-                "dry"
-            } else {
-                "wet (by density)"
-            },
-            if self.overridden {
-                " (set by the survey)"
-            } else {
-                ""
-            }
-        ));
-        v
+        }
     }
 }
 

@@ -316,6 +316,12 @@ pub struct PlaneParts {
     pub port_length_m: f64,
     pub liner_m: f64,
     pub layout: LayoutRequest,
+    /// The survey's title, site and plane, for the blank field sheet's heading.
+    pub title: String,
+    pub site: Option<String>,
+    pub plane: Option<String>,
+    /// `[flow] epa_units = "metric"` (the sheet is printed in Method 2's metric units).
+    pub epa_metric: bool,
 }
 
 fn build_plane(cx: &mut Ctx, raw: &RawSurvey) -> Option<PlaneParts> {
@@ -451,6 +457,14 @@ fn build_plane(cx: &mut Ctx, raw: &RawSurvey) -> Option<PlaneParts> {
         port_length_m,
         liner_m: liner,
         layout,
+        title: raw.survey.title.clone(),
+        site: raw.survey.site.clone(),
+        plane: raw.survey.plane.clone(),
+        epa_metric: raw
+            .flow
+            .as_ref()
+            .and_then(|f| f.epa_units.as_ref())
+            .is_some_and(|v| v.get_ref().trim() == "metric"),
     })
 }
 

@@ -1,10 +1,13 @@
-//! Generic documents: render any layout template against a JSON value, with metadata and embedded
-//! files, for the PDFs that are not the flow test report (the pitot calibration certificate, the
-//! RATA summary).
+//! Generic documents: render any layout template against a typed presentation model, with
+//! metadata and embedded files, for the PDFs that are not the flow test report.
 //!
-//! Owns the [`Document`] description and [`Engine::render_document`]. Must not compute, read
-//! files or look at the clock: the caller gives the template text, the data (numbers already
-//! formatted), the document date and the attachment bytes.
+//! Owns the [`Presentation`] trait (a typed model that knows its template and its PDF metadata),
+//! [`Engine::render`] and the lower-level [`Document`] description. The models live beside it:
+//! [`super::certificate::Certificate`] (the pitot calibration certificate) and
+//! [`super::rata::RataSummary`] (the RATA summary). A new document (the system submittal, say) is a
+//! struct in its own file under `report/` implementing [`Presentation`], with its template in
+//! `templates/`. Must not compute, read files or look at the clock: the caller gives the model
+//! (numbers already formatted), the document date and the attachment bytes.
 //!
 //! The world a document compiles in has the same shape as the report's (see [`super::engine`]):
 //!
@@ -12,7 +15,7 @@
 //! |---|---|
 //! | `/main.typ` | entry point: `set document(…)`, the template, then `pdf.attach` per attachment |
 //! | `/template.typ` | the layout template |
-//! | `/data.json` | [`Document::data`] |
+//! | `/data.json` | the presentation model |
 //! | `/meta.json` | metadata and the attachment list |
 //! | `/attachments/N` | the bytes of attachment N |
 //!
@@ -28,21 +31,11 @@ use super::attach::{check_unique, Attachment};
 use super::engine::{
     meta_attachments, meta_date, to_json, Engine, Job, Meta, RenderError, Rendered,
 };
+use typst::foundations::Bytes;
 
-/// The built-in Type S pitot calibration certificate.
-pub const CALIBRATION_TEMPLATE: &str = include_str!("../../templates/calibration.typ");
-/// The built-in RATA summary.
-pub const RATA_TEMPLATE: &str = include_str!("../../templates/rata.typ");
-
-/// A document to render.
-#[derive(Debug, Clone)]
-pub struct Document {
-    /// Typst layout text; reads `json("/data.json")`.
-    pub template: String,
-    /// Name diagnostics give the template (`calibration.typ`).
-    pub template_name: String,
-    /// The data the template lays out (numbers already formatted as strings).
-    pub data: serde_json::Value,
+/// The PDF metadata of a document.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DocumentMeta {
     pub title: String,
     /// Authors; empty entries are dropped.
     pub author: Vec<String>,
@@ -52,35 +45,76 @@ pub struct Document {
     pub ident: String,
     /// Document date (and Typst's "today"). Never the clock.
     pub date: chrono::NaiveDate,
+}
+
+/// A typed presentation model with its built-in template: what [`Engine::render`] lays out.
+pub trait Presentation: serde::Serialize {
+    /// The built-in layout template (Typst text reading `json("/data.json")`).
+    const TEMPLATE: &'static str;
+    /// The template's name in diagnostics, e.g. `calibration.typ`.
+    const TEMPLATE_NAME: &'static str;
+    /// The document's PDF metadata.
+    fn meta(&self) -> DocumentMeta;
+}
+
+/// A document to render: a template, its data and metadata, and the files to embed.
+#[derive(Debug, Clone)]
+pub struct Document {
+    /// Typst layout text; reads `json("/data.json")`.
+    pub template: String,
+    /// Name diagnostics give the template (`calibration.typ`).
+    pub template_name: String,
+    /// The data the template lays out, as JSON bytes (numbers already formatted as strings).
+    pub data: Vec<u8>,
+    pub meta: DocumentMeta,
     pub attachments: Vec<Attachment>,
+}
+
+impl Engine {
+    /// Renders a typed presentation model with its built-in template, embedding `attachments`.
+    pub fn render<P: Presentation>(
+        &self,
+        model: &P,
+        attachments: Vec<Attachment>,
+    ) -> Result<Rendered, RenderError> {
+        let data = serde_json::to_vec(model).map_err(|e| RenderError::Internal(e.to_string()))?;
+        self.render_document(&Document {
+            template: P::TEMPLATE.to_string(),
+            template_name: P::TEMPLATE_NAME.to_string(),
+            data,
+            meta: model.meta(),
+            attachments,
+        })
+    }
 }
 
 impl Engine {
     /// Renders `doc` to a PDF/A-3b file. The output is byte-identical for the same document.
     pub fn render_document(&self, doc: &Document) -> Result<Rendered, RenderError> {
         check_unique(&doc.attachments)?;
+        let m = &doc.meta;
         let meta = Meta {
-            title: &doc.title,
-            author: doc
+            title: &m.title,
+            author: m
                 .author
                 .iter()
                 .map(String::as_str)
                 .filter(|a| !a.trim().is_empty())
                 .collect(),
-            keywords: doc.keywords.clone(),
-            description: doc.description.clone(),
-            date: meta_date(doc.date),
+            keywords: m.keywords.clone(),
+            description: m.description.clone(),
+            date: meta_date(m.date),
             attachments: meta_attachments(&doc.attachments),
         };
         self.run(Job {
             template: &doc.template,
             template_name: &doc.template_name,
-            data: to_json(&doc.data)?,
-            charts: to_json(&serde_json::json!({}))?,
+            data: Bytes::new(doc.data.clone()),
+            charts: Bytes::new(b"{}".to_vec()),
             meta: to_json(&meta)?,
             attachments: &doc.attachments,
-            date: doc.date,
-            ident: doc.ident.clone(),
+            date: m.date,
+            ident: m.ident.clone(),
             standard: PdfStandard::A_3b,
         })
     }
@@ -95,13 +129,15 @@ mod tests {
         Document {
             template: template.to_string(),
             template_name: "t.typ".into(),
-            data: serde_json::json!({ "greeting": "hello from data" }),
-            title: "A test document".into(),
-            author: vec!["Tester".into(), " ".into()],
-            keywords: vec!["test".into()],
-            description: "A document made by a test".into(),
-            ident: "annulus-test/1".into(),
-            date: chrono::NaiveDate::from_ymd_opt(2026, 5, 11).expect("valid date"),
+            data: br#"{ "greeting": "hello from data" }"#.to_vec(),
+            meta: DocumentMeta {
+                title: "A test document".into(),
+                author: vec!["Tester".into(), " ".into()],
+                keywords: vec!["test".into()],
+                description: "A document made by a test".into(),
+                ident: "annulus-test/1".into(),
+                date: chrono::NaiveDate::from_ymd_opt(2026, 5, 11).expect("valid date"),
+            },
             attachments: vec![Attachment::new(
                 "data.csv",
                 b"a,b\n1,2\n".to_vec(),

@@ -449,7 +449,7 @@ impl Engine {
             keywords: vec!["field data sheet".into(), "velocity traverse".into()],
             description: format!(
                 "Blank velocity traverse data sheet: {}",
-                sheet.plane_location
+                sheet.plane_location.as_deref().unwrap_or(&sheet.title)
             ),
             date: meta_date(date),
             attachments: Vec::new(),
@@ -464,7 +464,8 @@ impl Engine {
             date,
             ident: format!(
                 "annulus-field-sheet/{}/{}",
-                sheet.title, sheet.plane_location
+                sheet.title,
+                sheet.plane_location.as_deref().unwrap_or_default()
             ),
             standard: PdfStandard::A_2b,
         })

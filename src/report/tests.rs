@@ -1,8 +1,16 @@
-//! Render tests: the demo reports through the real engine, read back with lopdf and pdftotext.
+//! Render tests: the sample surveys' reports (built through the real pipeline) rendered by the
+//! real engine, read back with lopdf and pdftotext.
 
 use std::sync::OnceLock;
 
+use super::testkit::{field_sheet, identity, report};
 use super::*;
+
+/// The stack sample's model, built once.
+fn stack() -> &'static ReportData {
+    static DATA: OnceLock<ReportData> = OnceLock::new();
+    DATA.get_or_init(|| report("stack"))
+}
 
 fn engine() -> &'static Engine {
     static ENGINE: OnceLock<Engine> = OnceLock::new();
@@ -13,7 +21,7 @@ fn date() -> chrono::NaiveDate {
     chrono::NaiveDate::from_ymd_opt(2026, 10, 14).unwrap()
 }
 
-fn demo_attachments() -> Vec<Attachment> {
+fn sample_attachments() -> Vec<Attachment> {
     vec![
         Attachment::new(
             "boiler2.toml",
@@ -39,12 +47,12 @@ fn demo_attachments() -> Vec<Attachment> {
     ]
 }
 
-fn render_demo() -> Rendered {
+fn render_stack() -> Rendered {
     let options = RenderOptions {
         date: date(),
-        attachments: demo_attachments(),
+        attachments: sample_attachments(),
     };
-    match engine().render_report(&ReportData::demo(), &options) {
+    match engine().render_report(stack(), &options) {
         Ok(r) => r,
         Err(e) => panic!("{e}"),
     }
@@ -66,24 +74,24 @@ fn pdf_text(pdf: &[u8]) -> String {
 }
 
 #[test]
-fn demo_report_renders_without_warnings() {
-    let r = render_demo();
+fn stack_report_renders_without_warnings() {
+    let r = render_stack();
     let warnings: Vec<String> = r.warnings.iter().map(|w| w.to_string()).collect();
     assert!(warnings.is_empty(), "{warnings:#?}");
     assert!(r.pdf.starts_with(b"%PDF-"));
 }
 
 #[test]
-fn rectangular_demo_and_field_sheets_render_without_warnings() {
+fn hvac_report_and_field_sheets_render_without_warnings() {
     let options = RenderOptions {
         date: date(),
         attachments: vec![],
     };
     let rect = engine()
-        .render_report(&ReportData::demo_rectangular(), &options)
+        .render_report(&report("hvac"), &options)
         .unwrap_or_else(|e| panic!("{e}"));
     assert!(rect.warnings.is_empty(), "{:#?}", rect.warnings);
-    for sheet in [FieldSheetData::demo(), FieldSheetData::demo_rectangular()] {
+    for sheet in [field_sheet("stack"), field_sheet("hvac")] {
         let s = engine()
             .render_field_sheet(&sheet, date())
             .unwrap_or_else(|e| panic!("{e}"));
@@ -96,13 +104,14 @@ fn rectangular_demo_and_field_sheets_render_without_warnings() {
 
 #[test]
 fn every_section_heading_is_in_the_text() {
-    let text = pdf_text(&render_demo().pdf);
+    let text = pdf_text(&render_stack().pdf);
     for heading in [
         "Summary",
         "Measurement plane",
         "Readings",
         "Velocity field",
-        "Checks and uncertainty",
+        "Checks",
+        "Uncertainty",
         "Instruments and calibration",
         "Notes and deviations",
         "Safety cautions",
@@ -115,14 +124,14 @@ fn every_section_heading_is_in_the_text() {
         text.contains(&format!("Page 1 of {pages}")),
         "no page x of y"
     );
-    assert!(text.contains("AN-9F3C-2A7B"));
+    assert!(text.contains(&identity().report_id));
 }
 
 #[test]
 fn attachments_come_back_byte_equal() {
-    let r = render_demo();
+    let r = render_stack();
     let files = embedded_files(&r.pdf).unwrap();
-    let mut want = demo_attachments();
+    let mut want = sample_attachments();
     want.sort_by(|a, b| a.name().cmp(b.name()));
     let mut got = files.clone();
     got.sort_by(|a, b| a.name.cmp(&b.name));
@@ -137,8 +146,8 @@ fn attachments_come_back_byte_equal() {
 
 #[test]
 fn two_renders_are_byte_identical() {
-    let a = render_demo();
-    let b = render_demo();
+    let a = render_stack();
+    let b = render_stack();
     assert!(a.pdf == b.pdf, "renders differ");
 }
 
@@ -154,7 +163,7 @@ fn a_broken_user_template_reports_file_line_and_column() {
         attachments: vec![],
     };
     let err = engine()
-        .render_report_with_template(&template, &ReportData::demo(), &options)
+        .render_report_with_template(&template, stack(), &options)
         .unwrap_err();
     let RenderError::Template(diags) = &err else {
         panic!("expected a template error, got {err}");
@@ -175,7 +184,7 @@ fn a_broken_user_template_reports_file_line_and_column() {
         text: "#let data = json(\"/data.json\")\n\n  #data.header.no_such_key\n".into(),
     };
     let err = engine()
-        .render_report_with_template(&template, &ReportData::demo(), &options)
+        .render_report_with_template(&template, stack(), &options)
         .unwrap_err();
     let RenderError::Template(diags) = &err else {
         panic!("expected a template error, got {err}");
@@ -191,7 +200,7 @@ fn a_broken_user_template_reports_file_line_and_column() {
 
 #[test]
 fn reports_are_pdf_a_3b_with_pinned_metadata() {
-    let pdf = render_demo().pdf;
+    let pdf = render_stack().pdf;
     let text = String::from_utf8_lossy(&pdf);
     assert!(text.contains("<pdfaid:part>3</pdfaid:part>"));
     assert!(text.contains("<pdfaid:conformance>B</pdfaid:conformance>"));
@@ -209,10 +218,10 @@ fn a_user_template_sees_the_same_data_and_keeps_the_attachments() {
     };
     let options = RenderOptions {
         date: date(),
-        attachments: demo_attachments(),
+        attachments: sample_attachments(),
     };
     let r = engine()
-        .render_report_with_template(&template, &ReportData::demo(), &options)
+        .render_report_with_template(&template, stack(), &options)
         .unwrap_or_else(|e| panic!("{e}"));
     assert!(r.warnings.is_empty(), "{:#?}", r.warnings);
     let text = pdf_text(&r.pdf);
@@ -231,7 +240,7 @@ fn an_unknown_font_is_a_warning_with_a_location() {
         attachments: vec![],
     };
     let r = engine()
-        .render_report_with_template(&template, &ReportData::demo(), &options)
+        .render_report_with_template(&template, stack(), &options)
         .unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(r.warnings.len(), 1, "{:#?}", r.warnings);
     assert!(r.warnings[0].to_string().starts_with("fonts.typ:1:"));
@@ -239,7 +248,7 @@ fn an_unknown_font_is_a_warning_with_a_location() {
 
 #[test]
 fn a_bad_model_is_rejected_before_typst_runs() {
-    let mut data = ReportData::demo();
+    let mut data = stack().clone();
     data.header.content_sha256 = "abc".into();
     let options = RenderOptions {
         date: date(),
@@ -249,13 +258,13 @@ fn a_bad_model_is_rejected_before_typst_runs() {
         engine().render_report(&data, &options),
         Err(RenderError::Model(model::ModelError::BadFingerprint { .. }))
     ));
-    let a = demo_attachments().remove(0);
+    let a = sample_attachments().remove(0);
     let dup = RenderOptions {
         date: date(),
         attachments: vec![a.clone(), a],
     };
     assert!(matches!(
-        engine().render_report(&ReportData::demo(), &dup),
+        engine().render_report(stack(), &dup),
         Err(RenderError::Attachment(AttachmentError::Duplicate { .. }))
     ));
 }
@@ -276,7 +285,7 @@ fn the_engine_has_a_proportional_sans_and_no_system_fonts() {
     }
 }
 
-/// Writes the demo PDFs for a visual check: `ANNULUS_PREVIEW_DIR=/tmp/p cargo test --lib
+/// Writes the sample PDFs for a visual check: `ANNULUS_PREVIEW_DIR=/tmp/p cargo test --lib
 /// report::tests::write_previews -- --ignored`, then `pdftoppm -r 60 -png`.
 #[test]
 #[ignore]
@@ -289,25 +298,25 @@ fn write_previews() {
     let _ = engine();
     eprintln!("engine (fonts, library): {:?}", start.elapsed());
     let start = std::time::Instant::now();
-    let round = render_demo();
-    eprintln!("round demo render: {:?}", start.elapsed());
+    let round = render_stack();
+    eprintln!("stack render: {:?}", start.elapsed());
     let start = std::time::Instant::now();
-    let _ = render_demo();
-    eprintln!("round demo render again: {:?}", start.elapsed());
-    write_atomic(&dir.join("demo-round.pdf"), &round.pdf).unwrap();
+    let _ = render_stack();
+    eprintln!("stack render again: {:?}", start.elapsed());
+    write_atomic(&dir.join("stack.pdf"), &round.pdf).unwrap();
     let options = RenderOptions {
         date: date(),
         attachments: vec![],
     };
     let start = std::time::Instant::now();
     let rect = engine()
-        .render_report(&ReportData::demo_rectangular(), &options)
+        .render_report(&report("hvac"), &options)
         .unwrap_or_else(|e| panic!("{e}"));
-    eprintln!("rectangular demo render: {:?}", start.elapsed());
-    write_atomic(&dir.join("demo-rect.pdf"), &rect.pdf).unwrap();
+    eprintln!("hvac render: {:?}", start.elapsed());
+    write_atomic(&dir.join("hvac.pdf"), &rect.pdf).unwrap();
     for (name, sheet) in [
-        ("sheet-round.pdf", FieldSheetData::demo()),
-        ("sheet-rect.pdf", FieldSheetData::demo_rectangular()),
+        ("sheet-round.pdf", field_sheet("stack")),
+        ("sheet-rect.pdf", field_sheet("hvac")),
     ] {
         let s = engine().render_field_sheet(&sheet, date()).unwrap();
         write_atomic(&dir.join(name), &s.pdf).unwrap();
@@ -316,10 +325,11 @@ fn write_previews() {
 
 #[test]
 fn a_sparse_model_still_renders() {
-    let mut data = ReportData::demo();
+    let mut data = stack().clone();
     data.summary.headline.clear();
-    data.results.rows.clear();
-    data.checks.clear();
+    data.results.clear();
+    data.checks.survey.clear();
+    data.checks.matrices.clear();
     data.instruments.clear();
     data.notes.clear();
     data.deviations.clear();

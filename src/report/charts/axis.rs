@@ -71,7 +71,7 @@ pub fn decimals_for(step: f64) -> usize {
 
 /// A tick label with a true minus sign.
 pub fn label(value: f64, decimals: usize) -> String {
-    crate::report::format::fixed(value, decimals)
+    crate::display::fixed(value, decimals)
 }
 
 #[cfg(test)]

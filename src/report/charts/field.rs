@@ -23,7 +23,7 @@
 use super::axis;
 use super::colour::{hex, text_on, viridis, VIRIDIS_STOPS};
 use super::svg::{num, Anchor, Svg};
-use crate::report::model::{DisplayUnits, FieldPoint, Plane, Shape};
+use crate::report::model::{ChartUnits, FieldPoint, Plane, Shape};
 
 const WIDTH: f64 = 300.0;
 const HEIGHT: f64 = 250.0;
@@ -87,7 +87,7 @@ impl ColourScale {
 pub fn velocity_map_svg(
     plane: &Plane,
     field: &[FieldPoint],
-    units: &DisplayUnits,
+    units: &ChartUnits,
     scale: ColourScale,
 ) -> String {
     let mut svg = Svg::new(WIDTH, HEIGHT);
@@ -341,7 +341,7 @@ fn edges(centres: &[f64], lo: f64, hi: f64) -> Vec<(f64, f64)> {
 fn rect_map(
     svg: &mut Svg,
     field: &[FieldPoint],
-    units: &DisplayUnits,
+    units: &ChartUnits,
     width_m: f64,
     height_m: f64,
     scale: ColourScale,
@@ -404,7 +404,7 @@ fn rect_map(
     svg.text(cx, top - 6.0, 7.0, Anchor::Middle, LABEL, "ports (top)");
 }
 
-fn scale_bar(svg: &mut Svg, units: &DisplayUnits, scale: ColourScale) {
+fn scale_bar(svg: &mut Svg, units: &ChartUnits, scale: ColourScale) {
     let (x, y0, y1, w) = (250.0, 28.0, 222.0, 11.0);
     svg.raw("<defs><linearGradient id=\"vmap\" x1=\"0\" y1=\"1\" x2=\"0\" y2=\"0\">");
     for (i, c) in VIRIDIS_STOPS.iter().enumerate() {

@@ -109,7 +109,12 @@ pub(crate) mod wellformed {
 mod tests {
     use super::wellformed::check;
     use super::*;
-    use crate::report::model::{FieldSheetData, ReportData};
+    use crate::report::model::ReportData;
+    use crate::report::testkit::{field_sheet, report};
+
+    fn samples() -> [ReportData; 2] {
+        [report("stack"), report("hvac")]
+    }
 
     fn count_points(svg: &str) -> usize {
         svg.matches("class=\"pt\"").count()
@@ -117,29 +122,36 @@ mod tests {
 
     #[test]
     fn plane_drawings_are_well_formed_with_one_marker_per_point() {
-        for data in [ReportData::demo(), ReportData::demo_rectangular()] {
+        for data in samples() {
             let svg = plane_svg(&data.plane, &data.units);
             assert!(check(&svg).is_ok(), "{:?}", check(&svg));
             let points: usize = data.plane.lines.iter().map(|l| l.points.len()).sum();
             assert_eq!(count_points(&svg), points);
             assert!(svg.contains("font-family=\"DejaVu Sans\""));
         }
-        let sheet = FieldSheetData::demo();
+        let sheet = field_sheet("stack");
         assert_eq!(count_points(&plane_svg(&sheet.plane, &sheet.units)), 24);
     }
 
     #[test]
     fn round_drawing_labels_ports_and_diameter() {
-        let data = ReportData::demo();
+        // sample-data/stack: 96 in = 2.438 m inside diameter, two ports
+        let data = report("stack");
         let svg = plane_svg(&data.plane, &data.units);
         assert!(svg.contains(">A</text>") && svg.contains(">B</text>"));
-        assert!(svg.contains("Ø 40.00 in (1.016 m)"));
-        assert!(svg.contains("moved by the wall rule"));
+        assert!(svg.contains("Ø 96.0 in (2.438 m)"), "{svg}");
+        assert!(
+            !svg.contains("moved by the wall rule"),
+            "no point was moved"
+        );
+        let mut moved = data.plane.clone();
+        moved.lines[0].points[0].adjusted = true;
+        assert!(plane_svg(&moved, &data.units).contains("moved by the wall rule"));
     }
 
     #[test]
     fn velocity_maps_are_well_formed_with_one_marker_per_point() {
-        for data in [ReportData::demo(), ReportData::demo_rectangular()] {
+        for data in samples() {
             let scale = ColourScale::spanning(data.runs.iter().map(|r| r.field.as_slice()));
             for run in &data.runs {
                 let svg = velocity_map_svg(&data.plane, &run.field, &data.units, scale);
@@ -152,7 +164,7 @@ mod tests {
 
     #[test]
     fn profiles_are_well_formed_with_one_marker_per_point_and_a_series_per_line() {
-        for data in [ReportData::demo(), ReportData::demo_rectangular()] {
+        for data in samples() {
             for run in &data.runs {
                 let svg = profiles_svg(&data.plane, &run.field, &data.units);
                 assert!(check(&svg).is_ok(), "{:?}", check(&svg));
@@ -180,7 +192,7 @@ mod tests {
 
     #[test]
     fn charts_are_deterministic() {
-        let data = ReportData::demo();
+        let data = report("stack");
         let scale = ColourScale::spanning(data.runs.iter().map(|r| r.field.as_slice()));
         let a = velocity_map_svg(&data.plane, &data.runs[0].field, &data.units, scale);
         let b = velocity_map_svg(&data.plane, &data.runs[0].field, &data.units, scale);

@@ -6,7 +6,7 @@
 //! them.
 
 use super::svg::{num, Anchor, Svg};
-use crate::report::model::{DisplayUnits, LineOrientation, Plane, Shape};
+use crate::report::model::{ChartUnits, LineOrientation, Plane, Shape};
 
 const WIDTH: f64 = 360.0;
 const HEIGHT: f64 = 330.0;
@@ -18,18 +18,22 @@ const LABEL: &str = "#1d232a";
 const NIPPLE_LEN: f64 = 14.0;
 const NIPPLE_WIDTH: f64 = 9.0;
 
-fn length_text(units: &DisplayUnits, metres: f64) -> String {
-    format!(
-        "{:.*} {} ({:.3} m)",
-        units.length_decimals,
-        metres * units.length_per_m,
-        units.length,
-        metres
-    )
+/// A dimension in the job's length unit, with metres beside for an inch-pound job.
+fn length_text(units: &ChartUnits, metres: f64) -> String {
+    let own = format!(
+        "{} {}",
+        crate::display::fixed(metres * units.length_per_m, units.length_decimals),
+        units.length
+    );
+    if units.si_beside {
+        format!("{own} ({} m)", crate::display::fixed(metres, 3))
+    } else {
+        own
+    }
 }
 
 /// The plane drawing as an SVG document.
-pub fn plane_svg(plane: &Plane, units: &DisplayUnits) -> String {
+pub fn plane_svg(plane: &Plane, units: &ChartUnits) -> String {
     match plane.shape {
         Shape::Round { diameter_m } => round(plane, units, diameter_m),
         Shape::Rectangular { width_m, height_m } => rectangular(plane, units, width_m, height_m),
@@ -75,7 +79,7 @@ fn legend(svg: &mut Svg, plane: &Plane, y: f64) {
     svg.text(WIDTH - 8.0, y, 7.5, Anchor::End, LINE, "ports not to scale");
 }
 
-fn round(plane: &Plane, units: &DisplayUnits, diameter_m: f64) -> String {
+fn round(plane: &Plane, units: &ChartUnits, diameter_m: f64) -> String {
     let mut svg = Svg::new(WIDTH, HEIGHT);
     let (cx, cy, r_px) = (175.0, 160.0, 112.0);
     let scale = r_px / (diameter_m / 2.0);
@@ -179,7 +183,7 @@ fn dimension(svg: &mut Svg, x1: f64, y1: f64, x2: f64, y2: f64, style: &str) {
     }
 }
 
-fn rectangular(plane: &Plane, units: &DisplayUnits, width_m: f64, height_m: f64) -> String {
+fn rectangular(plane: &Plane, units: &ChartUnits, width_m: f64, height_m: f64) -> String {
     let mut svg = Svg::new(WIDTH, HEIGHT);
     // Fit the section into the drawing area, keeping its aspect ratio.
     let (box_w, box_h) = (270.0, 210.0);

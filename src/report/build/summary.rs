@@ -1,0 +1,168 @@
+//! The summary block: the verdict of the checks, the headline figures of the average and, for a
+//! survey with a design flow, the measured flow against it.
+
+use super::{average_value, capitalised, headline_flow, run_range, Job, Trade};
+use crate::assess::Verdict;
+use crate::checks::Status as CheckStatus;
+use crate::display::{fixed, Kind};
+use crate::pipeline::run_is_valid;
+use crate::report::model::{Design, Quantity, Status, Summary};
+
+pub(super) fn section(job: &Job) -> Summary {
+    Summary {
+        verdict: match job.a.verdict {
+            Verdict::Pass => Status::Pass,
+            Verdict::Warn => Status::Warn,
+            Verdict::Fail => Status::Fail,
+        },
+        verdict_text: verdict_text(job),
+        headline: headline(job),
+        design: design(job),
+        basis_text: basis_text(job),
+    }
+}
+
+/// The verdict in words, counting the findings that apply.
+fn verdict_text(job: &Job) -> String {
+    let judged: Vec<CheckStatus> = job
+        .a
+        .findings()
+        .map(|f| f.status)
+        .filter(|s| *s != CheckStatus::NotApplicable)
+        .collect();
+    let n = judged.len();
+    let count = |s: CheckStatus| judged.iter().filter(|x| **x == s).count();
+    match (count(CheckStatus::Fail), count(CheckStatus::Warn)) {
+        (0, 0) => format!("All {n} applicable checks pass."),
+        (0, w) => format!("No check fails; {w} of {n} give a warning."),
+        (f, 0) => format!("{f} of {n} checks fail."),
+        (f, w) => format!("{f} of {n} checks fail, {w} warn."),
+    }
+}
+
+/// The figures printed large: the trade's headline flow first, then the other flow the trade
+/// quotes, the mean velocity and the expanded uncertainty of the average.
+fn headline(job: &Job) -> Vec<Quantity> {
+    let Some(av) = &job.e.average else {
+        return Vec::new();
+    };
+    let second = match job.trade {
+        Trade::Stack => Kind::ActualFlow,
+        Trade::Hvac => Kind::StandardFlow,
+    };
+    let mut out: Vec<Quantity> = [headline_flow(job.trade), second, Kind::Velocity]
+        .into_iter()
+        .map(|kind| {
+            let label = match kind {
+                Kind::Velocity => "Mean velocity".to_string(),
+                k => capitalised(job.table.get(k).label),
+            };
+            job.quantity(&label, kind, average_value(kind, av))
+        })
+        .collect();
+    if let Some(u) = job.a.average.as_ref().and_then(|x| x.uncertainty.as_ref()) {
+        out.push(Quantity::new(
+            "Expanded uncertainty (95 %)",
+            format!("±{} %", fixed(u.expanded_relative * 100.0, 1)),
+            "",
+        ));
+    }
+    out
+}
+
+/// The design comparison. The design flow is compared with the average's actual flow.
+fn design(job: &Job) -> Option<Design> {
+    let design = job.survey().design_flow_m3_s?;
+    let av = job.e.average.as_ref()?;
+    let percent = av.percent_of_design?;
+    Some(Design {
+        design: job.quantity("Design flow", Kind::ActualFlow, design),
+        measured: job.quantity("Measured", Kind::ActualFlow, av.actual_flow_m3_s),
+        compared: job.table.get(Kind::ActualFlow).label.to_string(),
+        percent: format!("{} %", fixed(percent, 1)),
+    })
+}
+
+/// What the average is over, and which runs were left out and why.
+fn basis_text(job: &Job) -> String {
+    let s = job.survey();
+    let excluded: Vec<String> = s
+        .runs
+        .iter()
+        .filter(|r| !run_is_valid(r, s.convention))
+        .map(|r| r.id.clone())
+        .collect();
+    match &job.e.average {
+        Some(av) if excluded.is_empty() => format!("Average of {}", run_range(&av.runs)),
+        Some(av) => format!(
+            "Average of {}; {} excluded (post-run leak check failed or not recorded)",
+            run_range(&av.runs),
+            run_range(&excluded)
+        ),
+        None => {
+            "No valid run to average: every run's post-run leak check failed or is missing.".into()
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::testkit::evaluated;
+
+    #[test]
+    fn stack_headline_is_dry_standard_flow_with_si_beside() {
+        let (e, a) = evaluated("stack");
+        let s = section(&Job::new(&e, &a));
+        assert_eq!(s.verdict, Status::Pass);
+        let labels: Vec<&str> = s.headline.iter().map(|q| q.label.as_str()).collect();
+        assert_eq!(
+            labels,
+            [
+                "Dry standard flow",
+                "Actual flow",
+                "Mean velocity",
+                "Expanded uncertainty (95 %)"
+            ]
+        );
+        // the average dry standard flow as `compute` prints it (tests/golden/compute-stack.txt)
+        assert_eq!(s.headline[0].value, "93,249 dscfm");
+        assert!(s.headline[0].si.ends_with(" m³/h"), "{}", s.headline[0].si);
+        assert!(s.headline[2].value.ends_with(" ft/s"));
+        assert_eq!(s.basis_text, "Average of runs 1, 2, 3");
+        assert!(s.design.is_none());
+        assert!(s.verdict_text.starts_with("All ") && s.verdict_text.ends_with(" checks pass."));
+    }
+
+    #[test]
+    fn hvac_headline_is_actual_flow_against_design() {
+        let (e, a) = evaluated("hvac");
+        let s = section(&Job::new(&e, &a));
+        assert_eq!(s.headline[0].label, "Actual flow");
+        assert!(s.headline[0].value.ends_with(" acfm"));
+        assert_eq!(s.headline[1].label, "Standard air flow");
+        assert!(s.headline[1].value.ends_with(" scfm"));
+        assert!(s.headline[2].value.ends_with(" fpm"));
+        let d = s.design.expect("the hvac sample states a design flow");
+        // sample-data/hvac: design flow = "6500 cfm"
+        assert_eq!(d.design.value, "6,500 acfm");
+        assert_eq!(d.compared, "actual flow");
+        // percent of design = measured actual flow / design × 100, as `compute` computes it
+        let p = e.average.as_ref().unwrap().percent_of_design.unwrap();
+        assert_eq!(d.percent, format!("{} %", fixed(p, 1)));
+        assert_eq!(s.verdict, Status::Warn);
+        assert!(s.verdict_text.starts_with("No check fails;"));
+    }
+
+    #[test]
+    fn a_metric_job_shows_no_si_beside() {
+        let (e, a) = evaluated("stack-metric");
+        let s = section(&Job::new(&e, &a));
+        assert!(s.headline[0].value.ends_with(" dscm/h"));
+        assert!(s.headline.iter().all(|q| q.si.is_empty()));
+        let (e, a) = evaluated("bad-plane");
+        let s = section(&Job::new(&e, &a));
+        assert_eq!(s.verdict, Status::Fail);
+        assert!(s.verdict_text.contains("checks fail"), "{}", s.verdict_text);
+    }
+}
