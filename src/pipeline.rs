@@ -104,7 +104,7 @@ pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
         .filter(|(_, spec)| run_is_valid(spec, s.convention))
         .map(|(r, _)| r)
         .collect();
-    let average = average_runs(&included, s.design_flow_m3_s);
+    let average = average_runs(&included, s.design.as_ref(), &convention);
     Ok(Evaluation {
         convention,
         plane,
@@ -133,7 +133,7 @@ pub fn run_is_valid(
 pub fn evaluate_and_assess(
     loaded: Loaded,
 ) -> Result<(Evaluation, crate::assess::Assessment), Error> {
-    let config = crate::input::assess_config::load_assess_config(&loaded)?;
+    let config = loaded.config.clone();
     let eval = evaluate(loaded)?;
     let assessment = crate::assess::assess(&eval, &config);
     Ok((eval, assessment))

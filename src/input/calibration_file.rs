@@ -40,19 +40,17 @@
 //! `note` is optional; `#` starts a comment line. EPA Method 2 §10.1 asks for three pairs per leg;
 //! more are accepted.
 
-use super::text::{span_location, Spanned};
-use super::SourceFile;
+use super::header::{Header, HeaderError};
+use super::toml_doc::{Table, TomlDoc};
+use super::{read_referenced, FileKind, SourceFile};
 use crate::calibration::{
     calibrate, Calibration, CalibrationError, Leg, PairedReading, METHOD_2_LIMITS,
     MIN_READINGS_PER_SIDE,
 };
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-use crate::units::{lookup_unit, parse_number, parse_quantity, symbols_for, Dimension, Unit};
+use crate::units::{parse_number, Dimension, Unit};
 use chrono::NaiveDate;
-use serde::Deserialize;
 use std::path::{Path, PathBuf};
-
-type S = Spanned<String>;
 
 /// Plausible coefficients of a standard (Prandtl) pitot tube: the same range a survey's
 /// `probe.coefficient` accepts (0.5, 1.05]; common practice, a standard tube is near 0.99.
@@ -61,35 +59,6 @@ const STANDARD_COEFFICIENT_RANGE: (f64, f64) = (0.5, 1.05);
 const HINT_FORMAT: &str =
     "see the calibration format in sample-data/calibration/README.md (ts-0417.toml is a complete example)";
 const HINT_CELL: &str = "use `.` as the decimal separator; put units in the header, not the cell";
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFile {
-    calibration: RawCalibration,
-    standard: Option<RawStandard>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawCalibration {
-    probe: S,
-    serial: Option<String>,
-    date: Spanned<toml::Value>,
-    calibrated_by: S,
-    organisation: Option<String>,
-    location: Option<String>,
-    velocity: Option<S>,
-    assembly: Option<String>,
-    readings: S,
-    notes: Option<Vec<String>>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawStandard {
-    id: Option<String>,
-    coefficient: Option<Spanned<f64>>,
-}
 
 /// The descriptive part of a calibration file.
 #[derive(Debug, Clone, PartialEq)]
@@ -120,6 +89,8 @@ pub struct CalibrationSpec {
     pub meta: CalibrationMeta,
     /// The readings CSV, relative to the TOML file.
     pub readings: String,
+    /// Where the TOML names it (a readings file that cannot be read is reported there).
+    pub readings_at: Location,
 }
 
 /// One row of the readings CSV.
@@ -218,11 +189,39 @@ pub fn load_with(
 ) -> Result<LoadedCalibration, Error> {
     let name = path.display().to_string();
     let (bytes, text) = crate::input::read_text_with(path, &name, source)?;
-    let spec = parse_calibration(&name, &text)?;
+    load_text(path, bytes, &text, source)
+}
+
+/// [`load_with`] for a calibration file another file names (a survey's `[probe] calibration`):
+/// a file that cannot be read is reported at `named_at`, the line that names it.
+pub fn load_referenced(
+    path: &Path,
+    written: &str,
+    named_at: &Location,
+    source: crate::input::FileSource,
+) -> Result<LoadedCalibration, Error> {
+    let (bytes, text) = read_referenced(path, written, named_at, FileKind::Calibration, source)?;
+    load_text(path, bytes, &text, source)
+}
+
+fn load_text(
+    path: &Path,
+    bytes: Vec<u8>,
+    text: &str,
+    source: crate::input::FileSource,
+) -> Result<LoadedCalibration, Error> {
+    let name = path.display().to_string();
+    let spec = parse_calibration(&name, text)?;
     let dir = path.parent().unwrap_or(Path::new("."));
     let rpath = dir.join(&spec.readings);
     let rname = rpath.display().to_string();
-    let (rbytes, rtext) = crate::input::read_text_with(&rpath, &rname, source)?;
+    let (rbytes, rtext) = read_referenced(
+        &rpath,
+        &spec.readings,
+        &spec.readings_at,
+        FileKind::CalibrationReadings,
+        source,
+    )?;
     let readings = parse_readings(&rname, &rtext)?;
     let calibration = calibrate(
         &readings.leg(Leg::A),
@@ -271,144 +270,83 @@ fn core_error(e: CalibrationError, file: &str, readings: &str) -> Error {
     Error::input(Diagnostic::new(e.to_string()).at(Location::file(at)))
 }
 
-fn toml_error(file: &str, text: &str, e: toml::de::Error) -> Error {
-    let loc = match e.span() {
-        Some(span) => span_location(file, text, span.start),
-        None => Location::file(file),
-    };
-    Error::input(
-        Diagnostic::new(format!(
-            "the calibration file is not valid: {}",
-            e.message().trim()
-        ))
-        .at(loc)
-        .hint(HINT_FORMAT),
-    )
-}
-
-fn located(file: &str, text: &str, span: std::ops::Range<usize>, key: &str) -> Location {
-    span_location(file, text, span.start).with_context(format!("`{key}`"))
-}
-
 /// Parses a calibration TOML. `file` names it in diagnostics.
 pub fn parse_calibration(file: &str, text: &str) -> Result<CalibrationSpec, Error> {
-    let raw: RawFile = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
-    let mut diags = Diagnostics::new();
-    let c = &raw.calibration;
-    let mut required = |v: &S, key: &str, example: &str| {
-        if v.get_ref().trim().is_empty() {
-            diags.push(
-                Diagnostic::new(format!("`{key}` is empty"))
-                    .at(located(file, text, v.span(), key))
-                    .hint(format!("write e.g. {example}")),
-            );
-        }
+    let doc = TomlDoc::parse(file, text, "calibration file")?.with_guide(HINT_FORMAT);
+    let spec = {
+        let root = doc.root();
+        let c = root.table("calibration");
+        let meta = c.as_ref().and_then(|c| read_meta(c, &root));
+        let readings = c.as_ref().and_then(|c| {
+            let path = c.text("readings", "\"ts-0417.csv\"")?;
+            let at = c
+                .get("readings")
+                .map(|f| f.doc.location(f.span.clone(), &f.path()))?;
+            Some((path.trim().to_string(), at))
+        });
+        meta.zip(readings)
+            .map(|(meta, (readings, readings_at))| CalibrationSpec {
+                meta,
+                readings,
+                readings_at,
+            })
     };
-    required(&c.probe, "calibration.probe", "probe = \"TS-0417\"");
-    required(
-        &c.calibrated_by,
-        "calibration.calibrated_by",
-        "calibrated_by = \"A. Name\"",
-    );
-    required(
-        &c.readings,
-        "calibration.readings",
-        "readings = \"ts-0417.csv\"",
-    );
+    doc.finish(spec)
+}
 
-    let (date_text, parsed) = super::text::toml_date(c.date.get_ref());
-    let date = match parsed {
-        Some(d) => Some(d),
-        None => {
-            diags.push(
-                Diagnostic::new(format!("`calibration.date` is not a date: `{date_text}`"))
-                    .at(located(file, text, c.date.span(), "calibration.date"))
-                    .hint("write the date as YYYY-MM-DD, e.g. \"2026-05-11\""),
+fn read_meta(c: &Table, root: &Table) -> Option<CalibrationMeta> {
+    let probe = c.text("probe", "\"TS-0417\"");
+    let calibrated_by = c.text("calibrated_by", "\"A. Name\"");
+    let date = c.date("date", "2026-05-11");
+    let velocity = c.get("velocity").and_then(|f| {
+        let x = f.quantity(Dimension::Velocity)?;
+        if x > 0.0 {
+            Some((x, f.text().trim().to_string()))
+        } else {
+            f.error(
+                format!(
+                    "`calibration.velocity` must be greater than zero, found `{}`",
+                    f.text()
+                ),
+                None,
             );
             None
         }
-    };
-
-    let velocity =
-        c.velocity
-            .as_ref()
-            .and_then(|v| match parse_quantity(v.get_ref(), Dimension::Velocity) {
-                Ok(x) if x > 0.0 => Some((x, v.get_ref().trim().to_string())),
-                Ok(_) => {
-                    diags.push(
-                        Diagnostic::new(format!(
-                            "`calibration.velocity` must be greater than zero, found `{}`",
-                            v.get_ref()
-                        ))
-                        .at(located(
-                            file,
-                            text,
-                            v.span(),
-                            "calibration.velocity",
-                        )),
-                    );
-                    None
-                }
-                Err(e) => {
-                    diags.push(
-                        Diagnostic::new(format!("`calibration.velocity`: {e}"))
-                            .at(located(file, text, v.span(), "calibration.velocity"))
-                            .hint(e.hint()),
-                    );
-                    None
-                }
-            });
-
-    let standard_coefficient = raw
-        .standard
-        .as_ref()
-        .and_then(|s| s.coefficient.as_ref())
-        .and_then(|v| {
-            let x = *v.get_ref();
+    });
+    let standard = root.opt_table("standard");
+    let standard_id = standard.as_ref().and_then(|s| s.opt_text("id"));
+    let given = standard.as_ref().and_then(|s| s.get("coefficient"));
+    let standard_coefficient = match &given {
+        None => Some(None),
+        Some(f) => f.number().and_then(|x| {
             let (lo, hi) = STANDARD_COEFFICIENT_RANGE;
             if x > lo && x <= hi {
-                Some(x)
+                Some(Some(x))
             } else {
-                diags.push(
-                    Diagnostic::new(format!(
-                        "a standard pitot coefficient of {x} is not plausible"
-                    ))
-                    .at(located(file, text, v.span(), "standard.coefficient"))
-                    .hint(
-                        "a standard pitot tube is near 0.99; leave `coefficient` out to use 0.99",
+                f.error(
+                    format!("a standard pitot coefficient of {x} is not plausible"),
+                    Some(
+                        "a standard pitot tube is near 0.99; leave `coefficient` out to use 0.99"
+                            .into(),
                     ),
                 );
                 None
             }
-        });
-    let coefficient_given = raw
-        .standard
-        .as_ref()
-        .is_some_and(|s| s.coefficient.is_some());
-
-    match date {
-        Some(date)
-            if diags.is_empty() && (standard_coefficient.is_some() || !coefficient_given) =>
-        {
-            Ok(CalibrationSpec {
-                meta: CalibrationMeta {
-                    probe: c.probe.get_ref().trim().to_string(),
-                    serial: c.serial.clone(),
-                    date,
-                    calibrated_by: c.calibrated_by.get_ref().trim().to_string(),
-                    organisation: c.organisation.clone(),
-                    location: c.location.clone(),
-                    velocity,
-                    assembly: c.assembly.clone(),
-                    standard_id: raw.standard.as_ref().and_then(|s| s.id.clone()),
-                    standard_coefficient,
-                    notes: c.notes.clone().unwrap_or_default(),
-                },
-                readings: c.readings.get_ref().trim().to_string(),
-            })
-        }
-        _ => Err(Error::Input(diags)),
-    }
+        }),
+    };
+    Some(CalibrationMeta {
+        probe: probe?.trim().to_string(),
+        serial: c.opt_text("serial"),
+        date: date?,
+        calibrated_by: calibrated_by?.trim().to_string(),
+        organisation: c.opt_text("organisation"),
+        location: c.opt_text("location"),
+        velocity,
+        assembly: c.opt_text("assembly"),
+        standard_id,
+        standard_coefficient: standard_coefficient?,
+        notes: c.opt_strings("notes").unwrap_or_default(),
+    })
 }
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -427,48 +365,12 @@ impl Col {
 
 const HINT_HEADER: &str = "the header is `leg,standard_dp[unit],s_type_dp[unit]` and optionally `note`, e.g. `leg,standard_dp[inH2O],s_type_dp[inH2O]`";
 
-fn parse_header(h: &str) -> Result<Col, (String, String)> {
-    let h = h.trim();
-    let (name, unit) = match h.split_once('[') {
-        Some((n, rest)) => match rest.strip_suffix(']') {
-            Some(u) => (n.trim(), Some(u.trim())),
-            None => {
-                return Err((
-                    format!("header `{h}` has no closing `]`"),
-                    "write units as name[unit], e.g. standard_dp[inH2O]".into(),
-                ))
-            }
-        },
-        None => (h, None),
-    };
-    let pressure = |example: &str| -> Result<&'static Unit, (String, String)> {
-        let Some(u) = unit else {
-            return Err((
-                format!("column `{name}` needs a unit in its header"),
-                format!("write e.g. `{example}`"),
-            ));
-        };
-        match lookup_unit(u) {
-            Some(unit) if unit.dimension == Dimension::Pressure => Ok(unit),
-            _ => Err((
-                format!("unit `{u}` cannot be used for column `{name}`"),
-                format!(
-                    "`{name}` takes a pressure unit: {}",
-                    symbols_for(Dimension::Pressure).join(", ")
-                ),
-            )),
-        }
-    };
-    let plain = |col: Col| match unit {
-        None => Ok(col),
-        Some(u) => Err((
-            format!("column `{name}` takes no unit `{u}`"),
-            format!("write `{name}`"),
-        )),
-    };
-    match name {
-        "leg" => plain(Col::Leg),
-        "note" => plain(Col::Note),
+fn parse_header(h: &str) -> Result<Col, HeaderError> {
+    let header = Header::parse(h)?;
+    let pressure = |example: &str| header.unit_of(&[Dimension::Pressure], example);
+    match header.name {
+        "leg" => header.no_unit(None).map(|()| Col::Leg),
+        "note" => header.no_unit(None).map(|()| Col::Note),
         "standard_dp" => Ok(Col::Standard(pressure("standard_dp[inH2O]")?)),
         "s_type_dp" => Ok(Col::SType(pressure("s_type_dp[inH2O]")?)),
         other => Err((format!("unknown column `{other}`"), HINT_HEADER.into())),

@@ -5,10 +5,11 @@
 //! a hint; all problems of a file are collected before stopping. No reading is ever dropped: a row
 //! that does not belong to the layout, a duplicate or a missing point is an error.
 
+use super::header::{Header, HeaderError};
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::layout::Layout;
 use crate::readings::{Dp, Reading, RunReadings};
-use crate::units::{convert_in, lookup_unit, parse_number, symbols_for, Dimension, Unit};
+use crate::units::{convert_in, parse_number, Dimension, Unit};
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 enum Col {
@@ -24,71 +25,26 @@ enum Col {
 
 const HINT_CELL: &str = "use `.` as the decimal separator; put units in the header, not the cell";
 
-/// Parses `name[unit]`.
-fn parse_header(h: &str) -> Result<Col, (String, String)> {
-    let h = h.trim();
-    let (name, unit) = match h.split_once('[') {
-        Some((n, rest)) => match rest.strip_suffix(']') {
-            Some(u) => (n.trim(), Some(u.trim())),
-            None => {
-                return Err((
-                    format!("header `{h}` has no closing `]`"),
-                    "write units as name[unit], e.g. dp[inH2O]".into(),
-                ))
-            }
-        },
-        None => (h, None),
-    };
-    let unit_of = |dims: &[Dimension], example: &str| -> Result<&'static Unit, (String, String)> {
-        let Some(u) = unit else {
-            return Err((
-                format!("column `{name}` needs a unit in its header"),
-                format!("write e.g. `{example}`"),
-            ));
-        };
-        match lookup_unit(u) {
-            Some(unit) if dims.contains(&unit.dimension) => Ok(unit),
-            _ => Err((
-                format!("unit `{u}` cannot be used for column `{name}`"),
-                format!(
-                    "`{name}` takes one of: {}",
-                    dims.iter()
-                        .flat_map(|d| symbols_for(*d))
-                        .collect::<Vec<_>>()
-                        .join(", ")
-                ),
-            )),
-        }
-    };
-    let no_unit = |col: Col| -> Result<Col, (String, String)> {
-        match unit {
-            None => Ok(col),
-            Some("deg") if matches!(col, Col::Yaw | Col::Pitch) => Ok(col),
-            Some(u) => Err((
-                format!("column `{name}` takes no unit `{u}`"),
-                if matches!(col, Col::Yaw | Col::Pitch) {
-                    format!("write `{name}[deg]`")
-                } else {
-                    format!("write `{name}`")
-                },
-            )),
-        }
-    };
-    match name {
-        "line" => no_unit(Col::Line),
-        "point" => no_unit(Col::Point),
-        "dp" => Ok(Col::Dp(unit_of(
+/// The column a `name[unit]` header names.
+fn parse_header(h: &str) -> Result<Col, HeaderError> {
+    let header = Header::parse(h)?;
+    let angle = |col: Col| header.no_unit(Some("deg")).map(|()| col);
+    match header.name {
+        "line" => header.no_unit(None).map(|()| Col::Line),
+        "point" => header.no_unit(None).map(|()| Col::Point),
+        "dp" => Ok(Col::Dp(header.unit_of(
             &[Dimension::Pressure, Dimension::Length],
             "dp[inH2O]",
         )?)),
-        "temperature" => Ok(Col::Temperature(unit_of(
-            &[Dimension::Temperature],
-            "temperature[F]",
-        )?)),
-        "yaw" => no_unit(Col::Yaw),
-        "pitch" => no_unit(Col::Pitch),
-        "static" => Ok(Col::Static(unit_of(&[Dimension::Pressure], "static[inH2O]")?)),
-        "time" => no_unit(Col::Time),
+        "temperature" => Ok(Col::Temperature(
+            header.unit_of(&[Dimension::Temperature], "temperature[F]")?,
+        )),
+        "yaw" => angle(Col::Yaw),
+        "pitch" => angle(Col::Pitch),
+        "static" => Ok(Col::Static(
+            header.unit_of(&[Dimension::Pressure], "static[inH2O]")?,
+        )),
+        "time" => header.no_unit(None).map(|()| Col::Time),
         other => Err((
             format!("unknown column `{other}`"),
             "columns are line, point, dp[…], and optionally temperature[…], yaw[deg], pitch[deg], static[…], time".into(),
