@@ -14,9 +14,9 @@
 use crate::checks::instruments::{Instruments, TemperatureAccuracy};
 use crate::checks::{self, Finding, RunView, Status, Subject};
 use crate::display::Kind;
+use crate::evaluation::{run_is_valid, Evaluation};
 use crate::flow::RunResult;
 use crate::geometry::Shape;
-use crate::pipeline::{run_is_valid, Evaluation};
 use crate::readings::{Dp, RunReadings};
 use crate::survey::ProbeKind;
 use crate::uncertainty::{

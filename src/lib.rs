@@ -29,6 +29,7 @@ pub mod checks;
 pub mod cli;
 pub mod diag;
 pub mod display;
+pub mod evaluation;
 pub mod flow;
 pub mod gas;
 pub mod geometry;

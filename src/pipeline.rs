@@ -1,22 +1,16 @@
-//! The pipeline from a loaded survey to results: plane → match readings → compute each run →
-//! average. Checks and uncertainty join here as their stages land. No printing; no clock.
+//! The pipeline from loaded inputs to results: plane → match readings → compute each run →
+//! average, then the checks and uncertainty ([`evaluate_and_assess`]); a RATA's surveys and
+//! statistics in [`rata`]. Inputs arrive loaded (`input`); nothing here reads files, prints or
+//! looks at the clock.
+
+pub mod rata;
 
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-use crate::flow::{self, average_runs, Average, Convention, EpaForm, FlowError, RunResult};
+pub use crate::evaluation::{run_is_valid, Evaluation};
+use crate::flow::{self, average_runs, Convention, EpaForm, FlowError, RunResult};
 use crate::input::{readings::match_to_layout, Loaded};
-use crate::plane::{lay_out, Plane};
+use crate::plane::lay_out;
 use crate::survey::WallFactor;
-
-/// Everything computed from one survey.
-#[derive(Debug, Clone)]
-pub struct Evaluation {
-    pub loaded: Loaded,
-    pub convention: Convention,
-    pub plane: Plane,
-    pub runs: Vec<RunResult>,
-    /// Runs included in the average (ids), in order.
-    pub average: Option<Average>,
-}
 
 fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
     match e {
@@ -112,21 +106,6 @@ pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
         runs,
         loaded,
     })
-}
-
-/// A run counts toward the average unless its post-run leak check failed, or (for stack
-/// conventions, where Method 2 §8.1 requires it) was not recorded: a failed post-test leak check
-/// voids the run (methods.md §4). HVAC traverses do not record pitot leak checks.
-pub fn run_is_valid(
-    spec: &crate::survey::RunSpec,
-    convention: crate::survey::ConventionId,
-) -> bool {
-    use crate::survey::LeakResult;
-    match spec.leak_check.after {
-        Some(LeakResult::Pass) => spec.leak_check.before != Some(LeakResult::Fail),
-        Some(LeakResult::Fail) => false,
-        None => convention.is_hvac(),
-    }
 }
 
 /// Evaluates a loaded survey and runs the acceptance checks and uncertainty budgets on it.

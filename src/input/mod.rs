@@ -136,7 +136,7 @@ pub fn read_referenced(
     decode(bytes, &name)
 }
 
-fn read_text_with(
+pub(crate) fn read_text_with(
     path: &Path,
     name: &str,
     source: FileSource,
@@ -179,8 +179,31 @@ pub fn load(path: &Path) -> Result<Loaded, Error> {
 pub fn load_with(path: &Path, source: FileSource) -> Result<Loaded, Error> {
     let name = path.display().to_string();
     let (bytes, text) = read_text_with(path, &name, source)?;
+    load_survey(path, bytes, &text, source)
+}
+
+/// [`load_with`] for a survey another file names (a RATA run's `survey`): a survey that cannot
+/// be read is reported at `named_at`, the line that names it.
+pub fn load_referenced(
+    path: &Path,
+    written: &str,
+    named_at: &Location,
+    kind: FileKind,
+    source: FileSource,
+) -> Result<Loaded, Error> {
+    let (bytes, text) = read_referenced(path, written, named_at, kind, source)?;
+    load_survey(path, bytes, &text, source)
+}
+
+fn load_survey(
+    path: &Path,
+    bytes: Vec<u8>,
+    text: &str,
+    source: FileSource,
+) -> Result<Loaded, Error> {
+    let name = path.display().to_string();
     let dir = path.parent().unwrap_or(Path::new("."));
-    let doc = TomlDoc::parse(&name, &text, "survey")?;
+    let doc = TomlDoc::parse(&name, text, "survey")?;
     let calibration_files = std::cell::RefCell::new(None);
     let resolve = |written: &str, at: &Location| {
         let c = calibration_file::load_referenced(&dir.join(written), written, at, source)?;
