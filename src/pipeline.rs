@@ -8,8 +8,9 @@ pub mod rata;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 pub use crate::evaluation::{run_is_valid, Evaluation};
 use crate::flow::{self, average_runs, Convention, EpaForm, FlowError, RunResult};
-use crate::input::{readings::match_to_layout, Loaded};
-use crate::plane::lay_out;
+use crate::input::readings::{label_lines, match_to_layout};
+use crate::input::Loaded;
+use crate::plane::{lay_out, Plane};
 use crate::survey::WallFactor;
 
 fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
@@ -43,7 +44,51 @@ fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
 }
 
 /// Runs the calculation pipeline on a loaded survey, reporting every input problem found.
-pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
+pub fn evaluate(mut loaded: Loaded) -> Result<Evaluation, Error> {
+    let (convention, plane) = lay_out_survey(&loaded)?;
+    let mut diags = Diagnostics::new();
+    // line labels as the layout names them; a run whose labels match no line gets one problem
+    let mut labelled = Vec::new();
+    for (_, readings) in &mut loaded.runs {
+        let ok = label_lines(readings, &plane.layout).map_err(|d| diags.push(d));
+        labelled.push(ok.is_ok());
+    }
+    let s = &loaded.survey;
+    let mut runs = Vec::new();
+    for ((spec, (_, readings)), labelled) in s.runs.iter().zip(&loaded.runs).zip(labelled) {
+        if !labelled {
+            continue;
+        }
+        if let Err(Error::Input(d)) = match_to_layout(readings, &plane.layout) {
+            diags.extend(d);
+            continue;
+        }
+        match flow::compute_run(s, &convention, &plane.layout, &spec.id, readings) {
+            Ok(r) => runs.push(r),
+            Err(e) => diags.push(flow_diag(e, &readings.file)),
+        }
+    }
+    if !diags.is_empty() {
+        return Err(Error::Input(diags));
+    }
+    let included: Vec<&RunResult> = runs
+        .iter()
+        .zip(&s.runs)
+        .filter(|(_, spec)| run_is_valid(spec, s.convention))
+        .map(|(r, _)| r)
+        .collect();
+    let average = average_runs(&included, s.design.as_ref(), &convention);
+    Ok(Evaluation {
+        convention,
+        plane,
+        average,
+        runs,
+        loaded,
+    })
+}
+
+/// The survey's convention and its plane laid out.
+fn lay_out_survey(loaded: &Loaded) -> Result<(Convention, Plane), Error> {
     let s = &loaded.survey;
     let survey_name = loaded.survey_file.name.clone();
     let convention = Convention::new(
@@ -76,36 +121,7 @@ pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
                 .hint("remove wall_factor or give a measured factor"),
         ));
     }
-    let mut diags = Diagnostics::new();
-    let mut runs = Vec::new();
-    for (spec, (file, readings)) in s.runs.iter().zip(&loaded.runs) {
-        if let Err(Error::Input(d)) = match_to_layout(readings, &plane.layout) {
-            diags.extend(d);
-            continue;
-        }
-        match flow::compute_run(s, &convention, &plane.layout, &spec.id, readings) {
-            Ok(r) => runs.push(r),
-            Err(e) => diags.push(flow_diag(e, &readings.file)),
-        }
-        let _ = file;
-    }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
-    }
-    let included: Vec<&RunResult> = runs
-        .iter()
-        .zip(&s.runs)
-        .filter(|(_, spec)| run_is_valid(spec, s.convention))
-        .map(|(r, _)| r)
-        .collect();
-    let average = average_runs(&included, s.design.as_ref(), &convention);
-    Ok(Evaluation {
-        convention,
-        plane,
-        average,
-        runs,
-        loaded,
-    })
+    Ok((convention, plane))
 }
 
 /// Evaluates a loaded survey and runs the acceptance checks and uncertainty budgets on it.

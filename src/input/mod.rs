@@ -272,3 +272,110 @@ fn load_readings(
         parsed,
     ))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::checks::testkit::{run_block, EPA_SURVEY};
+
+    fn rows() -> String {
+        let mut t = "line,point,dp[inH2O],temperature[F]\n".to_string();
+        for l in ["A", "B"] {
+            for p in 1..=6 {
+                t += &format!("{l},{p},0.5,300\n");
+            }
+        }
+        t
+    }
+
+    fn load_files(files: &[(&str, &str)]) -> Result<Loaded, Error> {
+        let mut m = MemoryFiles::new();
+        for (p, t) in files {
+            m.insert(Path::new("site").join(p), t.as_bytes().to_vec());
+        }
+        load_with(Path::new("site/s.toml"), &|p| m.read(p))
+    }
+
+    fn problems(r: Result<Loaded, Error>) -> Vec<crate::diag::Diagnostic> {
+        match r {
+            Err(Error::Input(d)) => d.items().to_vec(),
+            Err(e) => panic!("{e}"),
+            Ok(_) => panic!("accepted"),
+        }
+    }
+
+    #[test]
+    fn a_missing_calibration_file_is_located_at_the_line_naming_it() {
+        let survey = EPA_SURVEY.replace(
+            "coefficient = 0.84\ncalibrated = \"2026-05-11\"",
+            "calibration = \"cal/ts-0417.toml\"",
+        ) + &run_block("1", Some("pass"), Some("pass"));
+        let d = problems(load_files(&[("s.toml", &survey), ("run1.csv", &rows())]));
+        assert_eq!(d.len(), 1, "{d:?}");
+        assert_eq!(
+            d[0].message,
+            "cannot read the calibration file `cal/ts-0417.toml` (resolved to `site/cal/ts-0417.toml`): no such file among these files"
+        );
+        let at = d[0].location.clone().unwrap();
+        let line = survey
+            .lines()
+            .position(|l| l.starts_with("calibration ="))
+            .unwrap()
+            + 1;
+        assert_eq!(
+            (at.file.as_str(), at.line, at.column),
+            ("site/s.toml", Some(line), Some(15))
+        );
+        assert!(d[0]
+            .hint
+            .as_deref()
+            .unwrap()
+            .contains("`annulus calibrate` format"));
+        // the calibration's own readings file is located in the calibration file
+        let cal = "[calibration]\nprobe = \"TS-0417\"\ndate = \"2026-05-11\"\ncalibrated_by = \"A. Name\"\nreadings = \"ts.csv\"\n";
+        let d = problems(load_files(&[
+            ("s.toml", &survey),
+            ("run1.csv", &rows()),
+            ("cal/ts-0417.toml", cal),
+        ]));
+        assert_eq!(d.len(), 1, "{d:?}");
+        assert!(d[0].message.starts_with("cannot read the calibration readings file `ts.csv` (resolved to `site/cal/ts.csv`)"), "{}", d[0].message);
+        let at = d[0].location.clone().unwrap();
+        assert_eq!(
+            (at.file.as_str(), at.line),
+            ("site/cal/ts-0417.toml", Some(5))
+        );
+        assert!(d[0]
+            .hint
+            .as_deref()
+            .unwrap()
+            .contains("relative to the calibration file"));
+    }
+
+    #[test]
+    fn readings_are_checked_even_when_the_survey_has_problems() {
+        let survey = EPA_SURVEY.replace("\"5.0 ft\"", "\"5.0 furlong\"")
+            + &run_block("1", Some("pass"), Some("pass"));
+        let bad = rows().replace("B,3,0.5", "B,3,0.5x");
+        let d = problems(load_files(&[("s.toml", &survey), ("run1.csv", &bad)]));
+        assert_eq!(d.len(), 2, "{d:?}");
+        assert!(d[0].message.contains("furlong"));
+        assert_eq!(d[1].location.as_ref().unwrap().file, "site/run1.csv");
+    }
+
+    #[test]
+    fn the_assessment_sections_are_read_with_the_survey() {
+        let survey = format!(
+            "{EPA_SURVEY}{}\n[reported]\naverage = {{ dscfm = \"36803 cfm\" }}\n",
+            run_block("1", Some("pass"), Some("pass"))
+        );
+        let l = load_files(&[("s.toml", &survey), ("run1.csv", &rows())]).unwrap();
+        assert_eq!(l.config.reported.len(), 1);
+        // a problem there and one in the survey come together
+        let survey = survey
+            .replace("36803 cfm", "36803 furlong")
+            .replace("\"8 %\"", "\"108 %\"");
+        let d = problems(load_files(&[("s.toml", &survey), ("run1.csv", &rows())]));
+        assert_eq!(d.len(), 2, "{d:?}");
+    }
+}

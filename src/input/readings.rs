@@ -464,6 +464,56 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
     })
 }
 
+/// The layout's label for a line as a reading writes it: the label itself in any case (`a` for
+/// `A`), or its number counted from 1 (`2` for the second line).
+fn layout_label(found: &str, labels: &[String]) -> Option<String> {
+    let found = found.trim();
+    if let Some(l) = labels.iter().find(|l| l.eq_ignore_ascii_case(found)) {
+        return Some(l.clone());
+    }
+    let n: usize = found.parse().ok()?;
+    labels.get(n.checked_sub(1)?).cloned()
+}
+
+/// Writes each reading's line label as the layout names it (`a` → `A`, `1` → `A`, `2` → `B` …).
+/// Labels that match no line are one problem for the file, naming the labels found and those
+/// expected, not one per reading.
+pub fn label_lines(run: &mut RunReadings, layout: &Layout) -> Result<(), Diagnostic> {
+    let labels = layout.line_labels();
+    // (label as found, first line of the file it is on)
+    let mut unknown: Vec<(String, usize)> = Vec::new();
+    for r in &mut run.readings {
+        match layout_label(&r.line, &labels) {
+            Some(l) => r.line = l,
+            None if unknown.iter().any(|(u, _)| u == &r.line) => {}
+            None => unknown.push((r.line.clone(), r.source_line)),
+        }
+    }
+    let Some((_, first_line)) = unknown.first() else {
+        return Ok(());
+    };
+    let quoted = |v: Vec<&str>| {
+        v.iter()
+            .map(|l| format!("`{l}`"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let found = quoted(unknown.iter().map(|(l, _)| l.as_str()).collect());
+    Err(Diagnostic::new(format!(
+        "line label{} {found} match{} no line of the layout, whose {} lines are {}",
+        if unknown.len() == 1 { "" } else { "s" },
+        if unknown.len() == 1 { "es" } else { "" },
+        labels.len(),
+        labels.join(", ")
+    ))
+    .at(Location::at(&run.file, *first_line, 1))
+    .hint(format!(
+        "label the lines {} in port order (any case), or number them 1 to {}; check [layout] lines in the survey",
+        labels.join(", "),
+        labels.len()
+    )))
+}
+
 /// Checks that the readings cover the layout exactly: every point once, nothing else.
 pub fn match_to_layout(run: &RunReadings, layout: &Layout) -> Result<(), Error> {
     let mut diags = Diagnostics::new();
@@ -602,6 +652,68 @@ mod tests {
         assert_eq!(r.readings.len(), 6);
         assert_eq!((r.readings[4].line.as_str(), r.readings[4].point), ("B", 2));
         assert!(parse_matrix("m.csv", "line,1\nA,0.1\n", "temperature[F]").is_err());
+    }
+
+    fn two_lines_of_two() -> Layout {
+        use crate::geometry::Duct;
+        use crate::layout::{locate_points, LayoutSpec, Method};
+        let mut spec = LayoutSpec::new(Method::EqualArea);
+        spec.lines = Some(2);
+        spec.points_per_line = Some(2);
+        locate_points(&Duct::round(1.0).unwrap(), &spec).unwrap()
+    }
+
+    /// Line labels as crews write them (common practice): the layout's letters in any case, or
+    /// the lines numbered from 1 in port order.
+    #[test]
+    fn line_labels_in_any_case_or_by_number() {
+        let layout = two_lines_of_two();
+        for (text, form) in [
+            (
+                "line,point,dp[Pa]\na,1,5\na,2,5\nb,1,5\nb,2,5\n",
+                "lower case",
+            ),
+            ("line,point,dp[Pa]\n1,1,5\n1,2,5\n2,1,5\n2,2,5\n", "numbers"),
+            (
+                "line,point,dp[Pa]\nA,1,5\nA,2,5\nB,1,5\nB,2,5\n",
+                "as laid out",
+            ),
+        ] {
+            let mut r = parse_rows("r.csv", text).unwrap();
+            label_lines(&mut r, &layout).unwrap_or_else(|d| panic!("{form}: {d}"));
+            let labels: Vec<&str> = r.readings.iter().map(|x| x.line.as_str()).collect();
+            assert_eq!(labels, ["A", "A", "B", "B"], "{form}");
+            assert!(match_to_layout(&r, &layout).is_ok(), "{form}");
+        }
+        // matrix files take the same labels
+        let mut m = parse_matrix("m.csv", "line,1,2\n1,5,5\n2,5,5\n", "dp[Pa]").unwrap();
+        label_lines(&mut m, &layout).unwrap();
+        assert_eq!(m.readings[3].line, "B");
+    }
+
+    #[test]
+    fn labels_that_match_no_line_are_one_problem() {
+        let layout = two_lines_of_two();
+        // three lines numbered on a two-line layout, and a stray label: one message for the file
+        let mut r = parse_rows(
+            "r.csv",
+            "line,point,dp[Pa]\nX,1,5\nX,2,5\n1,1,5\n3,1,5\n3,2,5\nY,1,5\n",
+        )
+        .unwrap();
+        let d = label_lines(&mut r, &layout).unwrap_err();
+        assert_eq!(
+            d.message,
+            "line labels `X`, `3`, `Y` match no line of the layout, whose 2 lines are A, B"
+        );
+        let at = d.location.unwrap();
+        assert_eq!((at.file.as_str(), at.line), ("r.csv", Some(2)));
+        assert!(d.hint.unwrap().contains("number them 1 to 2"));
+        // zero is not a line number
+        let mut r = parse_rows("r.csv", "line,point,dp[Pa]\n0,1,5\n").unwrap();
+        assert!(label_lines(&mut r, &layout)
+            .unwrap_err()
+            .message
+            .starts_with("line label `0` matches no line"));
     }
 
     #[test]

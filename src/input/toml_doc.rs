@@ -189,8 +189,8 @@ impl<'d> Field<'d> {
     pub fn str(&self) -> Option<&'d str> {
         match self.value {
             DeValue::String(s) => Some(s.as_ref()),
-            other => {
-                self.wrong_type("a string", other, None);
+            _ => {
+                self.wrong_type("a string", None);
                 None
             }
         }
@@ -207,17 +207,13 @@ impl<'d> Field<'d> {
                     None
                 }
             },
-            other => {
+            _ => {
                 let hint = format!(
                     "write the number and its unit in quotes, e.g. {path_key} = \"{}\"",
                     dimension.example(),
                     path_key = self.key
                 );
-                self.wrong_type(
-                    &format!("a {} with its unit", dimension.name()),
-                    other,
-                    Some(hint),
-                );
+                self.wrong_type(&format!("a {} with its unit", dimension.name()), Some(hint));
                 None
             }
         }
@@ -230,8 +226,8 @@ impl<'d> Field<'d> {
             DeValue::Integer(i) => i64::from_str_radix(i.as_str(), i.radix())
                 .ok()
                 .map(|i| i as f64),
-            other => {
-                self.wrong_type("a plain number", other, None);
+            _ => {
+                self.wrong_type("a plain number", self.unquote_hint());
                 return None;
             }
         };
@@ -264,8 +260,8 @@ impl<'d> Field<'d> {
                     None
                 }
             },
-            other => {
-                self.wrong_type("a whole number", other, None);
+            _ => {
+                self.wrong_type("a whole number", self.unquote_hint());
                 None
             }
         }
@@ -275,8 +271,8 @@ impl<'d> Field<'d> {
     pub fn bool(&self) -> Option<bool> {
         match self.value {
             DeValue::Boolean(b) => Some(*b),
-            other => {
-                self.wrong_type("true or false", other, None);
+            _ => {
+                self.wrong_type("true or false", None);
                 None
             }
         }
@@ -341,8 +337,8 @@ impl<'d> Field<'d> {
                 }
                 Some(out)
             }
-            other => {
-                self.wrong_type("a list of strings, e.g. [\"…\"]", other, None);
+            _ => {
+                self.wrong_type("a list of strings, e.g. [\"…\"]", None);
                 None
             }
         }
@@ -358,19 +354,32 @@ impl<'d> Field<'d> {
                 span: self.span.clone(),
                 asked: RefCell::new(Vec::new()),
             }),
-            other => {
-                self.wrong_type("a table", other, None);
+            _ => {
+                self.wrong_type("a table", None);
                 None
             }
         }
     }
 
-    fn wrong_type(&self, expected: &str, found: &DeValue, hint: Option<String>) {
+    /// For a number written in quotes: write it without them.
+    fn unquote_hint(&self) -> Option<String> {
+        match self.value {
+            DeValue::String(s) if s.trim().parse::<f64>().is_ok() => Some(format!(
+                "write the number without quotes: {} = {}",
+                self.key,
+                s.trim()
+            )),
+            _ => None,
+        }
+    }
+
+    /// Records that this value is not of the type `expected` ("a string", "a whole number" …).
+    pub fn wrong_type(&self, expected: &str, hint: Option<String>) {
         self.error(
             format!(
                 "`{}` must be {expected}, found {}",
                 self.path(),
-                describe(found)
+                describe(self.value)
             ),
             hint,
         );
@@ -635,8 +644,8 @@ impl<'d> Table<'d> {
                     field.table()
                 })
                 .collect(),
-            other => {
-                f.wrong_type(&format!("a list of [[{}]] tables", f.path()), other, None);
+            _ => {
+                f.wrong_type(&format!("a list of [[{}]] tables", f.path()), None);
                 Vec::new()
             }
         }

@@ -211,6 +211,15 @@ fn rectangular_duct(
 /// A straight run: `"6.2 D"` in diameters, or a length divided by the (equivalent) diameter.
 fn distance(t: &Table, key: &str, duct: Option<&Duct>) -> Option<f64> {
     let f = t.get(key)?;
+    if !matches!(f.value, toml::de::DeValue::String(_)) {
+        f.wrong_type(
+            "a distance with its unit",
+            Some(format!(
+                "write it in duct diameters or as a length, in quotes: {key} = \"6.2 D\" or \"30 ft\""
+            )),
+        );
+        return None;
+    }
     let text = f.text();
     match parse_quantity(&text, Dimension::Diameters) {
         Ok(x) if x >= 0.0 => Some(x),
