@@ -133,3 +133,86 @@ pub fn evaluate_and_assess(
     let assessment = crate::assess::assess(&eval, &config);
     Ok((eval, assessment))
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::checks::testkit::{assess_text, epa_csv, eval, survey, EPA_SURVEY};
+    use crate::checks::Status;
+    use crate::units::{parse_flow, FlowBasis};
+
+    fn with_design(flow: &str) -> crate::evaluation::Evaluation {
+        let s = survey(
+            EPA_SURVEY,
+            &["1"],
+            &format!("[design]\nflow = \"{flow}\"\n"),
+        );
+        eval(&s, &[("run1.csv", epa_csv())])
+    }
+
+    /// Percent of design compares the measured flow on the basis the design's unit names
+    /// (common practice: a dscfm design against dscfm, an acfm design against acfm).
+    #[test]
+    fn percent_of_design_is_on_the_designs_basis() {
+        for (flow, basis) in [
+            ("8000 acfm", FlowBasis::Actual),
+            ("8000 cfm", FlowBasis::Actual),
+            ("8000 wscfm", FlowBasis::Standard),
+            ("8000 dscfm", FlowBasis::DryStandard),
+            ("13000 dNm3/h", FlowBasis::NormalDry),
+        ] {
+            let e = with_design(flow);
+            let avg = e.average.as_ref().unwrap();
+            let (design, _) = parse_flow(flow).unwrap();
+            let measured = match basis {
+                FlowBasis::Actual => avg.actual_flow_m3_s,
+                FlowBasis::Standard => avg.standard_flow_m3_s,
+                FlowBasis::DryStandard => avg.dry_standard_flow_m3_s,
+                // EPA English standard conditions 528 °R, 29.92 inHg to 273.15 K, 101.325 kPa
+                _ => avg.dry_standard_flow_m3_s * crate::flow::design::normal_factor(&e.convention),
+            };
+            assert_eq!(avg.design_basis, Some(basis), "{flow}");
+            let p = avg.percent_of_design.unwrap();
+            assert!((p - 100.0 * measured / design).abs() < 1e-9, "{flow}: {p}");
+            let run = &e.runs[0];
+            assert!((run.percent_of_design.unwrap() - p).abs() < 1e-9, "{flow}");
+        }
+        // the same figure on two bases gives two answers: the stack gas is hot and wet
+        let a = with_design("8000 acfm")
+            .average
+            .unwrap()
+            .percent_of_design
+            .unwrap();
+        let d = with_design("8000 dscfm")
+            .average
+            .unwrap()
+            .percent_of_design
+            .unwrap();
+        assert!(d < 0.8 * a, "{a} {d}");
+    }
+
+    /// `[reported]` figures are compared with the recomputed flow of their basis.
+    #[test]
+    fn reported_flows_compare_on_their_basis() {
+        let e = eval(&survey(EPA_SURVEY, &["1"], ""), &[("run1.csv", epa_csv())]);
+        let r = &e.runs[0];
+        let dscfm = r.dry_standard_flow_m3_s * 60.0 / 0.028316846592;
+        let acfm = r.actual_flow_m3_s * 60.0 / 0.028316846592;
+        let extra =
+            format!("[reported.run.1]\nflow = \"{dscfm:.0} dscfm\"\nacfm = \"{acfm:.0} cfm\"\n");
+        let statuses = |extra: &str| -> Vec<Status> {
+            let a = assess_text(
+                &survey(EPA_SURVEY, &["1"], extra),
+                &[("run1.csv", epa_csv())],
+            );
+            a.checks
+                .iter()
+                .filter(|f| f.id == "reported-values")
+                .map(|f| f.status)
+                .collect()
+        };
+        assert_eq!(statuses(&extra), [Status::Pass, Status::Pass]);
+        // the dscfm figure under `flow` compared with the actual flow would have failed
+        let extra = format!("[reported.run.1]\nflow = \"{dscfm:.0} acfm\"\n");
+        assert_eq!(statuses(&extra), [Status::Fail]);
+    }
+}

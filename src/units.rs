@@ -356,6 +356,17 @@ impl FlowBasis {
         }
     }
 
+    /// The flow on this basis in words ("actual flow", "dry standard flow" …).
+    pub fn flow_words(self) -> &'static str {
+        match self {
+            FlowBasis::Actual => "actual flow",
+            FlowBasis::Standard => "standard flow (wet)",
+            FlowBasis::DryStandard => "dry standard flow",
+            FlowBasis::Normal => "flow at normal conditions (wet)",
+            FlowBasis::NormalDry => "flow at normal conditions (dry)",
+        }
+    }
+
     /// True for the dry bases.
     pub fn is_dry(self) -> bool {
         matches!(self, FlowBasis::DryStandard | FlowBasis::NormalDry)

@@ -407,6 +407,12 @@ pub struct Average {
     pub flow_max_deviation: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub percent_of_design: Option<f64>,
+    /// The design flow and the basis its unit names: the measured flow on that basis is what
+    /// `percent_of_design` compares.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub design_flow_m3_s: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub design_basis: Option<crate::units::FlowBasis>,
 }
 
 /// Averages the given runs (the caller excludes invalid ones); the percent of `design` compares
@@ -452,6 +458,8 @@ pub fn average_runs(
             };
             super::design::percent_of_design(d, flows, convention)
         }),
+        design_flow_m3_s: design.map(|d| d.m3_s),
+        design_basis: design.map(|d| d.basis),
     })
 }
 

@@ -735,6 +735,36 @@ mod tests {
     }
 
     #[test]
+    fn reported_flows_take_their_basis_from_the_key_or_the_unit() {
+        let c = parse(
+            "[reported]\naverage = { flow = \"61000 Nm3/h\", scfm = \"40000 cfm\" }\n[reported.run.1]\nflow = \"36803 dscfm\"\nactual_flow = \"28.3 m3/s\"\ndry_normal_flow = \"12 m3/s\"\n",
+        )
+        .unwrap();
+        let q: Vec<ReportedQuantity> = c.reported.iter().map(|r| r.quantity).collect();
+        assert_eq!(
+            q,
+            [
+                ReportedQuantity::NormalFlow,
+                ReportedQuantity::StandardFlow,
+                ReportedQuantity::DryStandardFlow,
+                ReportedQuantity::ActualFlow,
+                ReportedQuantity::DryNormalFlow,
+            ]
+        );
+        // `flow` in plain cfm is actual (common practice: cfm without a prefix is actual)
+        let c = parse("[reported]\naverage = { flow = \"5000 cfm\" }\n").unwrap();
+        assert_eq!(c.reported[0].quantity, ReportedQuantity::ActualFlow);
+        // a unit that names another basis than its key
+        let extra = "[reported]\naverage = { dscfm = \"36803 acfm\" }\n";
+        let d = one_error(extra);
+        assert_eq!(
+            d.message,
+            "`reported.average.dscfm` is a flow on the standard, dry basis, but `36803 acfm` names the actual basis"
+        );
+        assert_eq!(position(&d), at(extra, "\"36803 acfm\""));
+    }
+
+    #[test]
     fn dp_units_come_from_the_readings_headers() {
         let mut s = EPA_SURVEY.to_string();
         s += &run_block("1", Some("pass"), Some("pass"));
