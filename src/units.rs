@@ -378,7 +378,7 @@ impl FlowBasis {
     pub fn reference(self) -> Option<(f64, f64)> {
         match self {
             FlowBasis::Normal | FlowBasis::NormalDry => Some((273.15, 101_325.0)),
-            _ => None,
+            FlowBasis::Actual | FlowBasis::Standard | FlowBasis::DryStandard => None,
         }
     }
 }

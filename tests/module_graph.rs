@@ -4,7 +4,9 @@
 //!
 //! Checked: there is no cycle between top-level modules; the calculation modules refer to
 //! nothing that reads files, prints, renders or runs the pipeline; loading inputs (`input`) does
-//! not run the pipeline or the assessment; the assessment reads nothing from `input`.
+//! not run the pipeline or the assessment; the assessment reads nothing from `input`; the file
+//! system is touched only by `input` (reading inputs), `cli` (keys, templates, folders, the
+//! report to verify) and `report` (writing the PDF); the clock is read only in `cli`.
 
 use proc_macro2::{Delimiter, TokenStream, TokenTree};
 use quote::ToTokens;
@@ -48,10 +50,34 @@ fn is_test_only(attrs: &[syn::Attribute]) -> bool {
     })
 }
 
-/// Top-level module names after `crate ::` in a token stream (also inside `crate::{a, b}`).
+/// Marks for what a module touches besides other modules: the file system, the clock.
+const FS: &str = "#fs";
+const CLOCK: &str = "#clock";
+
+/// `a :: b` at `i` in `tokens` (an ident, two colons, an ident).
+fn path_pair(tokens: &[TokenTree], i: usize, a: &str, b: &str) -> bool {
+    matches!(
+        (tokens.get(i), tokens.get(i + 1), tokens.get(i + 2), tokens.get(i + 3)),
+        (Some(TokenTree::Ident(x)), Some(TokenTree::Punct(p)), Some(TokenTree::Punct(q)), Some(TokenTree::Ident(y)))
+            if x == a && p.as_char() == ':' && q.as_char() == ':' && y == b
+    )
+}
+
+/// Top-level module names after `crate ::` in a token stream (also inside `crate::{a, b}`),
+/// and [`FS`] / [`CLOCK`] where `std::fs` or a clock (`Local::now`, `Utc::now`,
+/// `SystemTime::now`) is used.
 fn crate_refs(tokens: TokenStream, out: &mut BTreeSet<String>) {
     let tokens: Vec<TokenTree> = tokens.into_iter().collect();
     for (i, t) in tokens.iter().enumerate() {
+        if path_pair(&tokens, i, "std", "fs") {
+            out.insert(FS.to_string());
+        }
+        if ["Local", "Utc", "SystemTime"]
+            .iter()
+            .any(|c| path_pair(&tokens, i, c, "now"))
+        {
+            out.insert(CLOCK.to_string());
+        }
         match t {
             TokenTree::Group(g) => crate_refs(g.stream(), out),
             TokenTree::Ident(id) if id == "crate" => {
@@ -91,6 +117,11 @@ fn crate_refs(tokens: TokenStream, out: &mut BTreeSet<String>) {
 
 /// The references of a file's non-test items; file modules it declares are followed.
 fn scan_file(path: &Path, out: &mut BTreeSet<String>) {
+    scan_file_except(path, None, out);
+}
+
+/// [`scan_file`] leaving out the child module `skip` (and its files).
+fn scan_file_except(path: &Path, skip: Option<&str>, out: &mut BTreeSet<String>) {
     let text = std::fs::read_to_string(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
     let file = syn::parse_file(&text).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
     // a file `x.rs` keeps its child modules in `x/`, a `mod.rs` or `lib.rs` beside itself
@@ -98,15 +129,16 @@ fn scan_file(path: &Path, out: &mut BTreeSet<String>) {
         Some("mod.rs") | Some("lib.rs") => path.parent().unwrap().to_path_buf(),
         _ => path.with_extension(""),
     };
-    scan_items(&file.items, &dir, out);
+    scan_items(&file.items, &dir, skip, out);
 }
 
-fn scan_items(items: &[syn::Item], dir: &Path, out: &mut BTreeSet<String>) {
+fn scan_items(items: &[syn::Item], dir: &Path, skip: Option<&str>, out: &mut BTreeSet<String>) {
     for item in items {
         match item {
             syn::Item::Mod(m) if is_test_only(&m.attrs) => {}
+            syn::Item::Mod(m) if skip.is_some_and(|s| m.ident == s) => {}
             syn::Item::Mod(m) => match &m.content {
-                Some((_, inner)) => scan_items(inner, &dir.join(m.ident.to_string()), out),
+                Some((_, inner)) => scan_items(inner, &dir.join(m.ident.to_string()), None, out),
                 None => {
                     let name = m.ident.to_string();
                     let file = dir.join(format!("{name}.rs"));
@@ -165,6 +197,23 @@ fn graph() -> Graph {
     g
 }
 
+/// The modules that touch `mark` ([`FS`], [`CLOCK`]).
+fn touching(g: &Graph, mark: &str) -> Vec<String> {
+    g.iter()
+        .filter(|(_, refs)| refs.contains(mark))
+        .map(|(m, _)| m.clone())
+        .collect()
+}
+
+/// The module graph without the marks.
+fn modules() -> Graph {
+    let mut g = graph();
+    for refs in g.values_mut() {
+        refs.retain(|r| !r.starts_with('#'));
+    }
+    g
+}
+
 /// A cycle through `start`, if there is one.
 fn cycle_from(g: &Graph, start: &str) -> Option<Vec<String>> {
     fn walk(
@@ -214,7 +263,7 @@ fn the_reader_finds_references() {
 
 #[test]
 fn no_module_cycle() {
-    let g = graph();
+    let g = modules();
     for m in g.keys() {
         if let Some(c) = cycle_from(&g, m) {
             panic!("module cycle: {}", c.join(" → "));
@@ -242,4 +291,21 @@ fn loading_inputs_does_not_evaluate_them() {
         assert!(!g["input"].contains(outer), "`input` refers to `{outer}`");
     }
     assert!(!g["assess"].contains("input"), "`assess` refers to `input`");
+}
+
+#[test]
+fn files_and_the_clock_are_touched_at_the_edges_only() {
+    let g = graph();
+    assert_eq!(touching(&g, FS), ["cli", "input", "report"], "{g:?}");
+    assert_eq!(touching(&g, CLOCK), ["cli"], "{g:?}");
+    // within `report`, only its atomic writer touches the file system
+    let mut refs = BTreeSet::new();
+    scan_file(&src().join("report/write.rs"), &mut refs);
+    assert!(refs.contains(FS));
+    let mut others = BTreeSet::new();
+    scan_file_except(&src().join("report/mod.rs"), Some("write"), &mut others);
+    assert!(
+        !others.contains(FS),
+        "report reads or writes files outside write.rs"
+    );
 }

@@ -320,7 +320,7 @@ pub fn compute_run(
             let rho_std = convention.standard_density_kg_m3.unwrap_or(1.2);
             mass / (1.0 + gas.humidity_ratio()) / rho_std
         }
-        _ => q_std_wet * (1.0 - gas.bws),
+        ConventionId::EpaMethod2 | ConventionId::Iso16911 => q_std_wet * (1.0 - gas.bws),
     };
     let wrong = if mean_sqrt > 0.0 {
         v_bar * sqrt_mean / mean_sqrt
