@@ -377,30 +377,21 @@ fn parse_header(h: &str) -> Result<Col, HeaderError> {
     }
 }
 
-/// Parses the paired-readings CSV. Every bad cell is reported with its line, column, header and
-/// raw value; a leg with fewer than three pairs is an error (EPA Method 2 §10.1).
-pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Error> {
+/// Where the columns of a calibration readings file are.
+struct Columns {
+    leg: usize,
+    standard: (usize, &'static Unit),
+    s_type: (usize, &'static Unit),
+    note: Option<usize>,
+}
+
+/// The columns the header names, or every problem with it.
+fn read_columns(
+    file: &str,
+    header_line: usize,
+    headers: &csv::StringRecord,
+) -> Result<Columns, Error> {
     let mut diags = Diagnostics::new();
-    let mut rdr = csv::ReaderBuilder::new()
-        .trim(csv::Trim::All)
-        .comment(Some(b'#'))
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let headers = match rdr.headers() {
-        Ok(h) => h.clone(),
-        Err(e) => {
-            return Err(Error::input(
-                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
-                    .at(Location::file(file)),
-            ))
-        }
-    };
-    // The header is the first line that is not a comment; find it for messages.
-    let header_line = text
-        .lines()
-        .position(|l| !l.trim_start().starts_with('#'))
-        .map(|i| i + 1)
-        .unwrap_or(1);
     let mut cols: Vec<(usize, Col)> = Vec::new();
     for (i, h) in headers.iter().enumerate() {
         match parse_header(h) {
@@ -444,16 +435,46 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
             );
         }
     }
-    let (Some(leg_col), Some((std_i, Col::Standard(std_unit))), Some((s_i, Col::SType(s_unit)))) =
-        (leg_col, std_col, s_col)
-    else {
-        return Err(Error::Input(diags));
-    };
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
+    match (leg_col, std_col, s_col) {
+        (Some((leg, _)), Some((si, Col::Standard(su))), Some((ti, Col::SType(tu))))
+            if diags.is_empty() =>
+        {
+            Ok(Columns {
+                leg,
+                standard: (si, su),
+                s_type: (ti, tu),
+                note: find(Col::Note).map(|(i, _)| i),
+            })
+        }
+        _ => Err(Error::Input(diags)),
     }
-    let note_i = find(Col::Note).map(|(i, _)| i);
+}
 
+/// Parses the paired-readings CSV. Every bad cell is reported with its line, column, header and
+/// raw value; a leg with fewer than three pairs is an error (EPA Method 2 §10.1).
+pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Error> {
+    let mut rdr = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .comment(Some(b'#'))
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let headers = match rdr.headers() {
+        Ok(h) => h.clone(),
+        Err(e) => {
+            return Err(Error::input(
+                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
+                    .at(Location::file(file)),
+            ))
+        }
+    };
+    // The header is the first line that is not a comment; find it for messages.
+    let header_line = text
+        .lines()
+        .position(|l| !l.trim_start().starts_with('#'))
+        .map(|i| i + 1)
+        .unwrap_or(1);
+    let cols = read_columns(file, header_line, &headers)?;
+    let mut diags = Diagnostics::new();
     let mut rows = Vec::new();
     let mut counts = [0usize; 2];
     for rec in rdr.records() {
@@ -468,96 +489,15 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
                 continue;
             }
         };
-        let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
-        if rec.iter().all(|c| c.is_empty()) {
-            continue;
-        }
-        if rec.len() != headers.len() {
-            diags.push(
-                Diagnostic::new(format!(
-                    "row has {} fields, the header has {}",
-                    rec.len(),
-                    headers.len()
-                ))
-                .at(Location::at(file, line_no, 1))
-                .hint(if rec.len() > headers.len() {
-                    "a decimal comma splits a number into two fields: use `.` as the decimal separator"
-                } else {
-                    "every row needs a value (or an empty field) for each column"
-                }),
-            );
-            continue;
-        }
-        let leg_raw = &rec[leg_col.0];
-        let leg = match leg_raw {
-            "A" | "a" => Some(Leg::A),
-            "B" | "b" => Some(Leg::B),
-            _ => {
-                diags.push(
-                    Diagnostic::new(format!("leg must be `A` or `B`, found `{leg_raw}`"))
-                        .at(Location::at(file, line_no, leg_col.0 + 1)
-                            .with_context(format!("column `{}`", &headers[leg_col.0])))
-                        .hint("write which leg of the Type S tube faced the flow: A or B"),
-                );
-                None
+        match read_pair(file, &rec, &headers, &cols) {
+            Ok(Some(mut row)) => {
+                let k = usize::from(row.leg == Leg::B);
+                counts[k] += 1;
+                row.number = counts[k];
+                rows.push(row);
             }
-        };
-        let who = match leg {
-            Some(l) => format!("leg {}, ", l.label()),
-            None => String::new(),
-        };
-        let mut cell = |i: usize, unit: &Unit, what: &str| -> Option<f64> {
-            let raw = &rec[i];
-            let at = Location::at(file, line_no, i + 1)
-                .with_context(format!("{who}column `{}`", &headers[i]));
-            if raw.is_empty() {
-                diags.push(
-                    Diagnostic::new(format!("{what} is missing"))
-                        .at(at)
-                        .hint("every pair needs both readings, taken at the same point"),
-                );
-                return None;
-            }
-            match parse_number(raw) {
-                Some(v) if v.is_finite() && !raw.contains('/') => {
-                    if v > 0.0 {
-                        Some(v * unit.factor)
-                    } else {
-                        diags.push(
-                            Diagnostic::new(format!(
-                                "{what} must be greater than zero, found `{raw}`"
-                            ))
-                            .at(at)
-                            .hint("a calibration reading is a velocity pressure in a flowing tunnel; check the gauge connections"),
-                        );
-                        None
-                    }
-                }
-                _ => {
-                    diags.push(
-                        Diagnostic::new(format!("{what} is not a number: `{raw}`"))
-                            .at(at)
-                            .hint(HINT_CELL),
-                    );
-                    None
-                }
-            }
-        };
-        let std_pa = cell(std_i, std_unit, "standard pitot Δp");
-        let s_pa = cell(s_i, s_unit, "Type S pitot Δp");
-        if let (Some(leg), Some(standard_dp_pa), Some(s_type_dp_pa)) = (leg, std_pa, s_pa) {
-            let k = usize::from(leg == Leg::B);
-            counts[k] += 1;
-            rows.push(CalibrationReading {
-                leg,
-                number: counts[k],
-                standard_dp_pa,
-                s_type_dp_pa,
-                standard_raw: rec[std_i].to_string(),
-                s_type_raw: rec[s_i].to_string(),
-                note: note_i.map(|i| rec[i].to_string()).filter(|n| !n.is_empty()),
-                source_line: line_no,
-            });
+            Ok(None) => {}
+            Err(d) => diags.extend(d),
         }
     }
     if diags.is_empty() {
@@ -580,9 +520,107 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
     }
     diags.finish(CalibrationReadings {
         rows,
-        standard_unit: std_unit.symbol.to_string(),
-        s_type_unit: s_unit.symbol.to_string(),
+        standard_unit: cols.standard.1.symbol.to_string(),
+        s_type_unit: cols.s_type.1.symbol.to_string(),
     })
+}
+
+/// One row as a pair (numbered 0: the caller numbers pairs within their leg); `None` for a
+/// blank row, every bad cell of the row otherwise.
+fn read_pair(
+    file: &str,
+    rec: &csv::StringRecord,
+    headers: &csv::StringRecord,
+    cols: &Columns,
+) -> Result<Option<CalibrationReading>, Diagnostics> {
+    let mut diags = Diagnostics::new();
+    let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
+    if rec.iter().all(|c| c.is_empty()) {
+        return Ok(None);
+    }
+    if rec.len() != headers.len() {
+        diags.push(
+            Diagnostic::new(format!(
+                "row has {} fields, the header has {}",
+                rec.len(),
+                headers.len()
+            ))
+            .at(Location::at(file, line_no, 1))
+            .hint(if rec.len() > headers.len() {
+                "a decimal comma splits a number into two fields: use `.` as the decimal separator"
+            } else {
+                "every row needs a value (or an empty field) for each column"
+            }),
+        );
+        return Err(diags);
+    }
+    let leg_raw = &rec[cols.leg];
+    let leg = match leg_raw {
+        "A" | "a" => Some(Leg::A),
+        "B" | "b" => Some(Leg::B),
+        _ => {
+            diags.push(
+                Diagnostic::new(format!("leg must be `A` or `B`, found `{leg_raw}`"))
+                    .at(Location::at(file, line_no, cols.leg + 1)
+                        .with_context(format!("column `{}`", &headers[cols.leg])))
+                    .hint("write which leg of the Type S tube faced the flow: A or B"),
+            );
+            None
+        }
+    };
+    let who = match leg {
+        Some(l) => format!("leg {}, ", l.label()),
+        None => String::new(),
+    };
+    let mut cell = |(i, unit): (usize, &Unit), what: &str| -> Option<f64> {
+        let at = Location::at(file, line_no, i + 1)
+            .with_context(format!("{who}column `{}`", &headers[i]));
+        match pair_value(&rec[i], unit, what) {
+            Ok(v) => Some(v),
+            Err((message, hint)) => {
+                diags.push(Diagnostic::new(message).at(at).hint(hint));
+                None
+            }
+        }
+    };
+    let std_pa = cell(cols.standard, "standard pitot Δp");
+    let s_pa = cell(cols.s_type, "Type S pitot Δp");
+    match (leg, std_pa, s_pa) {
+        (Some(leg), Some(standard_dp_pa), Some(s_type_dp_pa)) if diags.is_empty() => {
+            Ok(Some(CalibrationReading {
+                leg,
+                number: 0,
+                standard_dp_pa,
+                s_type_dp_pa,
+                standard_raw: rec[cols.standard.0].to_string(),
+                s_type_raw: rec[cols.s_type.0].to_string(),
+                note: cols
+                    .note
+                    .map(|i| rec[i].to_string())
+                    .filter(|n| !n.is_empty()),
+                source_line: line_no,
+            }))
+        }
+        _ => Err(diags),
+    }
+}
+
+/// A calibration Δp cell in Pa: present, a number, greater than zero.
+fn pair_value(raw: &str, unit: &Unit, what: &str) -> Result<f64, (String, &'static str)> {
+    if raw.is_empty() {
+        return Err((
+            format!("{what} is missing"),
+            "every pair needs both readings, taken at the same point",
+        ));
+    }
+    match parse_number(raw) {
+        Some(v) if v.is_finite() && !raw.contains('/') && v > 0.0 => Ok(v * unit.factor),
+        Some(v) if v.is_finite() && !raw.contains('/') => Err((
+            format!("{what} must be greater than zero, found `{raw}`"),
+            "a calibration reading is a velocity pressure in a flowing tunnel; check the gauge connections",
+        )),
+        _ => Err((format!("{what} is not a number: `{raw}`"), HINT_CELL)),
+    }
 }
 
 #[cfg(test)]

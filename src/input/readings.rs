@@ -138,38 +138,39 @@ fn csv_rows(text: &str) -> Vec<(usize, Result<csv::StringRecord, String>)> {
         .collect()
 }
 
-/// Parses a readings file in row form.
-pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
-    if text.trim().is_empty() {
-        return Err(Error::input(
-            Diagnostic::new("the readings file is empty")
-                .at(Location::file(file))
-                .hint("fill in one row per traverse point under a header such as `line,point,dp[inH2O]` (annulus init writes a blank sheet)"),
-        ));
+/// The header record: its line in the file and its cells.
+fn header_record(
+    file: &str,
+    first: Option<(usize, Result<csv::StringRecord, String>)>,
+) -> Result<(usize, csv::StringRecord), Error> {
+    match first {
+        Some((line, Ok(h))) => Ok((line, h)),
+        Some((_, Err(e))) => Err(Error::input(
+            Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
+                .at(Location::file(file)),
+        )),
+        None => Ok((1, csv::StringRecord::new())),
     }
+}
+
+/// The columns a row-form header names, or every problem with it (unknown names, bad units,
+/// repeated or missing columns).
+fn columns(
+    file: &str,
+    line: usize,
+    headers: &csv::StringRecord,
+) -> Result<Vec<(usize, Col)>, Error> {
+    let same = |a: &Col, b: &Col| std::mem::discriminant(a) == std::mem::discriminant(b);
     let mut diags = Diagnostics::new();
-    let mut rows = csv_rows(text).into_iter();
-    let headers = match rows.next() {
-        Some((_, Ok(h))) => h,
-        Some((_, Err(e))) => {
-            return Err(Error::input(
-                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
-                    .at(Location::file(file)),
-            ))
-        }
-        None => csv::StringRecord::new(),
-    };
-    let mut cols = Vec::new();
+    let mut cols: Vec<(usize, Col)> = Vec::new();
     for (i, h) in headers.iter().enumerate() {
         match parse_header(h) {
             Ok(c) => {
-                if cols.iter().any(|(_, x): &(usize, Col)| {
-                    std::mem::discriminant(x) == std::mem::discriminant(&c)
-                }) {
+                if cols.iter().any(|(_, x)| same(x, &c)) {
                     diags.push(
                         Diagnostic::new(format!("column `{h}` appears twice")).at(Location::at(
                             file,
-                            1,
+                            line,
                             i + 1,
                         )),
                     );
@@ -178,7 +179,7 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
             }
             Err((m, hint)) => diags.push(
                 Diagnostic::new(m)
-                    .at(Location::at(file, 1, i + 1).with_context(format!("header `{h}`")))
+                    .at(Location::at(file, line, i + 1).with_context(format!("header `{h}`")))
                     .hint(hint),
             ),
         }
@@ -188,20 +189,30 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
         (Col::Point, "point"),
         (Col::Dp(&crate::units::UNITS[0]), "dp[…]"),
     ] {
-        if !cols
-            .iter()
-            .any(|(_, c)| std::mem::discriminant(c) == std::mem::discriminant(&req))
-        {
+        if !cols.iter().any(|(_, c)| same(c, &req)) {
             diags.push(
                 Diagnostic::new(format!("the readings file has no `{name}` column"))
-                    .at(Location::at(file, 1, 1))
+                    .at(Location::at(file, line, 1))
                     .hint("the header must name line, point and dp[unit], e.g. `line,point,dp[inH2O]`"),
             );
         }
     }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
+    diags.finish(cols)
+}
+
+/// Parses a readings file in row form.
+pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
+    if text.trim().is_empty() {
+        return Err(Error::input(
+            Diagnostic::new("the readings file is empty")
+                .at(Location::file(file))
+                .hint("fill in one row per traverse point under a header such as `line,point,dp[inH2O]` (annulus init writes a blank sheet)"),
+        ));
     }
+    let mut rows = csv_rows(text).into_iter();
+    let (header_line, headers) = header_record(file, rows.next())?;
+    let cols = columns(file, header_line, &headers)?;
+    let mut diags = Diagnostics::new();
     let mut readings = Vec::new();
     for (line_no, rec) in rows {
         let rec = match rec {
@@ -214,132 +225,10 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                 continue;
             }
         };
-        if rec.iter().all(|c| c.is_empty()) {
-            continue;
-        }
-        if rec.len() != headers.len() {
-            diags.push(
-                Diagnostic::new(format!(
-                    "row has {} fields, the header has {}",
-                    rec.len(),
-                    headers.len()
-                ))
-                .at(Location::at(file, line_no, 1).with_context(format!(
-                    "`{}`",
-                    rec.iter().collect::<Vec<_>>().join(",")
-                )))
-                .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
-            );
-            continue;
-        }
-        let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
-        let line_label = get(Col::Line)
-            .map(|i| rec[i].to_string())
-            .unwrap_or_default();
-        let point_raw = get(Col::Point)
-            .map(|i| rec[i].to_string())
-            .unwrap_or_default();
-        let who = format!("line {line_label}, point {point_raw}, ");
-        let mut r = Reading {
-            line: line_label.clone(),
-            point: 0,
-            dp: Dp::Pressure { pa: f64::NAN },
-            dp_decimals: 0,
-            temperature_k: None,
-            yaw_deg: None,
-            pitch_deg: None,
-            static_pa: None,
-            time: None,
-            source_line: line_no,
-        };
-        let mut ok = true;
-        for (i, col) in &cols {
-            let raw = &rec[*i];
-            let cell = Cell {
-                file,
-                line: line_no,
-                column: i + 1,
-                header: &headers[*i],
-                who: who.clone(),
-            };
-            let res: Result<(), Diagnostic> = match col {
-                Col::Line => {
-                    if raw.is_empty() {
-                        Err(cell.error(
-                            "the line label is empty".into(),
-                            "label lines A, B, C … in port order",
-                        ))
-                    } else {
-                        Ok(())
-                    }
-                }
-                Col::Point => match raw.parse::<usize>() {
-                    Ok(p) if p >= 1 => {
-                        r.point = p;
-                        Ok(())
-                    }
-                    _ => Err(cell.error(
-                        format!("point is not a positive whole number: `{raw}`"),
-                        "points count from the near wall starting at 1",
-                    )),
-                },
-                Col::Dp(unit) => {
-                    if raw.is_empty() {
-                        Err(cell.error(
-                            "differential pressure is missing".into(),
-                            "every point needs a reading; a point that could not be read must be re-read, not left out",
-                        ))
-                    } else {
-                        number(&cell, raw, "differential pressure").map(|v| {
-                            r.dp = to_dp(unit, v);
-                            r.dp_decimals = decimals(raw);
-                        })
-                    }
-                }
-                Col::Temperature(unit) if !raw.is_empty() => number(&cell, raw, "temperature")
-                    .and_then(|v| {
-                        let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
-                        if k > 0.0 {
-                            r.temperature_k = Some(k);
-                            Ok(())
-                        } else {
-                            Err(cell.error(
-                                format!("temperature `{raw}` is below absolute zero"),
-                                "check the unit in the header",
-                            ))
-                        }
-                    }),
-                Col::Yaw | Col::Pitch if !raw.is_empty() => number(&cell, raw, "flow angle")
-                    .and_then(|v| {
-                        if (-90.0..=90.0).contains(&v) {
-                            if *col == Col::Yaw {
-                                r.yaw_deg = Some(v);
-                            } else {
-                                r.pitch_deg = Some(v);
-                            }
-                            Ok(())
-                        } else {
-                            Err(cell.error(
-                                format!("flow angle `{raw}` is outside -90 to 90 degrees"),
-                                "record the null angle of the probe from the axial direction",
-                            ))
-                        }
-                    }),
-                Col::Static(unit) if !raw.is_empty() => number(&cell, raw, "static pressure")
-                    .map(|v| r.static_pa = Some(v * unit.factor)),
-                Col::Time if !raw.is_empty() => {
-                    r.time = Some(raw.to_string());
-                    Ok(())
-                }
-                _ => Ok(()),
-            };
-            if let Err(d) = res {
-                diags.push(d);
-                ok = false;
-            }
-        }
-        if ok {
-            readings.push(r);
+        match row_reading(file, line_no, &rec, &headers, &cols) {
+            Ok(Some(r)) => readings.push(r),
+            Ok(None) => {}
+            Err(d) => diags.extend(d),
         }
     }
     if readings.is_empty() && diags.is_empty() {
@@ -358,6 +247,136 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
         file: file.to_string(),
         readings,
     })
+}
+
+/// One row as a reading: `None` for a blank row, every bad cell of the row otherwise.
+fn row_reading(
+    file: &str,
+    line_no: usize,
+    rec: &csv::StringRecord,
+    headers: &csv::StringRecord,
+    cols: &[(usize, Col)],
+) -> Result<Option<Reading>, Diagnostics> {
+    let mut diags = Diagnostics::new();
+    if rec.iter().all(|c| c.is_empty()) {
+        return Ok(None);
+    }
+    if rec.len() != headers.len() {
+        diags.push(
+            Diagnostic::new(format!(
+                "row has {} fields, the header has {}",
+                rec.len(),
+                headers.len()
+            ))
+            .at(Location::at(file, line_no, 1).with_context(format!(
+                "`{}`",
+                rec.iter().collect::<Vec<_>>().join(",")
+            )))
+            .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
+        );
+        return Err(diags);
+    }
+    let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
+    let line_label = get(Col::Line)
+        .map(|i| rec[i].to_string())
+        .unwrap_or_default();
+    let point_raw = get(Col::Point)
+        .map(|i| rec[i].to_string())
+        .unwrap_or_default();
+    let who = format!("line {line_label}, point {point_raw}, ");
+    let mut r = Reading {
+        line: line_label,
+        point: 0,
+        dp: Dp::Pressure { pa: f64::NAN },
+        dp_decimals: 0,
+        temperature_k: None,
+        yaw_deg: None,
+        pitch_deg: None,
+        static_pa: None,
+        time: None,
+        source_line: line_no,
+    };
+    for (i, col) in cols {
+        let cell = Cell {
+            file,
+            line: line_no,
+            column: i + 1,
+            header: &headers[*i],
+            who: who.clone(),
+        };
+        if let Err(d) = read_cell(*col, &rec[*i], &cell, &mut r) {
+            diags.push(d);
+        }
+    }
+    if diags.is_empty() {
+        Ok(Some(r))
+    } else {
+        Err(diags)
+    }
+}
+
+/// Reads one cell of column `col` into the reading.
+fn read_cell(col: Col, raw: &str, cell: &Cell, r: &mut Reading) -> Result<(), Diagnostic> {
+    match col {
+        Col::Line if raw.is_empty() => Err(cell.error(
+            "the line label is empty".into(),
+            "label lines A, B, C … in port order",
+        )),
+        Col::Point => match raw.parse::<usize>() {
+            Ok(p) if p >= 1 => {
+                r.point = p;
+                Ok(())
+            }
+            _ => Err(cell.error(
+                format!("point is not a positive whole number: `{raw}`"),
+                "points count from the near wall starting at 1",
+            )),
+        },
+        Col::Dp(_) if raw.is_empty() => Err(cell.error(
+            "differential pressure is missing".into(),
+            "every point needs a reading; a point that could not be read must be re-read, not left out",
+        )),
+        Col::Dp(unit) => number(cell, raw, "differential pressure").map(|v| {
+            r.dp = to_dp(unit, v);
+            r.dp_decimals = decimals(raw);
+        }),
+        Col::Temperature(unit) if !raw.is_empty() => {
+            let v = number(cell, raw, "temperature")?;
+            let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
+            if k > 0.0 {
+                r.temperature_k = Some(k);
+                Ok(())
+            } else {
+                Err(cell.error(
+                    format!("temperature `{raw}` is below absolute zero"),
+                    "check the unit in the header",
+                ))
+            }
+        }
+        Col::Yaw | Col::Pitch if !raw.is_empty() => {
+            let v = number(cell, raw, "flow angle")?;
+            if !(-90.0..=90.0).contains(&v) {
+                return Err(cell.error(
+                    format!("flow angle `{raw}` is outside -90 to 90 degrees"),
+                    "record the null angle of the probe from the axial direction",
+                ));
+            }
+            if col == Col::Yaw {
+                r.yaw_deg = Some(v);
+            } else {
+                r.pitch_deg = Some(v);
+            }
+            Ok(())
+        }
+        Col::Static(unit) if !raw.is_empty() => {
+            number(cell, raw, "static pressure").map(|v| r.static_pa = Some(v * unit.factor))
+        }
+        Col::Time if !raw.is_empty() => {
+            r.time = Some(raw.to_string());
+            Ok(())
+        }
+        _ => Ok(()),
+    }
 }
 
 /// Parses a readings file in matrix form: `line,1,2,…,n`, one row per line, one quantity named by
