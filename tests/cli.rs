@@ -527,3 +527,16 @@ fn every_problem_of_a_survey_and_its_files_in_one_run() {
         Some(&"10 problems found; nothing was computed")
     );
 }
+
+/// Dimensions as drawings write them: `36"x24"` is 36 in by 24 in, `5'` five feet (common practice).
+#[test]
+fn layout_reads_inch_and_foot_marks() {
+    let (code, marks, err) = annulus(&["layout", "--rect", "36\"x24\"", "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let (_, plain, _) = annulus(&["layout", "--rect", "36inx24in", "--format", "json"]);
+    assert_eq!(marks, plain);
+    let (code, feet, err) = annulus(&["layout", "--round", "5'", "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let (_, inches, _) = annulus(&["layout", "--round", "60in", "--format", "json"]);
+    assert_eq!(feet, inches);
+}
