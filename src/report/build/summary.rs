@@ -107,7 +107,7 @@ fn design(job: &Job) -> Option<Design> {
             (
                 Quantity::new("Design flow", normal(d.m3_s), ""),
                 Quantity::new("Measured", normal(measured), ""),
-                format!("flow, {}", d.basis.words()),
+                d.basis.flow_words().to_string(),
             )
         }
     };
@@ -144,7 +144,7 @@ fn basis_text(job: &Job) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::testkit::evaluated;
+    use crate::report::testkit::{evaluated, evaluated_text};
 
     #[test]
     fn stack_headline_is_dry_standard_flow_with_si_beside() {
@@ -200,5 +200,27 @@ mod tests {
         let s = section(&Job::new(&e, &a));
         assert_eq!(s.verdict, Status::Fail);
         assert!(s.verdict_text.contains("checks fail"), "{}", s.verdict_text);
+    }
+
+    /// A design in dscfm is compared with the dry standard flow, and the page says so.
+    #[test]
+    fn a_design_is_compared_on_the_basis_its_unit_names() {
+        let (e, a) = evaluated_text("stack", "\n[design]\nflow = \"60000 dscfm\"\n");
+        let s = section(&Job::new(&e, &a));
+        let d = s.design.expect("a design flow");
+        assert_eq!(d.design.value, "60,000 dscfm");
+        assert_eq!(d.compared, "dry standard flow");
+        let av = e.average.as_ref().unwrap();
+        // percent of design = dry standard flow / design × 100 (flow::design)
+        let dscfm = av.dry_standard_flow_m3_s * 60.0 / 0.028316846592;
+        assert_eq!(
+            d.percent,
+            format!("{} %", fixed(100.0 * dscfm / 60000.0, 1))
+        );
+        // a design at normal conditions is shown in its own unit
+        let (e, a) = evaluated_text("stack", "\n[design]\nflow = \"95000 dNm3/h\"\n");
+        let d = section(&Job::new(&e, &a)).design.expect("a design flow");
+        assert_eq!(d.design.value, "95,000 dNm³/h");
+        assert_eq!(d.compared, "flow at normal conditions (dry)");
     }
 }
