@@ -28,6 +28,7 @@ pub mod calibration;
 pub mod checks;
 pub mod cli;
 pub mod diag;
+pub mod digest;
 pub mod display;
 pub mod evaluation;
 pub mod flow;

@@ -11,7 +11,7 @@ use serde::Serialize;
 use super::certificate::{Fact, FileHash};
 use super::documents::{DocumentMeta, Presentation};
 use super::{Attachment, AttachmentError};
-use crate::archive::sha256_hex;
+use crate::digest::sha256_hex;
 use crate::display::{fixed, grouped, DisplayTable, Kind, UnitSystem};
 use crate::input::SourceFile;
 use crate::pipeline::rata::{RataEvaluation, ReferenceSource};
