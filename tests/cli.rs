@@ -482,7 +482,7 @@ fn every_problem_of_a_survey_and_its_files_in_one_run() {
         (
             "error: `gas.static`: expected a pressure, found nothing",
             "tests/data/bad/many-problems.toml:27:10 (`gas.static`)",
-            "write a number and a unit, e.g. `29.92 inHg`",
+            "write a number and a unit, e.g. `-0.85 inH2O`",
         ),
         (
             "error: `gas.moisture`: expected a percentage, found nothing",

@@ -212,8 +212,14 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
     let mut rows = csv_rows(text).into_iter();
     let (header_line, headers) = header_record(file, rows.next())?;
     let cols = columns(file, header_line, &headers)?;
+    let dp_col = cols
+        .iter()
+        .find_map(|(i, c)| matches!(c, Col::Dp(_)).then_some(*i));
     let mut diags = Diagnostics::new();
     let mut readings = Vec::new();
+    // rows with a line and point but no Δp: a sheet not filled in yet is one problem, not one
+    // per point
+    let (mut rows_seen, mut dp_blank) = (0usize, 0usize);
     for (line_no, rec) in rows {
         let rec = match rec {
             Ok(r) => r,
@@ -225,11 +231,24 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                 continue;
             }
         };
+        if rec.iter().any(|c| !c.is_empty()) {
+            rows_seen += 1;
+            dp_blank += usize::from(dp_col.and_then(|i| rec.get(i)).is_some_and(str::is_empty));
+        }
         match row_reading(file, line_no, &rec, &headers, &cols) {
             Ok(Some(r)) => readings.push(r),
             Ok(None) => {}
             Err(d) => diags.extend(d),
         }
+    }
+    if rows_seen > 1 && dp_blank == rows_seen {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "the readings file is not filled in: all {rows_seen} rows have an empty Δp"
+            ))
+            .at(Location::file(file))
+            .hint("enter the velocity pressure read at each point in the `dp[…]` column"),
+        ));
     }
     if readings.is_empty() && diags.is_empty() {
         diags.push(
@@ -640,6 +659,19 @@ mod tests {
             err("line,point,dp[Pa],temperature[C]\nA,1,x,20\nA,two,5,20\nA,3,,20\nA,4,5,-300\n");
         assert_eq!(d.len(), 4, "{d}");
         assert!(d.to_string().contains("missing"));
+    }
+
+    #[test]
+    fn a_sheet_not_filled_in_is_one_problem() {
+        let d = err("line,point,dp[inH2O],temperature[F]\nA,1,,\nA,2,,\nB,1,,\nB,2,,\n");
+        assert_eq!(d.len(), 1, "{d}");
+        assert_eq!(
+            d.items()[0].message,
+            "the readings file is not filled in: all 4 rows have an empty Δp"
+        );
+        // one point left empty is still that point's own problem
+        let d = err("line,point,dp[inH2O]\nA,1,0.5\nA,2,\n");
+        assert_eq!(d.items()[0].message, "differential pressure is missing");
     }
 
     #[test]

@@ -19,7 +19,7 @@
 
 use super::text::span_location;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-use crate::units::{parse_quantity, Dimension};
+use crate::units::{parse_quantity, Dimension, UnitError};
 use chrono::NaiveDate;
 use std::cell::RefCell;
 use std::ops::Range;
@@ -219,6 +219,24 @@ impl<'d> Field<'d> {
         }
     }
 
+    /// [`Field::quantity`] with a value of this key's own for the hint of an empty one (a static
+    /// pressure's `"-0.85 inH2O"` rather than a barometric pressure's `"29.92 inHg"`).
+    pub fn quantity_like(&self, dimension: Dimension, example: &str) -> Option<f64> {
+        match self.value {
+            DeValue::String(s) if s.trim().is_empty() => {
+                let e = UnitError::Empty {
+                    expected: dimension,
+                };
+                self.error(
+                    format!("`{}`: {e}", self.path()),
+                    Some(format!("write a number and a unit, e.g. `{example}`")),
+                );
+                None
+            }
+            _ => self.quantity(dimension),
+        }
+    }
+
     /// A plain number (integer or float), or a recorded problem.
     pub fn number(&self) -> Option<f64> {
         let x = match self.value {
@@ -301,13 +319,22 @@ impl<'d> Field<'d> {
             return Some(*t);
         }
         let names: Vec<&str> = options.iter().map(|(n, _)| *n).collect();
+        let close = did_you_mean(found, &names);
         self.error(
             format!(
                 "`{}` must be one of {}, found `{found}`",
                 self.path(),
                 names.join(" | ")
             ),
-            None,
+            match close {
+                Some(c) if !found.is_empty() => Some(format!("did you mean `{c}`?")),
+                _ if found.is_empty() => Some(format!(
+                    "write one of them, e.g. {} = \"{}\"",
+                    self.key,
+                    names.first().copied().unwrap_or_default()
+                )),
+                _ => None,
+            },
         );
         None
     }

@@ -14,7 +14,10 @@ pub const MOISTURE_KEYS: [&str; 5] = ["moisture", "method4", "rh", "wet_bulb", "
 /// Reads `[gas]`.
 pub fn read_gas(t: &Table) -> Option<Gas> {
     let barometric_pa = read_barometric(t);
-    let static_pa = t.opt_quantity("static", Dimension::Pressure).unwrap_or(0.0);
+    let static_pa = t
+        .get("static")
+        .and_then(|f| f.quantity_like(Dimension::Pressure, "-0.85 inH2O"))
+        .unwrap_or(0.0);
     let dry = read_dry_gas(t);
     let moisture = read_moisture(t);
     let temperature_k = t.opt_quantity("temperature", Dimension::Temperature);

@@ -221,6 +221,10 @@ fn distance(t: &Table, key: &str, duct: Option<&Duct>) -> Option<f64> {
         return None;
     }
     let text = f.text();
+    if text.trim().is_empty() {
+        // a straight run is written in diameters first
+        return f.quantity_like(Dimension::Diameters, "6.2 D");
+    }
     match parse_quantity(&text, Dimension::Diameters) {
         Ok(x) if x >= 0.0 => Some(x),
         Ok(_) => {

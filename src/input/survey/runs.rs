@@ -50,16 +50,15 @@ pub fn read_run(t: &Table) -> Option<RunSpec> {
         }),
     };
     let started = t.get("started").map(|f| f.text());
+    // a leak check that cannot be read is recorded; the run is still returned so that its
+    // readings file is checked in the same pass (the recorded problem stops the survey)
     let leak_check = match t.opt_table("leak_check") {
-        None => Some(LeakCheck::default()),
+        None => LeakCheck::default(),
         Some(l) => {
-            let leak = |k: &str| l.get(k).map(|f| f.choice(&LeakResult::choices()));
-            match (leak("before"), leak("after")) {
-                (Some(None), _) | (_, Some(None)) => None,
-                (before, after) => Some(LeakCheck {
-                    before: before.flatten(),
-                    after: after.flatten(),
-                }),
+            let leak = |k: &str| l.get(k).and_then(|f| f.choice(&LeakResult::choices()));
+            LeakCheck {
+                before: leak("before"),
+                after: leak("after"),
             }
         }
     };
@@ -68,6 +67,6 @@ pub fn read_run(t: &Table) -> Option<RunSpec> {
         readings: readings?,
         form: form?,
         started,
-        leak_check: leak_check?,
+        leak_check,
     })
 }
