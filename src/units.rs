@@ -258,7 +258,7 @@ pub const UNITS: &[Unit] = &[
 ];
 
 /// Other spellings of symbols in [`UNITS`], as the trade writes them: `(spelling, symbol)`.
-/// Spellings are compared after [`squeeze`] (lower case, without spaces and dots); the module
+/// Spellings are compared after squeezing (lower case, without spaces and dots); the module
 /// documentation says why each means what it does.
 pub const SPELLINGS: &[(&str, &str)] = &[
     // the conventional inch of water (see the module docs)
