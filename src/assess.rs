@@ -12,13 +12,11 @@
 //! `null`, since JSON has no infinity.
 
 use crate::checks::instruments::{Instruments, TemperatureAccuracy};
-use crate::checks::integrity::ReportedValue;
-use crate::checks::{self, Finding, RunView, Settings, Status, Subject};
+use crate::checks::{self, Finding, RunView, Status, Subject};
 use crate::display::Kind;
+use crate::evaluation::{run_is_valid, Evaluation};
 use crate::flow::RunResult;
 use crate::geometry::Shape;
-use crate::input::assess_config::dp_record_units;
-use crate::pipeline::{run_is_valid, Evaluation};
 use crate::readings::{Dp, RunReadings};
 use crate::survey::ProbeKind;
 use crate::uncertainty::{
@@ -65,13 +63,8 @@ pub mod defaults {
     pub const WALL_FACTOR_BOUND: f64 = 0.005;
 }
 
-/// What `[checks]`, `[instruments]` and `[reported]` say; parsed by `input::assess_config`.
-#[derive(Debug, Clone, Default, PartialEq)]
-pub struct AssessConfig {
-    pub checks: Settings,
-    pub instruments: Instruments,
-    pub reported: Vec<ReportedValue>,
-}
+/// What `[checks]`, `[instruments]` and `[reported]` say (read by `input::assess_config`).
+pub use crate::checks::config::AssessConfig;
 
 /// The overall outcome.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -217,7 +210,8 @@ impl Assessment {
 /// Runs all checks and builds the budgets.
 pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
     let survey = &eval.loaded.survey;
-    let units = dp_record_units(&eval.loaded);
+    // the unit each run's Δp column was recorded in, from its header
+    let units: Vec<_> = eval.loaded.runs.iter().map(|(_, r)| r.dp_unit).collect();
     let views: Vec<RunView> = eval
         .runs
         .iter()

@@ -139,6 +139,11 @@ impl Diagnostics {
         &self.items
     }
 
+    /// Orders the problems shown by `key` (stably); the count of those not shown is kept.
+    pub fn sort_by_key<K: Ord>(&mut self, key: impl FnMut(&Diagnostic) -> K) {
+        self.items.sort_by_key(key);
+    }
+
     /// `Ok(value)` when nothing was collected, else the collected problems as an [`Error`].
     pub fn finish<T>(self, value: T) -> Result<T, Error> {
         if self.is_empty() {

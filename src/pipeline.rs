@@ -1,22 +1,17 @@
-//! The pipeline from a loaded survey to results: plane → match readings → compute each run →
-//! average. Checks and uncertainty join here as their stages land. No printing; no clock.
+//! The pipeline from loaded inputs to results: plane → match readings → compute each run →
+//! average, then the checks and uncertainty ([`evaluate_and_assess`]); a RATA's surveys and
+//! statistics in [`rata`]. Inputs arrive loaded (`input`); nothing here reads files, prints or
+//! looks at the clock.
+
+pub mod rata;
 
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-use crate::flow::{self, average_runs, Average, Convention, EpaForm, FlowError, RunResult};
-use crate::input::{readings::match_to_layout, Loaded};
+pub use crate::evaluation::{run_is_valid, Evaluation};
+use crate::flow::{self, average_runs, Convention, EpaForm, FlowError, RunResult};
+use crate::input::readings::{label_lines, match_to_layout};
+use crate::input::Loaded;
 use crate::plane::{lay_out, Plane};
 use crate::survey::WallFactor;
-
-/// Everything computed from one survey.
-#[derive(Debug, Clone)]
-pub struct Evaluation {
-    pub loaded: Loaded,
-    pub convention: Convention,
-    pub plane: Plane,
-    pub runs: Vec<RunResult>,
-    /// Runs included in the average (ids), in order.
-    pub average: Option<Average>,
-}
 
 fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
     match e {
@@ -49,7 +44,51 @@ fn flow_diag(e: FlowError, file: &str) -> Diagnostic {
 }
 
 /// Runs the calculation pipeline on a loaded survey, reporting every input problem found.
-pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
+pub fn evaluate(mut loaded: Loaded) -> Result<Evaluation, Error> {
+    let (convention, plane) = lay_out_survey(&loaded)?;
+    let mut diags = Diagnostics::new();
+    // line labels as the layout names them; a run whose labels match no line gets one problem
+    let mut labelled = Vec::new();
+    for (_, readings) in &mut loaded.runs {
+        let ok = label_lines(readings, &plane.layout).map_err(|d| diags.push(d));
+        labelled.push(ok.is_ok());
+    }
+    let s = &loaded.survey;
+    let mut runs = Vec::new();
+    for ((spec, (_, readings)), labelled) in s.runs.iter().zip(&loaded.runs).zip(labelled) {
+        if !labelled {
+            continue;
+        }
+        if let Err(Error::Input(d)) = match_to_layout(readings, &plane.layout) {
+            diags.extend(d);
+            continue;
+        }
+        match flow::compute_run(s, &convention, &plane.layout, &spec.id, readings) {
+            Ok(r) => runs.push(r),
+            Err(e) => diags.push(flow_diag(e, &readings.file)),
+        }
+    }
+    if !diags.is_empty() {
+        return Err(Error::Input(diags));
+    }
+    let included: Vec<&RunResult> = runs
+        .iter()
+        .zip(&s.runs)
+        .filter(|(_, spec)| run_is_valid(spec, s.convention))
+        .map(|(r, _)| r)
+        .collect();
+    let average = average_runs(&included, s.design.as_ref(), &convention);
+    Ok(Evaluation {
+        convention,
+        plane,
+        average,
+        runs,
+        loaded,
+    })
+}
+
+/// The survey's convention and its plane laid out.
+fn lay_out_survey(loaded: &Loaded) -> Result<(Convention, Plane), Error> {
     let s = &loaded.survey;
     let survey_name = loaded.survey_file.name.clone();
     let convention = Convention::new(
@@ -82,59 +121,98 @@ pub fn evaluate(loaded: Loaded) -> Result<Evaluation, Error> {
                 .hint("remove wall_factor or give a measured factor"),
         ));
     }
-    let mut diags = Diagnostics::new();
-    let mut runs = Vec::new();
-    for (spec, (file, readings)) in s.runs.iter().zip(&loaded.runs) {
-        if let Err(Error::Input(d)) = match_to_layout(readings, &plane.layout) {
-            diags.extend(d);
-            continue;
-        }
-        match flow::compute_run(s, &convention, &plane.layout, &spec.id, readings) {
-            Ok(r) => runs.push(r),
-            Err(e) => diags.push(flow_diag(e, &readings.file)),
-        }
-        let _ = file;
-    }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
-    }
-    let included: Vec<&RunResult> = runs
-        .iter()
-        .zip(&s.runs)
-        .filter(|(_, spec)| run_is_valid(spec, s.convention))
-        .map(|(r, _)| r)
-        .collect();
-    let average = average_runs(&included, s.design_flow_m3_s);
-    Ok(Evaluation {
-        convention,
-        plane,
-        average,
-        runs,
-        loaded,
-    })
-}
-
-/// A run counts toward the average unless its post-run leak check failed, or (for stack
-/// conventions, where Method 2 §8.1 requires it) was not recorded: a failed post-test leak check
-/// voids the run (methods.md §4). HVAC traverses do not record pitot leak checks.
-pub fn run_is_valid(
-    spec: &crate::survey::RunSpec,
-    convention: crate::survey::ConventionId,
-) -> bool {
-    use crate::survey::LeakResult;
-    match spec.leak_check.after {
-        Some(LeakResult::Pass) => spec.leak_check.before != Some(LeakResult::Fail),
-        Some(LeakResult::Fail) => false,
-        None => convention.is_hvac(),
-    }
+    Ok((convention, plane))
 }
 
 /// Evaluates a loaded survey and runs the acceptance checks and uncertainty budgets on it.
 pub fn evaluate_and_assess(
     loaded: Loaded,
 ) -> Result<(Evaluation, crate::assess::Assessment), Error> {
-    let config = crate::input::assess_config::load_assess_config(&loaded)?;
+    let config = loaded.config.clone();
     let eval = evaluate(loaded)?;
     let assessment = crate::assess::assess(&eval, &config);
     Ok((eval, assessment))
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::checks::testkit::{assess_text, epa_csv, eval, survey, EPA_SURVEY};
+    use crate::checks::Status;
+    use crate::units::{parse_flow, FlowBasis};
+
+    fn with_design(flow: &str) -> crate::evaluation::Evaluation {
+        let s = survey(
+            EPA_SURVEY,
+            &["1"],
+            &format!("[design]\nflow = \"{flow}\"\n"),
+        );
+        eval(&s, &[("run1.csv", epa_csv())])
+    }
+
+    /// Percent of design compares the measured flow on the basis the design's unit names
+    /// (common practice: a dscfm design against dscfm, an acfm design against acfm).
+    #[test]
+    fn percent_of_design_is_on_the_designs_basis() {
+        for (flow, basis) in [
+            ("8000 acfm", FlowBasis::Actual),
+            ("8000 cfm", FlowBasis::Actual),
+            ("8000 wscfm", FlowBasis::Standard),
+            ("8000 dscfm", FlowBasis::DryStandard),
+            ("13000 dNm3/h", FlowBasis::NormalDry),
+        ] {
+            let e = with_design(flow);
+            let avg = e.average.as_ref().unwrap();
+            let (design, _) = parse_flow(flow).unwrap();
+            let measured = match basis {
+                FlowBasis::Actual => avg.actual_flow_m3_s,
+                FlowBasis::Standard => avg.standard_flow_m3_s,
+                FlowBasis::DryStandard => avg.dry_standard_flow_m3_s,
+                // EPA English standard conditions 528 °R, 29.92 inHg to 273.15 K, 101.325 kPa
+                _ => avg.dry_standard_flow_m3_s * crate::flow::design::normal_factor(&e.convention),
+            };
+            assert_eq!(avg.design_basis, Some(basis), "{flow}");
+            let p = avg.percent_of_design.unwrap();
+            assert!((p - 100.0 * measured / design).abs() < 1e-9, "{flow}: {p}");
+            let run = &e.runs[0];
+            assert!((run.percent_of_design.unwrap() - p).abs() < 1e-9, "{flow}");
+        }
+        // the same figure on two bases gives two answers: the stack gas is hot and wet
+        let a = with_design("8000 acfm")
+            .average
+            .unwrap()
+            .percent_of_design
+            .unwrap();
+        let d = with_design("8000 dscfm")
+            .average
+            .unwrap()
+            .percent_of_design
+            .unwrap();
+        assert!(d < 0.8 * a, "{a} {d}");
+    }
+
+    /// `[reported]` figures are compared with the recomputed flow of their basis.
+    #[test]
+    fn reported_flows_compare_on_their_basis() {
+        let e = eval(&survey(EPA_SURVEY, &["1"], ""), &[("run1.csv", epa_csv())]);
+        let r = &e.runs[0];
+        let dscfm = r.dry_standard_flow_m3_s * 60.0 / 0.028316846592;
+        let acfm = r.actual_flow_m3_s * 60.0 / 0.028316846592;
+        let extra =
+            format!("[reported.run.1]\nflow = \"{dscfm:.0} dscfm\"\nacfm = \"{acfm:.0} cfm\"\n");
+        let statuses = |extra: &str| -> Vec<Status> {
+            let a = assess_text(
+                &survey(EPA_SURVEY, &["1"], extra),
+                &[("run1.csv", epa_csv())],
+            );
+            a.checks
+                .iter()
+                .filter(|f| f.id == "reported-values")
+                .map(|f| f.status)
+                .collect()
+        };
+        assert_eq!(statuses(&extra), [Status::Pass, Status::Pass]);
+        // the dscfm figure under `flow` compared with the actual flow would have failed
+        let extra = format!("[reported.run.1]\nflow = \"{dscfm:.0} acfm\"\n");
+        assert_eq!(statuses(&extra), [Status::Fail]);
+    }
 }

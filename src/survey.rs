@@ -6,8 +6,37 @@
 
 use crate::geometry::Duct;
 use crate::layout::Method;
+use crate::units::FlowBasis;
 use chrono::NaiveDate;
 use serde::Serialize;
+
+/// Gives an enum `ALL` (every variant, in order), `name()` (its word in files and on the command
+/// line) and `parse()`, from one list: a variant left out of the list makes `name` fail to
+/// compile, so no list of names can fall behind the enum.
+macro_rules! named {
+    ($t:ident { $($v:ident => $n:literal),+ $(,)? }) => {
+        impl $t {
+            pub const ALL: &'static [$t] = &[$($t::$v),+];
+
+            /// The word used in survey files and on the command line.
+            pub fn name(self) -> &'static str {
+                match self {
+                    $($t::$v => $n),+
+                }
+            }
+
+            /// The variant named `text` (exactly, after trimming).
+            pub fn parse(text: &str) -> Option<$t> {
+                Self::ALL.iter().copied().find(|v| v.name() == text.trim())
+            }
+
+            /// `(name, variant)` pairs, for parsers that list the choices in messages.
+            pub fn choices() -> Vec<(&'static str, $t)> {
+                Self::ALL.iter().map(|v| (v.name(), *v)).collect()
+            }
+        }
+    };
+}
 
 /// The rule book results are computed under.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
@@ -63,12 +92,22 @@ pub enum Construction {
     Brick,
 }
 
+named!(Construction {
+    Steel => "steel",
+    Brick => "brick",
+});
+
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum ProbeKind {
     SType,
     Standard,
 }
+
+named!(ProbeKind {
+    SType => "s-type",
+    Standard => "standard",
+});
 
 /// The pitot tube used.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -168,6 +207,12 @@ pub enum NegativePolicy {
     Signed,
 }
 
+named!(NegativePolicy {
+    Reject => "reject",
+    Zero => "zero",
+    Signed => "signed",
+});
+
 /// Which measured flow angles correct the point velocities.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
@@ -179,6 +224,12 @@ pub enum AngleCorrection {
     /// EPA Method 2F: v·cos(yaw)·cos(pitch).
     YawPitch,
 }
+
+named!(AngleCorrection {
+    None => "none",
+    Yaw => "yaw",
+    YawPitch => "yaw-pitch",
+});
 
 /// Wall-effects adjustment (EPA Method 2H).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -215,6 +266,11 @@ pub enum LeakResult {
     Pass,
     Fail,
 }
+
+named!(LeakResult {
+    Pass => "pass",
+    Fail => "fail",
+});
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
 pub struct LeakCheck {
@@ -258,6 +314,16 @@ pub struct LayoutRequest {
     pub points_per_line: Option<usize>,
 }
 
+/// The flow a system was designed for, with the basis its unit names (`8000 acfm` is actual,
+/// `8000 scfm` standard, `dscfm` dry standard, `Nm3/h` normal …; plain `cfm` is actual).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct DesignFlow {
+    pub m3_s: f64,
+    pub basis: FlowBasis,
+    /// As written, e.g. `"8000 acfm"`.
+    pub raw: String,
+}
+
 /// A validated survey.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Survey {
@@ -278,7 +344,8 @@ pub struct Survey {
     pub layout: LayoutRequest,
     pub probe: Probe,
     pub gas: Gas,
-    pub design_flow_m3_s: Option<f64>,
+    /// `[design] flow`, when given.
+    pub design: Option<DesignFlow>,
     pub options: FlowOptions,
     pub signoff: Signoff,
     pub runs: Vec<RunSpec>,

@@ -519,7 +519,7 @@ fn rata_bad_survey_references_are_located_in_their_own_files() {
     assert_eq!(out, "");
     assert_eq!(
         err,
-        "error: the survey `no-such/survey.toml` cannot be read: no such file
+        "error: cannot read the survey `no-such/survey.toml` (resolved to `tests/data/rata/no-such/survey.toml`): No such file or directory (os error 2)
  --> tests/data/rata/bad-survey.toml:57:10 (`run.survey`)
    = hint: survey paths in a RATA file are relative to the RATA file
 error: differential pressure is not a number: `0.6l`

@@ -448,3 +448,95 @@ fn compute_prints_si_on_request() {
         "{si}"
     );
 }
+
+/// One run reports every problem of a survey, its assessment sections, the files it names and
+/// its readings: structural (unknown key, wrong type, missing key), values (a date, empty
+/// quantities whose hints fit their kind), [checks] and [reported], a readings file that cannot
+/// be read (located at the survey line naming it) and a bad cell.
+#[test]
+fn every_problem_of_a_survey_and_its_files_in_one_run() {
+    let (code, out, err) = annulus(&["compute", "tests/data/bad/many-problems.toml"]);
+    assert_eq!(code, 1);
+    assert_eq!(out, "");
+    let expect = [
+        (
+            "error: `survey.date` is not a date: `14/10/2026`",
+            "tests/data/bad/many-problems.toml:7:8 (`survey.date`)",
+            "write the date as YYYY-MM-DD, e.g. \"2026-10-14\"",
+        ),
+        (
+            "error: unknown key `port_lenght` in [duct]",
+            "tests/data/bad/many-problems.toml:15:1",
+            "did you mean `port_length`?",
+        ),
+        (
+            "error: `layout.points_per_line` must be a whole number, found the string `12`",
+            "tests/data/bad/many-problems.toml:20:19 (`layout.points_per_line`)",
+            "write the number without quotes: points_per_line = 12",
+        ),
+        (
+            "error: [gas] has no `barometric`",
+            "tests/data/bad/many-problems.toml:26:1 (`gas`)",
+            "add barometric = \"29.92 inHg\"",
+        ),
+        (
+            "error: `gas.static`: expected a pressure, found nothing",
+            "tests/data/bad/many-problems.toml:27:10 (`gas.static`)",
+            "write a number and a unit, e.g. `-0.85 inH2O`",
+        ),
+        (
+            "error: `gas.moisture`: expected a percentage, found nothing",
+            "tests/data/bad/many-problems.toml:30:12 (`gas.moisture`)",
+            "write a number and a unit, e.g. `8.1 %`",
+        ),
+        (
+            "error: unknown check `cyclonic`",
+            "tests/data/bad/many-problems.toml:33:1 (`checks`)",
+            "valid check ids: straight-run-epa",
+        ),
+        (
+            "error: [reported] names run `7`, which the survey does not have",
+            "tests/data/bad/many-problems.toml:35:15 (`reported.run`)",
+            "the survey's runs are: 1, 2",
+        ),
+        (
+            "error: cannot read the readings file `many-problems-run2.csv` (resolved to `tests/data/bad/many-problems-run2.csv`): ",
+            "tests/data/bad/many-problems.toml:45:12 (`run.readings`)",
+            "readings paths are relative to the survey file",
+        ),
+        (
+            "error: differential pressure is not a number: `0.3l`",
+            "tests/data/bad/many-problems.csv:3:3 (line A, point 2, column `dp[inH2O]`)",
+            "use `.` as the decimal separator",
+        ),
+    ];
+    let lines: Vec<&str> = err.lines().collect();
+    assert_eq!(lines.len(), expect.len() * 3 + 1, "{err}");
+    for (i, (message, at, hint)) in expect.iter().enumerate() {
+        let block = &lines[i * 3..i * 3 + 3];
+        assert!(block[0].starts_with(message), "{i}: {}", block[0]);
+        assert_eq!(block[1], format!(" --> {at}"), "{i}");
+        assert!(
+            block[2].starts_with(&format!("   = hint: {hint}")),
+            "{i}: {}",
+            block[2]
+        );
+    }
+    assert_eq!(
+        lines.last(),
+        Some(&"10 problems found; nothing was computed")
+    );
+}
+
+/// Dimensions as drawings write them: `36"x24"` is 36 in by 24 in, `5'` five feet (common practice).
+#[test]
+fn layout_reads_inch_and_foot_marks() {
+    let (code, marks, err) = annulus(&["layout", "--rect", "36\"x24\"", "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let (_, plain, _) = annulus(&["layout", "--rect", "36inx24in", "--format", "json"]);
+    assert_eq!(marks, plain);
+    let (code, feet, err) = annulus(&["layout", "--round", "5'", "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let (_, inches, _) = annulus(&["layout", "--round", "60in", "--format", "json"]);
+    assert_eq!(feet, inches);
+}

@@ -13,17 +13,10 @@ pub mod manifest;
 pub mod review;
 pub mod verify;
 
+/// Digests live in `crate::digest` (the report's attachments use them too).
+pub use crate::digest::{hex, sha256_hex};
 pub use keys::{KeyError, PublicKey, SecretKey};
 pub use manifest::{FileEntry, Manifest, Signature};
-
-/// Lower-case hex of bytes.
-pub fn hex(bytes: &[u8]) -> String {
-    let mut s = String::with_capacity(bytes.len() * 2);
-    for b in bytes {
-        s.push_str(&format!("{b:02x}"));
-    }
-    s
-}
 
 /// Bytes from hex; `None` on odd length or a non-hex digit.
 pub fn unhex(text: &str) -> Option<Vec<u8>> {
@@ -35,12 +28,6 @@ pub fn unhex(text: &str) -> Option<Vec<u8>> {
         .step_by(2)
         .map(|i| u8::from_str_radix(t.get(i..i + 2)?, 16).ok())
         .collect()
-}
-
-/// SHA-256 of bytes as hex.
-pub fn sha256_hex(bytes: &[u8]) -> String {
-    use sha2::{Digest, Sha256};
-    hex(&Sha256::digest(bytes))
 }
 
 #[cfg(test)]

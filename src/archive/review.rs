@@ -594,7 +594,9 @@ fn forensic_quantity(q: ReportedQuantity) -> Option<Quantity> {
         ReportedQuantity::ActualFlow => Some(Quantity::ActualFlow),
         ReportedQuantity::StandardFlow => Some(Quantity::StandardFlow),
         ReportedQuantity::DryStandardFlow => Some(Quantity::DryStandardFlow),
-        ReportedQuantity::Density => None,
+        ReportedQuantity::NormalFlow
+        | ReportedQuantity::DryNormalFlow
+        | ReportedQuantity::Density => None,
     }
 }
 

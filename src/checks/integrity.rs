@@ -11,8 +11,10 @@ use super::{
     list_labels, num, pct, CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec,
     Rule, RunView, Status, Stricter, Subject, ALL,
 };
-use crate::flow::RunResult;
+use crate::flow::design::{flow_on_basis, Flows};
+use crate::flow::{Convention, RunResult};
 use crate::readings::{Dp, Reading};
+use crate::units::FlowBasis;
 use crate::units::{convert_out, Dimension, Unit};
 
 const FRACTION: LimitKind = LimitKind::Quantity(Dimension::Fraction);
@@ -117,15 +119,21 @@ pub enum ReportedQuantity {
     ActualFlow,
     StandardFlow,
     DryStandardFlow,
+    /// At 273.15 K and 101.325 kPa, wet (`Nm3/h`).
+    NormalFlow,
+    /// At 273.15 K and 101.325 kPa, dry (`dNm3/h`).
+    DryNormalFlow,
     Density,
 }
 
 impl ReportedQuantity {
-    pub const ALL: [ReportedQuantity; 5] = [
+    pub const ALL: [ReportedQuantity; 7] = [
         ReportedQuantity::Velocity,
         ReportedQuantity::ActualFlow,
         ReportedQuantity::StandardFlow,
         ReportedQuantity::DryStandardFlow,
+        ReportedQuantity::NormalFlow,
+        ReportedQuantity::DryNormalFlow,
         ReportedQuantity::Density,
     ];
 
@@ -136,6 +144,8 @@ impl ReportedQuantity {
             ReportedQuantity::ActualFlow => "actual_flow",
             ReportedQuantity::StandardFlow => "standard_flow",
             ReportedQuantity::DryStandardFlow => "dry_standard_flow",
+            ReportedQuantity::NormalFlow => "normal_flow",
+            ReportedQuantity::DryNormalFlow => "dry_normal_flow",
             ReportedQuantity::Density => "density",
         }
     }
@@ -147,6 +157,29 @@ impl ReportedQuantity {
             "scfm" => Some(ReportedQuantity::StandardFlow),
             "dscfm" => Some(ReportedQuantity::DryStandardFlow),
             k => ReportedQuantity::ALL.into_iter().find(|q| q.key() == k),
+        }
+    }
+
+    /// The flow of `basis`.
+    pub fn flow(basis: FlowBasis) -> ReportedQuantity {
+        match basis {
+            FlowBasis::Actual => ReportedQuantity::ActualFlow,
+            FlowBasis::Standard => ReportedQuantity::StandardFlow,
+            FlowBasis::DryStandard => ReportedQuantity::DryStandardFlow,
+            FlowBasis::Normal => ReportedQuantity::NormalFlow,
+            FlowBasis::NormalDry => ReportedQuantity::DryNormalFlow,
+        }
+    }
+
+    /// The basis of a flow; `None` for velocity and density.
+    pub fn basis(self) -> Option<FlowBasis> {
+        match self {
+            ReportedQuantity::ActualFlow => Some(FlowBasis::Actual),
+            ReportedQuantity::StandardFlow => Some(FlowBasis::Standard),
+            ReportedQuantity::DryStandardFlow => Some(FlowBasis::DryStandard),
+            ReportedQuantity::NormalFlow => Some(FlowBasis::Normal),
+            ReportedQuantity::DryNormalFlow => Some(FlowBasis::NormalDry),
+            ReportedQuantity::Velocity | ReportedQuantity::Density => None,
         }
     }
 
@@ -164,6 +197,8 @@ impl ReportedQuantity {
             ReportedQuantity::ActualFlow => "actual flow",
             ReportedQuantity::StandardFlow => "standard flow",
             ReportedQuantity::DryStandardFlow => "dry standard flow",
+            ReportedQuantity::NormalFlow => "normal flow",
+            ReportedQuantity::DryNormalFlow => "dry normal flow",
             ReportedQuantity::Density => "gas density",
         }
     }
@@ -173,13 +208,17 @@ impl ReportedQuantity {
         self != ReportedQuantity::Density
     }
 
-    fn of_run(self, r: &RunResult) -> f64 {
-        match self {
-            ReportedQuantity::Velocity => r.mean_velocity_m_s,
-            ReportedQuantity::ActualFlow => r.actual_flow_m3_s,
-            ReportedQuantity::StandardFlow => r.standard_flow_m3_s,
-            ReportedQuantity::DryStandardFlow => r.dry_standard_flow_m3_s,
-            ReportedQuantity::Density => r.density_kg_m3,
+    /// The recomputed value of a run; flows on the quantity's basis ([`flow_on_basis`]).
+    fn of_run(self, r: &RunResult, convention: &Convention) -> f64 {
+        let flows = Flows {
+            actual_m3_s: r.actual_flow_m3_s,
+            standard_m3_s: r.standard_flow_m3_s,
+            dry_standard_m3_s: r.dry_standard_flow_m3_s,
+        };
+        match self.basis() {
+            Some(b) => flow_on_basis(flows, b, convention),
+            None if self == ReportedQuantity::Velocity => r.mean_velocity_m_s,
+            None => r.density_kg_m3,
         }
     }
 }
@@ -452,7 +491,7 @@ fn recomputed(s: &Subject, v: &ReportedValue) -> Result<(f64, Option<f64>), Stri
                 .iter()
                 .find(|r| &r.spec.id == id)
                 .ok_or_else(|| format!("the survey has no run `{id}`"))?;
-            let x = v.quantity.of_run(run.result);
+            let x = v.quantity.of_run(run.result, s.convention);
             let wrong = v
                 .quantity
                 .scales_with_velocity()
@@ -464,14 +503,15 @@ fn recomputed(s: &Subject, v: &ReportedValue) -> Result<(f64, Option<f64>), Stri
             let avg = s
                 .average
                 .ok_or_else(|| "no valid run: there is no average".to_string())?;
-            let x = match v.quantity {
-                ReportedQuantity::Velocity => avg.mean_velocity_m_s,
-                ReportedQuantity::ActualFlow => avg.actual_flow_m3_s,
-                ReportedQuantity::StandardFlow => avg.standard_flow_m3_s,
-                ReportedQuantity::DryStandardFlow => avg.dry_standard_flow_m3_s,
-                ReportedQuantity::Density => {
-                    return Err("density is compared per run only".to_string())
-                }
+            let flows = Flows {
+                actual_m3_s: avg.actual_flow_m3_s,
+                standard_m3_s: avg.standard_flow_m3_s,
+                dry_standard_m3_s: avg.dry_standard_flow_m3_s,
+            };
+            let x = match (v.quantity, v.quantity.basis()) {
+                (_, Some(b)) => flow_on_basis(flows, b, s.convention),
+                (ReportedQuantity::Velocity, None) => avg.mean_velocity_m_s,
+                (_, None) => return Err("density is compared per run only".to_string()),
             };
             let runs: Vec<&RunResult> = s
                 .runs
@@ -481,7 +521,7 @@ fn recomputed(s: &Subject, v: &ReportedValue) -> Result<(f64, Option<f64>), Stri
                 .collect();
             let wrong: Option<Vec<f64>> = runs
                 .iter()
-                .map(|r| wrong_ratio(r).map(|k| k * v.quantity.of_run(r)))
+                .map(|r| wrong_ratio(r).map(|k| k * v.quantity.of_run(r, s.convention)))
                 .collect();
             let wrong = wrong
                 .filter(|w| !w.is_empty())

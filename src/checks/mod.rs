@@ -18,6 +18,7 @@
 //! Limits marked *from memory* in methods.md (\[M\]) carry `from_memory: true`: every finding of such
 //! a check says so in words and never presents the rule as a verified requirement.
 
+pub mod config;
 pub mod flow_quality;
 pub mod instruments;
 pub mod integrity;

@@ -193,8 +193,8 @@ fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, si: bool, ctx: &Ctx) ->
                 a.flow_relative_std_dev * 100.0
             );
         }
-        if let Some(p) = a.percent_of_design {
-            out += &format!("measured actual flow is {p:.1} % of design\n");
+        if let (Some(p), Some(b)) = (a.percent_of_design, a.design_basis) {
+            out += &format!("measured {} is {p:.1} % of design\n", b.flow_words());
         }
     } else {
         out += "no valid run: nothing to average (see the leak checks)\n";

@@ -50,7 +50,7 @@ pub fn write(
     });
     // A blank sheet is dated the day it is printed (SOURCE_DATE_EPOCH pins it); the command line is
     // the edge where the clock may be read.
-    let date = super::report::document_date(chrono::Local::now().date_naive())?;
+    let date = super::report::document_date(super::today())?;
     let rendered = Engine::new()
         .render_field_sheet(&data, date)
         .map_err(|e| Error::Environment(format!("the field sheet template failed: {e}")))?;

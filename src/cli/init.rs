@@ -175,11 +175,7 @@ pub fn run(args: InitArgs, ctx: &Ctx) -> Result<i32, Error> {
                 ))
             }
         },
-        // The command line is the edge of the program: the only place that reads the clock.
-        None => chrono::Local::now()
-            .date_naive()
-            .format("%Y-%m-%d")
-            .to_string(),
+        None => super::today().format("%Y-%m-%d").to_string(),
     };
     let setting = args.plane.settle(None)?;
     let plane = plane_for(&setting)?;

@@ -6,6 +6,7 @@
 
 mod calibrate;
 mod check;
+mod choices;
 mod completions;
 mod compute;
 mod fieldsheet;
@@ -96,6 +97,13 @@ pub enum Command {
     /// Man pages generated from the command definitions.
     #[command(after_help = "Example:\n  annulus man -o man/ && man -l man/annulus-layout.1")]
     Man(completions::ManArgs),
+}
+
+/// Today's date on this machine's clock: the one place the program reads the clock (a blank
+/// survey or field sheet is dated the day it is made; everything else takes its dates from its
+/// inputs).
+pub(crate) fn today() -> chrono::NaiveDate {
+    chrono::Local::now().date_naive()
 }
 
 /// Runs the program on `args`; returns the process exit code.

@@ -1,5 +1,6 @@
 //! Arguments that describe a plane (shared by `layout` and `init`) and their validation.
 
+use super::choices::one_of;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::geometry::Duct;
 use crate::layout::{MarkStep, Method};
@@ -20,8 +21,8 @@ pub struct PlaneArgs {
     #[arg(long, value_name = "THICKNESS")]
     pub liner: Option<String>,
     /// Layout method.
-    #[arg(long, value_parser = ["equal-area", "log-linear", "log-tchebycheff"])]
-    pub method: Option<String>,
+    #[arg(long, value_parser = one_of(&Method::ALL, Method::name))]
+    pub method: Option<Method>,
     /// Traverse lines (diameters of a round duct, ports of a rectangular one).
     #[arg(long)]
     pub lines: Option<usize>,
@@ -33,8 +34,8 @@ pub struct PlaneArgs {
     #[arg(long, value_name = "LENGTH")]
     pub port_length: Option<String>,
     /// Rule book the plane is laid out for (sets the minimum point count and the wall rule).
-    #[arg(long, value_parser = ["epa-method-2", "iso-16911", "hvac-ip", "hvac-si"])]
-    pub convention: Option<String>,
+    #[arg(long, value_parser = one_of(&ConventionId::ALL, ConventionId::name))]
+    pub convention: Option<ConventionId>,
     /// Straight run from the upstream disturbance to the plane, e.g. `6.2D` or `30ft`.
     #[arg(long, value_name = "DISTANCE")]
     pub upstream: Option<String>,
@@ -136,14 +137,14 @@ impl PlaneArgs {
             );
             None
         };
-        let convention = match &self.convention {
-            Some(c) => ConventionId::parse(c).unwrap_or(ConventionId::EpaMethod2),
+        let convention = match self.convention {
+            Some(c) => c,
             None => base
                 .map(|s| s.convention)
                 .unwrap_or(ConventionId::EpaMethod2),
         };
-        let method = match &self.method {
-            Some(m) => Method::parse(m).unwrap_or(Method::EqualArea),
+        let method = match self.method {
+            Some(m) => m,
             None => base
                 .map(|s| s.layout.method)
                 .unwrap_or(if convention.is_hvac() {

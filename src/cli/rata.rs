@@ -8,7 +8,8 @@
 use super::output::{csv_text, json_text, status, Ctx, Format, Table};
 use crate::diag::Error;
 use crate::display::fixed;
-use crate::input::rata_file::{load, LoadedRata, ReferenceSource};
+use crate::input::rata_file::load;
+use crate::pipeline::rata::{evaluate, RataEvaluation, ReferenceSource};
 use crate::rata::{LowVelocity, RataGrade, RataLimits, RataQuantity};
 use crate::report::rata::{
     attachments, bias_text, frequency, grade_word, low_velocity_text, monitor_text, quantity_text,
@@ -35,7 +36,7 @@ pub struct RataArgs {
 }
 
 pub fn run(args: RataArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let r = load(&args.file)?;
+    let r = evaluate(load(&args.file)?)?;
     let text = match args.format {
         Format::Json => json_text(&json_doc(&r)),
         Format::Csv => runs_csv(&r),
@@ -55,7 +56,7 @@ pub fn run(args: RataArgs, ctx: &Ctx) -> Result<i32, Error> {
     })
 }
 
-fn table(r: &LoadedRata, ctx: &Ctx) -> String {
+fn table(r: &RataEvaluation, ctx: &Ctx) -> String {
     let m = &r.spec.meta;
     let res = &r.result;
     let u = RataUnits::of(r);
@@ -275,7 +276,7 @@ struct BiasJson {
     adjustment_factor: f64,
 }
 
-fn json_doc(r: &LoadedRata) -> RataJson<'_> {
+fn json_doc(r: &RataEvaluation) -> RataJson<'_> {
     let m = &r.spec.meta;
     let res = &r.result;
     let s = sfx(r.spec.quantity);
@@ -364,7 +365,7 @@ fn json_doc(r: &LoadedRata) -> RataJson<'_> {
     }
 }
 
-fn runs_csv(r: &LoadedRata) -> String {
+fn runs_csv(r: &RataEvaluation) -> String {
     let sym = r.spec.display_unit.symbol;
     let u = r.spec.display_unit;
     let rows: Vec<Vec<String>> = r
@@ -397,7 +398,7 @@ fn runs_csv(r: &LoadedRata) -> String {
     csv_text(&h, &rows)
 }
 
-fn write_summary(r: &LoadedRata, out: &std::path::Path) -> Result<(), Error> {
+fn write_summary(r: &RataEvaluation, out: &std::path::Path) -> Result<(), Error> {
     let files = attachments(r)
         .map_err(|e| Error::Environment(format!("cannot embed the RATA files: {e}")))?;
     let model = summary(r, &files);

@@ -131,7 +131,8 @@ pub fn resolve_gas(
         (ConventionId::HvacIp, None) if matches!(gas.dry, DryGas::Air) => {
             DensityRule::HvacIpShortcut
         }
-        _ => DensityRule::IdealGas,
+        (ConventionId::HvacIp | ConventionId::HvacSi, None)
+        | (ConventionId::EpaMethod2 | ConventionId::Iso16911, _) => DensityRule::IdealGas,
     };
     Ok(GasState {
         absolute_pressure_pa: p,

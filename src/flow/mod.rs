@@ -6,6 +6,7 @@
 //! locates them in the readings file.
 
 pub mod convention;
+pub mod design;
 pub mod gas_state;
 pub mod run;
 

@@ -5,7 +5,9 @@ use super::gas_state::{resolve_gas, GasState};
 use super::FlowError;
 use crate::layout::Layout;
 use crate::readings::{Dp, Reading, RunReadings};
-use crate::survey::{AngleCorrection, ConventionId, NegativePolicy, Survey, WallFactor};
+use crate::survey::{
+    AngleCorrection, ConventionId, DesignFlow, NegativePolicy, Survey, WallFactor,
+};
 use crate::units::{PA_PER_INH2O, PA_PER_MMH2O};
 use serde::Serialize;
 
@@ -318,7 +320,7 @@ pub fn compute_run(
             let rho_std = convention.standard_density_kg_m3.unwrap_or(1.2);
             mass / (1.0 + gas.humidity_ratio()) / rho_std
         }
-        _ => q_std_wet * (1.0 - gas.bws),
+        ConventionId::EpaMethod2 | ConventionId::Iso16911 => q_std_wet * (1.0 - gas.bws),
     };
     let wrong = if mean_sqrt > 0.0 {
         v_bar * sqrt_mean / mean_sqrt
@@ -340,7 +342,14 @@ pub fn compute_run(
         sqrt_mean_dp_pa: sqrt_mean,
         wrong_average_velocity_m_s: wrong,
         epa,
-        percent_of_design: survey.design_flow_m3_s.map(|d| 100.0 * q_act / d),
+        percent_of_design: survey.design.as_ref().map(|d| {
+            let flows = super::design::Flows {
+                actual_m3_s: q_act,
+                standard_m3_s: q_std_wet,
+                dry_standard_m3_s: dry_std,
+            };
+            super::design::percent_of_design(d, flows, convention)
+        }),
         gas,
     })
 }
@@ -398,10 +407,21 @@ pub struct Average {
     pub flow_max_deviation: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub percent_of_design: Option<f64>,
+    /// The design flow and the basis its unit names: the measured flow on that basis is what
+    /// `percent_of_design` compares.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub design_flow_m3_s: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub design_basis: Option<crate::units::FlowBasis>,
 }
 
-/// Averages the given runs (the caller excludes invalid ones). `None` for no runs.
-pub fn average_runs(runs: &[&RunResult], design_flow_m3_s: Option<f64>) -> Option<Average> {
+/// Averages the given runs (the caller excludes invalid ones); the percent of `design` compares
+/// the average flow on the design's basis. `None` for no runs.
+pub fn average_runs(
+    runs: &[&RunResult],
+    design: Option<&DesignFlow>,
+    convention: &Convention,
+) -> Option<Average> {
     if runs.is_empty() {
         return None;
     }
@@ -430,7 +450,16 @@ pub fn average_runs(runs: &[&RunResult], design_flow_m3_s: Option<f64>) -> Optio
             .iter()
             .map(|r| ((r.actual_flow_m3_s - q) / q).abs())
             .fold(0.0, f64::max),
-        percent_of_design: design_flow_m3_s.map(|d| 100.0 * q / d),
+        percent_of_design: design.map(|d| {
+            let flows = super::design::Flows {
+                actual_m3_s: q,
+                standard_m3_s: mean(|r| r.standard_flow_m3_s),
+                dry_standard_m3_s: mean(|r| r.dry_standard_flow_m3_s),
+            };
+            super::design::percent_of_design(d, flows, convention)
+        }),
+        design_flow_m3_s: design.map(|d| d.m3_s),
+        design_basis: design.map(|d| d.basis),
     })
 }
 
@@ -576,7 +605,8 @@ readings = "r.csv"
         let (s, c, l) = setup("iso-16911");
         let a = compute_run(&s, &c, &l, "1", &readings(&l, &[100.0; 8])).unwrap();
         let b = compute_run(&s, &c, &l, "2", &readings(&l, &[121.0; 8])).unwrap();
-        let avg = average_runs(&[&a, &b], None).unwrap();
+        let c = Convention::new(ConventionId::HvacIp, EpaForm::English, None);
+        let avg = average_runs(&[&a, &b], None, &c).unwrap();
         assert!(
             (avg.actual_flow_m3_s - (a.actual_flow_m3_s + b.actual_flow_m3_s) / 2.0).abs() < 1e-12
         );
@@ -584,6 +614,6 @@ readings = "r.csv"
         let want =
             (b.actual_flow_m3_s - a.actual_flow_m3_s).abs() / 2f64.sqrt() / avg.actual_flow_m3_s;
         assert!((avg.flow_relative_std_dev - want).abs() < 1e-12);
-        assert!(average_runs(&[], None).is_none());
+        assert!(average_runs(&[], None, &c).is_none());
     }
 }

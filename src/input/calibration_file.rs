@@ -40,19 +40,17 @@
 //! `note` is optional; `#` starts a comment line. EPA Method 2 §10.1 asks for three pairs per leg;
 //! more are accepted.
 
-use super::text::{span_location, Spanned};
-use super::SourceFile;
+use super::header::{Header, HeaderError};
+use super::toml_doc::{Table, TomlDoc};
+use super::{read_referenced, FileKind, SourceFile};
 use crate::calibration::{
     calibrate, Calibration, CalibrationError, Leg, PairedReading, METHOD_2_LIMITS,
     MIN_READINGS_PER_SIDE,
 };
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-use crate::units::{lookup_unit, parse_number, parse_quantity, symbols_for, Dimension, Unit};
+use crate::units::{parse_number, Dimension, Unit};
 use chrono::NaiveDate;
-use serde::Deserialize;
 use std::path::{Path, PathBuf};
-
-type S = Spanned<String>;
 
 /// Plausible coefficients of a standard (Prandtl) pitot tube: the same range a survey's
 /// `probe.coefficient` accepts (0.5, 1.05]; common practice, a standard tube is near 0.99.
@@ -61,35 +59,6 @@ const STANDARD_COEFFICIENT_RANGE: (f64, f64) = (0.5, 1.05);
 const HINT_FORMAT: &str =
     "see the calibration format in sample-data/calibration/README.md (ts-0417.toml is a complete example)";
 const HINT_CELL: &str = "use `.` as the decimal separator; put units in the header, not the cell";
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFile {
-    calibration: RawCalibration,
-    standard: Option<RawStandard>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawCalibration {
-    probe: S,
-    serial: Option<String>,
-    date: Spanned<toml::Value>,
-    calibrated_by: S,
-    organisation: Option<String>,
-    location: Option<String>,
-    velocity: Option<S>,
-    assembly: Option<String>,
-    readings: S,
-    notes: Option<Vec<String>>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawStandard {
-    id: Option<String>,
-    coefficient: Option<Spanned<f64>>,
-}
 
 /// The descriptive part of a calibration file.
 #[derive(Debug, Clone, PartialEq)]
@@ -120,6 +89,8 @@ pub struct CalibrationSpec {
     pub meta: CalibrationMeta,
     /// The readings CSV, relative to the TOML file.
     pub readings: String,
+    /// Where the TOML names it (a readings file that cannot be read is reported there).
+    pub readings_at: Location,
 }
 
 /// One row of the readings CSV.
@@ -218,11 +189,39 @@ pub fn load_with(
 ) -> Result<LoadedCalibration, Error> {
     let name = path.display().to_string();
     let (bytes, text) = crate::input::read_text_with(path, &name, source)?;
-    let spec = parse_calibration(&name, &text)?;
+    load_text(path, bytes, &text, source)
+}
+
+/// [`load_with`] for a calibration file another file names (a survey's `[probe] calibration`):
+/// a file that cannot be read is reported at `named_at`, the line that names it.
+pub fn load_referenced(
+    path: &Path,
+    written: &str,
+    named_at: &Location,
+    source: crate::input::FileSource,
+) -> Result<LoadedCalibration, Error> {
+    let (bytes, text) = read_referenced(path, written, named_at, FileKind::Calibration, source)?;
+    load_text(path, bytes, &text, source)
+}
+
+fn load_text(
+    path: &Path,
+    bytes: Vec<u8>,
+    text: &str,
+    source: crate::input::FileSource,
+) -> Result<LoadedCalibration, Error> {
+    let name = path.display().to_string();
+    let spec = parse_calibration(&name, text)?;
     let dir = path.parent().unwrap_or(Path::new("."));
     let rpath = dir.join(&spec.readings);
     let rname = rpath.display().to_string();
-    let (rbytes, rtext) = crate::input::read_text_with(&rpath, &rname, source)?;
+    let (rbytes, rtext) = read_referenced(
+        &rpath,
+        &spec.readings,
+        &spec.readings_at,
+        FileKind::CalibrationReadings,
+        source,
+    )?;
     let readings = parse_readings(&rname, &rtext)?;
     let calibration = calibrate(
         &readings.leg(Leg::A),
@@ -271,144 +270,83 @@ fn core_error(e: CalibrationError, file: &str, readings: &str) -> Error {
     Error::input(Diagnostic::new(e.to_string()).at(Location::file(at)))
 }
 
-fn toml_error(file: &str, text: &str, e: toml::de::Error) -> Error {
-    let loc = match e.span() {
-        Some(span) => span_location(file, text, span.start),
-        None => Location::file(file),
-    };
-    Error::input(
-        Diagnostic::new(format!(
-            "the calibration file is not valid: {}",
-            e.message().trim()
-        ))
-        .at(loc)
-        .hint(HINT_FORMAT),
-    )
-}
-
-fn located(file: &str, text: &str, span: std::ops::Range<usize>, key: &str) -> Location {
-    span_location(file, text, span.start).with_context(format!("`{key}`"))
-}
-
 /// Parses a calibration TOML. `file` names it in diagnostics.
 pub fn parse_calibration(file: &str, text: &str) -> Result<CalibrationSpec, Error> {
-    let raw: RawFile = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
-    let mut diags = Diagnostics::new();
-    let c = &raw.calibration;
-    let mut required = |v: &S, key: &str, example: &str| {
-        if v.get_ref().trim().is_empty() {
-            diags.push(
-                Diagnostic::new(format!("`{key}` is empty"))
-                    .at(located(file, text, v.span(), key))
-                    .hint(format!("write e.g. {example}")),
-            );
-        }
+    let doc = TomlDoc::parse(file, text, "calibration file")?.with_guide(HINT_FORMAT);
+    let spec = {
+        let root = doc.root();
+        let c = root.table("calibration");
+        let meta = c.as_ref().and_then(|c| read_meta(c, &root));
+        let readings = c.as_ref().and_then(|c| {
+            let path = c.text("readings", "\"ts-0417.csv\"")?;
+            let at = c
+                .get("readings")
+                .map(|f| f.doc.location(f.span.clone(), &f.path()))?;
+            Some((path.trim().to_string(), at))
+        });
+        meta.zip(readings)
+            .map(|(meta, (readings, readings_at))| CalibrationSpec {
+                meta,
+                readings,
+                readings_at,
+            })
     };
-    required(&c.probe, "calibration.probe", "probe = \"TS-0417\"");
-    required(
-        &c.calibrated_by,
-        "calibration.calibrated_by",
-        "calibrated_by = \"A. Name\"",
-    );
-    required(
-        &c.readings,
-        "calibration.readings",
-        "readings = \"ts-0417.csv\"",
-    );
+    doc.finish(spec)
+}
 
-    let (date_text, parsed) = super::text::toml_date(c.date.get_ref());
-    let date = match parsed {
-        Some(d) => Some(d),
-        None => {
-            diags.push(
-                Diagnostic::new(format!("`calibration.date` is not a date: `{date_text}`"))
-                    .at(located(file, text, c.date.span(), "calibration.date"))
-                    .hint("write the date as YYYY-MM-DD, e.g. \"2026-05-11\""),
+fn read_meta(c: &Table, root: &Table) -> Option<CalibrationMeta> {
+    let probe = c.text("probe", "\"TS-0417\"");
+    let calibrated_by = c.text("calibrated_by", "\"A. Name\"");
+    let date = c.date("date", "2026-05-11");
+    let velocity = c.get("velocity").and_then(|f| {
+        let x = f.quantity(Dimension::Velocity)?;
+        if x > 0.0 {
+            Some((x, f.text().trim().to_string()))
+        } else {
+            f.error(
+                format!(
+                    "`calibration.velocity` must be greater than zero, found `{}`",
+                    f.text()
+                ),
+                None,
             );
             None
         }
-    };
-
-    let velocity =
-        c.velocity
-            .as_ref()
-            .and_then(|v| match parse_quantity(v.get_ref(), Dimension::Velocity) {
-                Ok(x) if x > 0.0 => Some((x, v.get_ref().trim().to_string())),
-                Ok(_) => {
-                    diags.push(
-                        Diagnostic::new(format!(
-                            "`calibration.velocity` must be greater than zero, found `{}`",
-                            v.get_ref()
-                        ))
-                        .at(located(
-                            file,
-                            text,
-                            v.span(),
-                            "calibration.velocity",
-                        )),
-                    );
-                    None
-                }
-                Err(e) => {
-                    diags.push(
-                        Diagnostic::new(format!("`calibration.velocity`: {e}"))
-                            .at(located(file, text, v.span(), "calibration.velocity"))
-                            .hint(e.hint()),
-                    );
-                    None
-                }
-            });
-
-    let standard_coefficient = raw
-        .standard
-        .as_ref()
-        .and_then(|s| s.coefficient.as_ref())
-        .and_then(|v| {
-            let x = *v.get_ref();
+    });
+    let standard = root.opt_table("standard");
+    let standard_id = standard.as_ref().and_then(|s| s.opt_text("id"));
+    let given = standard.as_ref().and_then(|s| s.get("coefficient"));
+    let standard_coefficient = match &given {
+        None => Some(None),
+        Some(f) => f.number().and_then(|x| {
             let (lo, hi) = STANDARD_COEFFICIENT_RANGE;
             if x > lo && x <= hi {
-                Some(x)
+                Some(Some(x))
             } else {
-                diags.push(
-                    Diagnostic::new(format!(
-                        "a standard pitot coefficient of {x} is not plausible"
-                    ))
-                    .at(located(file, text, v.span(), "standard.coefficient"))
-                    .hint(
-                        "a standard pitot tube is near 0.99; leave `coefficient` out to use 0.99",
+                f.error(
+                    format!("a standard pitot coefficient of {x} is not plausible"),
+                    Some(
+                        "a standard pitot tube is near 0.99; leave `coefficient` out to use 0.99"
+                            .into(),
                     ),
                 );
                 None
             }
-        });
-    let coefficient_given = raw
-        .standard
-        .as_ref()
-        .is_some_and(|s| s.coefficient.is_some());
-
-    match date {
-        Some(date)
-            if diags.is_empty() && (standard_coefficient.is_some() || !coefficient_given) =>
-        {
-            Ok(CalibrationSpec {
-                meta: CalibrationMeta {
-                    probe: c.probe.get_ref().trim().to_string(),
-                    serial: c.serial.clone(),
-                    date,
-                    calibrated_by: c.calibrated_by.get_ref().trim().to_string(),
-                    organisation: c.organisation.clone(),
-                    location: c.location.clone(),
-                    velocity,
-                    assembly: c.assembly.clone(),
-                    standard_id: raw.standard.as_ref().and_then(|s| s.id.clone()),
-                    standard_coefficient,
-                    notes: c.notes.clone().unwrap_or_default(),
-                },
-                readings: c.readings.get_ref().trim().to_string(),
-            })
-        }
-        _ => Err(Error::Input(diags)),
-    }
+        }),
+    };
+    Some(CalibrationMeta {
+        probe: probe?.trim().to_string(),
+        serial: c.opt_text("serial"),
+        date: date?,
+        calibrated_by: calibrated_by?.trim().to_string(),
+        organisation: c.opt_text("organisation"),
+        location: c.opt_text("location"),
+        velocity,
+        assembly: c.opt_text("assembly"),
+        standard_id,
+        standard_coefficient: standard_coefficient?,
+        notes: c.opt_strings("notes").unwrap_or_default(),
+    })
 }
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -427,78 +365,33 @@ impl Col {
 
 const HINT_HEADER: &str = "the header is `leg,standard_dp[unit],s_type_dp[unit]` and optionally `note`, e.g. `leg,standard_dp[inH2O],s_type_dp[inH2O]`";
 
-fn parse_header(h: &str) -> Result<Col, (String, String)> {
-    let h = h.trim();
-    let (name, unit) = match h.split_once('[') {
-        Some((n, rest)) => match rest.strip_suffix(']') {
-            Some(u) => (n.trim(), Some(u.trim())),
-            None => {
-                return Err((
-                    format!("header `{h}` has no closing `]`"),
-                    "write units as name[unit], e.g. standard_dp[inH2O]".into(),
-                ))
-            }
-        },
-        None => (h, None),
-    };
-    let pressure = |example: &str| -> Result<&'static Unit, (String, String)> {
-        let Some(u) = unit else {
-            return Err((
-                format!("column `{name}` needs a unit in its header"),
-                format!("write e.g. `{example}`"),
-            ));
-        };
-        match lookup_unit(u) {
-            Some(unit) if unit.dimension == Dimension::Pressure => Ok(unit),
-            _ => Err((
-                format!("unit `{u}` cannot be used for column `{name}`"),
-                format!(
-                    "`{name}` takes a pressure unit: {}",
-                    symbols_for(Dimension::Pressure).join(", ")
-                ),
-            )),
-        }
-    };
-    let plain = |col: Col| match unit {
-        None => Ok(col),
-        Some(u) => Err((
-            format!("column `{name}` takes no unit `{u}`"),
-            format!("write `{name}`"),
-        )),
-    };
-    match name {
-        "leg" => plain(Col::Leg),
-        "note" => plain(Col::Note),
+fn parse_header(h: &str) -> Result<Col, HeaderError> {
+    let header = Header::parse(h)?;
+    let pressure = |example: &str| header.unit_of(&[Dimension::Pressure], example);
+    match header.name {
+        "leg" => header.no_unit(None).map(|()| Col::Leg),
+        "note" => header.no_unit(None).map(|()| Col::Note),
         "standard_dp" => Ok(Col::Standard(pressure("standard_dp[inH2O]")?)),
         "s_type_dp" => Ok(Col::SType(pressure("s_type_dp[inH2O]")?)),
         other => Err((format!("unknown column `{other}`"), HINT_HEADER.into())),
     }
 }
 
-/// Parses the paired-readings CSV. Every bad cell is reported with its line, column, header and
-/// raw value; a leg with fewer than three pairs is an error (EPA Method 2 §10.1).
-pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Error> {
+/// Where the columns of a calibration readings file are.
+struct Columns {
+    leg: usize,
+    standard: (usize, &'static Unit),
+    s_type: (usize, &'static Unit),
+    note: Option<usize>,
+}
+
+/// The columns the header names, or every problem with it.
+fn read_columns(
+    file: &str,
+    header_line: usize,
+    headers: &csv::StringRecord,
+) -> Result<Columns, Error> {
     let mut diags = Diagnostics::new();
-    let mut rdr = csv::ReaderBuilder::new()
-        .trim(csv::Trim::All)
-        .comment(Some(b'#'))
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let headers = match rdr.headers() {
-        Ok(h) => h.clone(),
-        Err(e) => {
-            return Err(Error::input(
-                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
-                    .at(Location::file(file)),
-            ))
-        }
-    };
-    // The header is the first line that is not a comment; find it for messages.
-    let header_line = text
-        .lines()
-        .position(|l| !l.trim_start().starts_with('#'))
-        .map(|i| i + 1)
-        .unwrap_or(1);
     let mut cols: Vec<(usize, Col)> = Vec::new();
     for (i, h) in headers.iter().enumerate() {
         match parse_header(h) {
@@ -542,16 +435,46 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
             );
         }
     }
-    let (Some(leg_col), Some((std_i, Col::Standard(std_unit))), Some((s_i, Col::SType(s_unit)))) =
-        (leg_col, std_col, s_col)
-    else {
-        return Err(Error::Input(diags));
-    };
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
+    match (leg_col, std_col, s_col) {
+        (Some((leg, _)), Some((si, Col::Standard(su))), Some((ti, Col::SType(tu))))
+            if diags.is_empty() =>
+        {
+            Ok(Columns {
+                leg,
+                standard: (si, su),
+                s_type: (ti, tu),
+                note: find(Col::Note).map(|(i, _)| i),
+            })
+        }
+        _ => Err(Error::Input(diags)),
     }
-    let note_i = find(Col::Note).map(|(i, _)| i);
+}
 
+/// Parses the paired-readings CSV. Every bad cell is reported with its line, column, header and
+/// raw value; a leg with fewer than three pairs is an error (EPA Method 2 §10.1).
+pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Error> {
+    let mut rdr = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .comment(Some(b'#'))
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let headers = match rdr.headers() {
+        Ok(h) => h.clone(),
+        Err(e) => {
+            return Err(Error::input(
+                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
+                    .at(Location::file(file)),
+            ))
+        }
+    };
+    // The header is the first line that is not a comment; find it for messages.
+    let header_line = text
+        .lines()
+        .position(|l| !l.trim_start().starts_with('#'))
+        .map(|i| i + 1)
+        .unwrap_or(1);
+    let cols = read_columns(file, header_line, &headers)?;
+    let mut diags = Diagnostics::new();
     let mut rows = Vec::new();
     let mut counts = [0usize; 2];
     for rec in rdr.records() {
@@ -566,96 +489,15 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
                 continue;
             }
         };
-        let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
-        if rec.iter().all(|c| c.is_empty()) {
-            continue;
-        }
-        if rec.len() != headers.len() {
-            diags.push(
-                Diagnostic::new(format!(
-                    "row has {} fields, the header has {}",
-                    rec.len(),
-                    headers.len()
-                ))
-                .at(Location::at(file, line_no, 1))
-                .hint(if rec.len() > headers.len() {
-                    "a decimal comma splits a number into two fields: use `.` as the decimal separator"
-                } else {
-                    "every row needs a value (or an empty field) for each column"
-                }),
-            );
-            continue;
-        }
-        let leg_raw = &rec[leg_col.0];
-        let leg = match leg_raw {
-            "A" | "a" => Some(Leg::A),
-            "B" | "b" => Some(Leg::B),
-            _ => {
-                diags.push(
-                    Diagnostic::new(format!("leg must be `A` or `B`, found `{leg_raw}`"))
-                        .at(Location::at(file, line_no, leg_col.0 + 1)
-                            .with_context(format!("column `{}`", &headers[leg_col.0])))
-                        .hint("write which leg of the Type S tube faced the flow: A or B"),
-                );
-                None
+        match read_pair(file, &rec, &headers, &cols) {
+            Ok(Some(mut row)) => {
+                let k = usize::from(row.leg == Leg::B);
+                counts[k] += 1;
+                row.number = counts[k];
+                rows.push(row);
             }
-        };
-        let who = match leg {
-            Some(l) => format!("leg {}, ", l.label()),
-            None => String::new(),
-        };
-        let mut cell = |i: usize, unit: &Unit, what: &str| -> Option<f64> {
-            let raw = &rec[i];
-            let at = Location::at(file, line_no, i + 1)
-                .with_context(format!("{who}column `{}`", &headers[i]));
-            if raw.is_empty() {
-                diags.push(
-                    Diagnostic::new(format!("{what} is missing"))
-                        .at(at)
-                        .hint("every pair needs both readings, taken at the same point"),
-                );
-                return None;
-            }
-            match parse_number(raw) {
-                Some(v) if v.is_finite() && !raw.contains('/') => {
-                    if v > 0.0 {
-                        Some(v * unit.factor)
-                    } else {
-                        diags.push(
-                            Diagnostic::new(format!(
-                                "{what} must be greater than zero, found `{raw}`"
-                            ))
-                            .at(at)
-                            .hint("a calibration reading is a velocity pressure in a flowing tunnel; check the gauge connections"),
-                        );
-                        None
-                    }
-                }
-                _ => {
-                    diags.push(
-                        Diagnostic::new(format!("{what} is not a number: `{raw}`"))
-                            .at(at)
-                            .hint(HINT_CELL),
-                    );
-                    None
-                }
-            }
-        };
-        let std_pa = cell(std_i, std_unit, "standard pitot Δp");
-        let s_pa = cell(s_i, s_unit, "Type S pitot Δp");
-        if let (Some(leg), Some(standard_dp_pa), Some(s_type_dp_pa)) = (leg, std_pa, s_pa) {
-            let k = usize::from(leg == Leg::B);
-            counts[k] += 1;
-            rows.push(CalibrationReading {
-                leg,
-                number: counts[k],
-                standard_dp_pa,
-                s_type_dp_pa,
-                standard_raw: rec[std_i].to_string(),
-                s_type_raw: rec[s_i].to_string(),
-                note: note_i.map(|i| rec[i].to_string()).filter(|n| !n.is_empty()),
-                source_line: line_no,
-            });
+            Ok(None) => {}
+            Err(d) => diags.extend(d),
         }
     }
     if diags.is_empty() {
@@ -678,9 +520,107 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
     }
     diags.finish(CalibrationReadings {
         rows,
-        standard_unit: std_unit.symbol.to_string(),
-        s_type_unit: s_unit.symbol.to_string(),
+        standard_unit: cols.standard.1.symbol.to_string(),
+        s_type_unit: cols.s_type.1.symbol.to_string(),
     })
+}
+
+/// One row as a pair (numbered 0: the caller numbers pairs within their leg); `None` for a
+/// blank row, every bad cell of the row otherwise.
+fn read_pair(
+    file: &str,
+    rec: &csv::StringRecord,
+    headers: &csv::StringRecord,
+    cols: &Columns,
+) -> Result<Option<CalibrationReading>, Diagnostics> {
+    let mut diags = Diagnostics::new();
+    let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
+    if rec.iter().all(|c| c.is_empty()) {
+        return Ok(None);
+    }
+    if rec.len() != headers.len() {
+        diags.push(
+            Diagnostic::new(format!(
+                "row has {} fields, the header has {}",
+                rec.len(),
+                headers.len()
+            ))
+            .at(Location::at(file, line_no, 1))
+            .hint(if rec.len() > headers.len() {
+                "a decimal comma splits a number into two fields: use `.` as the decimal separator"
+            } else {
+                "every row needs a value (or an empty field) for each column"
+            }),
+        );
+        return Err(diags);
+    }
+    let leg_raw = &rec[cols.leg];
+    let leg = match leg_raw {
+        "A" | "a" => Some(Leg::A),
+        "B" | "b" => Some(Leg::B),
+        _ => {
+            diags.push(
+                Diagnostic::new(format!("leg must be `A` or `B`, found `{leg_raw}`"))
+                    .at(Location::at(file, line_no, cols.leg + 1)
+                        .with_context(format!("column `{}`", &headers[cols.leg])))
+                    .hint("write which leg of the Type S tube faced the flow: A or B"),
+            );
+            None
+        }
+    };
+    let who = match leg {
+        Some(l) => format!("leg {}, ", l.label()),
+        None => String::new(),
+    };
+    let mut cell = |(i, unit): (usize, &Unit), what: &str| -> Option<f64> {
+        let at = Location::at(file, line_no, i + 1)
+            .with_context(format!("{who}column `{}`", &headers[i]));
+        match pair_value(&rec[i], unit, what) {
+            Ok(v) => Some(v),
+            Err((message, hint)) => {
+                diags.push(Diagnostic::new(message).at(at).hint(hint));
+                None
+            }
+        }
+    };
+    let std_pa = cell(cols.standard, "standard pitot Δp");
+    let s_pa = cell(cols.s_type, "Type S pitot Δp");
+    match (leg, std_pa, s_pa) {
+        (Some(leg), Some(standard_dp_pa), Some(s_type_dp_pa)) if diags.is_empty() => {
+            Ok(Some(CalibrationReading {
+                leg,
+                number: 0,
+                standard_dp_pa,
+                s_type_dp_pa,
+                standard_raw: rec[cols.standard.0].to_string(),
+                s_type_raw: rec[cols.s_type.0].to_string(),
+                note: cols
+                    .note
+                    .map(|i| rec[i].to_string())
+                    .filter(|n| !n.is_empty()),
+                source_line: line_no,
+            }))
+        }
+        _ => Err(diags),
+    }
+}
+
+/// A calibration Δp cell in Pa: present, a number, greater than zero.
+fn pair_value(raw: &str, unit: &Unit, what: &str) -> Result<f64, (String, &'static str)> {
+    if raw.is_empty() {
+        return Err((
+            format!("{what} is missing"),
+            "every pair needs both readings, taken at the same point",
+        ));
+    }
+    match parse_number(raw) {
+        Some(v) if v.is_finite() && !raw.contains('/') && v > 0.0 => Ok(v * unit.factor),
+        Some(v) if v.is_finite() && !raw.contains('/') => Err((
+            format!("{what} must be greater than zero, found `{raw}`"),
+            "a calibration reading is a velocity pressure in a flowing tunnel; check the gauge connections",
+        )),
+        _ => Err((format!("{what} is not a number: `{raw}`"), HINT_CELL)),
+    }
 }
 
 #[cfg(test)]

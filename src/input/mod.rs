@@ -1,17 +1,28 @@
-//! The only code that reads files: survey TOML, readings CSV. Everything read is kept byte-exact
-//! (the report embeds it) and turned into validated domain values with located diagnostics.
+//! The only code that reads input files: surveys (TOML) with their readings (CSV), calibration
+//! files, RATA files. Everything read is kept byte-exact (the report embeds it) and turned into
+//! validated domain values with located diagnostics. Loading produces values only: nothing here
+//! computes results (that is `pipeline`'s job), prints or reads the clock.
+//!
+//! The helpers every parser shares: [`toml_doc`] (TOML read key by key, every problem of a file
+//! in one pass, unknown keys with a did-you-mean), [`header`] (`name[unit]` CSV headers),
+//! [`text`] (byte offsets to lines and columns) and [`read_referenced`] (a file named by another,
+//! located at the line that names it).
 
 pub mod assess_config;
 pub mod calibration_file;
+pub mod header;
 pub mod rata_file;
 pub mod readings;
 pub mod survey;
 pub mod text;
+pub mod toml_doc;
 
-use crate::diag::{Diagnostic, Diagnostics, Error, Location};
+use crate::checks::config::AssessConfig;
+use crate::diag::{Diagnostic, Error, Location};
 use crate::readings::RunReadings;
 use crate::survey::{ReadingsForm, Survey};
 use std::path::{Path, PathBuf};
+use toml_doc::TomlDoc;
 
 /// A file as read: its display name, path and exact bytes.
 #[derive(Debug, Clone, PartialEq)]
@@ -31,6 +42,8 @@ pub struct Loaded {
     pub runs: Vec<(SourceFile, RunReadings)>,
     /// The probe calibration file and its readings, when the survey references one.
     pub calibration: Option<(SourceFile, SourceFile)>,
+    /// The survey's `[checks]`, `[instruments]` and `[reported]` sections.
+    pub config: AssessConfig,
 }
 
 /// Reads a file as UTF-8 text, with a located error.
@@ -66,7 +79,64 @@ impl MemoryFiles {
     }
 }
 
-fn read_text_with(
+/// What a file named by another file holds, for the message when it cannot be read.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FileKind {
+    /// A run's readings CSV, named by a survey's `[[run]] readings`.
+    Readings,
+    /// A calibration TOML, named by a survey's `[probe] calibration`.
+    Calibration,
+    /// A calibration's paired readings CSV, named by its `readings`.
+    CalibrationReadings,
+    /// A survey, named by a RATA run's `survey`.
+    Survey,
+}
+
+impl FileKind {
+    /// Words for the file in messages.
+    pub fn what(self) -> &'static str {
+        match self {
+            FileKind::Readings => "readings file",
+            FileKind::Calibration => "calibration file",
+            FileKind::CalibrationReadings => "calibration readings file",
+            FileKind::Survey => "survey",
+        }
+    }
+
+    /// The hint for a file of this kind that cannot be read.
+    pub fn hint(self) -> &'static str {
+        match self {
+            FileKind::Readings => "readings paths are relative to the survey file; `annulus init` writes a blank readings sheet",
+            FileKind::Calibration => "calibration paths are relative to the survey file; the file is in the `annulus calibrate` format",
+            FileKind::CalibrationReadings => "the readings path is relative to the calibration file; its header is `leg,standard_dp[unit],s_type_dp[unit]`",
+            FileKind::Survey => "survey paths in a RATA file are relative to the RATA file",
+        }
+    }
+}
+
+/// Reads a file that another file names: a problem is located at `named_at` (the line of the
+/// naming file, e.g. a survey's `readings = "run1.csv"`) and quotes the path as written and as
+/// resolved.
+pub fn read_referenced(
+    path: &Path,
+    written: &str,
+    named_at: &Location,
+    kind: FileKind,
+    source: FileSource,
+) -> Result<(Vec<u8>, String), Diagnostic> {
+    let name = path.display().to_string();
+    let bytes = source(path).map_err(|e| {
+        Diagnostic::new(format!(
+            "cannot read the {} `{written}` (resolved to `{name}`): {e}",
+            kind.what()
+        ))
+        .at(named_at.clone())
+        .hint(kind.hint())
+    })?;
+    decode(bytes, &name)
+}
+
+pub(crate) fn read_text_with(
     path: &Path,
     name: &str,
     source: FileSource,
@@ -74,8 +144,13 @@ fn read_text_with(
     let bytes = source(path).map_err(|e| {
         Diagnostic::new(format!("cannot read `{name}`: {e}"))
             .at(Location::file(name))
-            .hint("check the path; readings paths in a survey are relative to the survey file")
+            .hint("check the path")
     })?;
+    decode(bytes, name)
+}
+
+/// The bytes as UTF-8 text without a byte-order mark, or a located error.
+fn decode(bytes: Vec<u8>, name: &str) -> Result<(Vec<u8>, String), Diagnostic> {
     let text = String::from_utf8(bytes.clone()).map_err(|e| {
         let (l, c) = text::line_column(
             &String::from_utf8_lossy(&bytes[..e.utf8_error().valid_up_to()]),
@@ -98,49 +173,61 @@ pub fn load(path: &Path) -> Result<Loaded, Error> {
     load_with(path, &|p| std::fs::read(p))
 }
 
-/// [`load`] with the bytes of each file supplied by `source`.
+/// [`load`] with the bytes of each file supplied by `source`. Every problem of the survey (its
+/// structure, its values, its `[checks]` / `[instruments]` / `[reported]`), of the files it names
+/// and of each readings file is reported in the same pass.
 pub fn load_with(path: &Path, source: FileSource) -> Result<Loaded, Error> {
     let name = path.display().to_string();
     let (bytes, text) = read_text_with(path, &name, source)?;
+    load_survey(path, bytes, &text, source)
+}
+
+/// [`load_with`] for a survey another file names (a RATA run's `survey`): a survey that cannot
+/// be read is reported at `named_at`, the line that names it.
+pub fn load_referenced(
+    path: &Path,
+    written: &str,
+    named_at: &Location,
+    kind: FileKind,
+    source: FileSource,
+) -> Result<Loaded, Error> {
+    let (bytes, text) = read_referenced(path, written, named_at, kind, source)?;
+    load_survey(path, bytes, &text, source)
+}
+
+fn load_survey(
+    path: &Path,
+    bytes: Vec<u8>,
+    text: &str,
+    source: FileSource,
+) -> Result<Loaded, Error> {
+    let name = path.display().to_string();
     let dir = path.parent().unwrap_or(Path::new("."));
+    let doc = TomlDoc::parse(&name, text, "survey")?;
     let calibration_files = std::cell::RefCell::new(None);
-    let resolve = |rel: &str| {
-        let c = calibration_file::load_with(&dir.join(rel), source)?;
+    let resolve = |written: &str, at: &Location| {
+        let c = calibration_file::load_referenced(&dir.join(written), written, at, source)?;
         let record = c.record();
         *calibration_files.borrow_mut() = Some((c.file, c.readings_file));
         Ok(record)
     };
-    let survey = survey::parse_survey_with(&name, &text, Some(&resolve))?;
-    let mut diags = Diagnostics::new();
+    let (survey, config, entries) = {
+        let root = doc.root();
+        let (survey, entries) = survey::read_survey(&root, Some(&resolve));
+        let ids: Vec<&str> = entries.iter().map(|e| e.spec.id.as_str()).collect();
+        let config = assess_config::read_assess_config(&root, &ids);
+        (survey, config, entries)
+    };
     let mut runs = Vec::new();
-    for run in &survey.runs {
-        let rpath = dir.join(&run.readings);
-        let rname = rpath.display().to_string();
-        let (rbytes, rtext) = match read_text_with(&rpath, &rname, source) {
-            Ok(x) => x,
-            Err(d) => {
-                diags.push(d);
-                continue;
-            }
-        };
-        let parsed = match &run.form {
-            ReadingsForm::Rows => readings::parse_rows(&rname, &rtext),
-            ReadingsForm::Matrix { header } => readings::parse_matrix(&rname, &rtext, header),
-        };
-        match parsed {
-            Ok(r) => runs.push((
-                SourceFile {
-                    name: run.readings.clone(),
-                    path: rpath,
-                    bytes: rbytes,
-                },
-                r,
-            )),
-            Err(Error::Input(d)) => diags.extend(d),
+    for entry in &entries {
+        match load_readings(dir, entry, source) {
+            Ok(r) => runs.push(r),
+            Err(Error::Input(d)) => doc.extend(d),
             Err(e) => return Err(e),
         }
     }
-    diags.finish(Loaded {
+    let (survey, config) = doc.finish(survey.zip(config))?;
+    Ok(Loaded {
         survey_file: SourceFile {
             name: path
                 .file_name()
@@ -152,5 +239,143 @@ pub fn load_with(path: &Path, source: FileSource) -> Result<Loaded, Error> {
         survey,
         runs,
         calibration: calibration_files.into_inner(),
+        config,
     })
+}
+
+/// Reads and parses one run's readings file (relative to `dir`).
+fn load_readings(
+    dir: &Path,
+    entry: &survey::runs::RunEntry,
+    source: FileSource,
+) -> Result<(SourceFile, RunReadings), Error> {
+    let run = &entry.spec;
+    let rpath = dir.join(&run.readings);
+    let rname = rpath.display().to_string();
+    let (rbytes, rtext) = read_referenced(
+        &rpath,
+        &run.readings,
+        &entry.readings_at,
+        FileKind::Readings,
+        source,
+    )?;
+    let parsed = match &run.form {
+        ReadingsForm::Rows => readings::parse_rows(&rname, &rtext),
+        ReadingsForm::Matrix { header } => readings::parse_matrix(&rname, &rtext, header),
+    }?;
+    Ok((
+        SourceFile {
+            name: run.readings.clone(),
+            path: rpath,
+            bytes: rbytes,
+        },
+        parsed,
+    ))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::checks::testkit::{run_block, EPA_SURVEY};
+
+    fn rows() -> String {
+        let mut t = "line,point,dp[inH2O],temperature[F]\n".to_string();
+        for l in ["A", "B"] {
+            for p in 1..=6 {
+                t += &format!("{l},{p},0.5,300\n");
+            }
+        }
+        t
+    }
+
+    fn load_files(files: &[(&str, &str)]) -> Result<Loaded, Error> {
+        let mut m = MemoryFiles::new();
+        for (p, t) in files {
+            m.insert(Path::new("site").join(p), t.as_bytes().to_vec());
+        }
+        load_with(Path::new("site/s.toml"), &|p| m.read(p))
+    }
+
+    fn problems(r: Result<Loaded, Error>) -> Vec<crate::diag::Diagnostic> {
+        match r {
+            Err(Error::Input(d)) => d.items().to_vec(),
+            Err(e) => panic!("{e}"),
+            Ok(_) => panic!("accepted"),
+        }
+    }
+
+    #[test]
+    fn a_missing_calibration_file_is_located_at_the_line_naming_it() {
+        let survey = EPA_SURVEY.replace(
+            "coefficient = 0.84\ncalibrated = \"2026-05-11\"",
+            "calibration = \"cal/ts-0417.toml\"",
+        ) + &run_block("1", Some("pass"), Some("pass"));
+        let d = problems(load_files(&[("s.toml", &survey), ("run1.csv", &rows())]));
+        assert_eq!(d.len(), 1, "{d:?}");
+        assert_eq!(
+            d[0].message,
+            "cannot read the calibration file `cal/ts-0417.toml` (resolved to `site/cal/ts-0417.toml`): no such file among these files"
+        );
+        let at = d[0].location.clone().unwrap();
+        let line = survey
+            .lines()
+            .position(|l| l.starts_with("calibration ="))
+            .unwrap()
+            + 1;
+        assert_eq!(
+            (at.file.as_str(), at.line, at.column),
+            ("site/s.toml", Some(line), Some(15))
+        );
+        assert!(d[0]
+            .hint
+            .as_deref()
+            .unwrap()
+            .contains("`annulus calibrate` format"));
+        // the calibration's own readings file is located in the calibration file
+        let cal = "[calibration]\nprobe = \"TS-0417\"\ndate = \"2026-05-11\"\ncalibrated_by = \"A. Name\"\nreadings = \"ts.csv\"\n";
+        let d = problems(load_files(&[
+            ("s.toml", &survey),
+            ("run1.csv", &rows()),
+            ("cal/ts-0417.toml", cal),
+        ]));
+        assert_eq!(d.len(), 1, "{d:?}");
+        assert!(d[0].message.starts_with("cannot read the calibration readings file `ts.csv` (resolved to `site/cal/ts.csv`)"), "{}", d[0].message);
+        let at = d[0].location.clone().unwrap();
+        assert_eq!(
+            (at.file.as_str(), at.line),
+            ("site/cal/ts-0417.toml", Some(5))
+        );
+        assert!(d[0]
+            .hint
+            .as_deref()
+            .unwrap()
+            .contains("relative to the calibration file"));
+    }
+
+    #[test]
+    fn readings_are_checked_even_when_the_survey_has_problems() {
+        let survey = EPA_SURVEY.replace("\"5.0 ft\"", "\"5.0 furlong\"")
+            + &run_block("1", Some("pass"), Some("pass"));
+        let bad = rows().replace("B,3,0.5", "B,3,0.5x");
+        let d = problems(load_files(&[("s.toml", &survey), ("run1.csv", &bad)]));
+        assert_eq!(d.len(), 2, "{d:?}");
+        assert!(d[0].message.contains("furlong"));
+        assert_eq!(d[1].location.as_ref().unwrap().file, "site/run1.csv");
+    }
+
+    #[test]
+    fn the_assessment_sections_are_read_with_the_survey() {
+        let survey = format!(
+            "{EPA_SURVEY}{}\n[reported]\naverage = {{ dscfm = \"36803 cfm\" }}\n",
+            run_block("1", Some("pass"), Some("pass"))
+        );
+        let l = load_files(&[("s.toml", &survey), ("run1.csv", &rows())]).unwrap();
+        assert_eq!(l.config.reported.len(), 1);
+        // a problem there and one in the survey come together
+        let survey = survey
+            .replace("36803 cfm", "36803 furlong")
+            .replace("\"8 %\"", "\"108 %\"");
+        let d = problems(load_files(&[("s.toml", &survey), ("run1.csv", &rows())]));
+        assert_eq!(d.len(), 2, "{d:?}");
+    }
 }

@@ -1,10 +1,9 @@
-//! Reads a flow-monitor RATA file (TOML) into validated paired runs, resolves runs whose
-//! reference-method value comes from a survey, and evaluates the RATA through
-//! [`crate::rata::evaluate_rata`].
+//! Reads a flow-monitor RATA file (TOML) into validated paired runs, and reads the surveys (with
+//! their readings) that runs take their reference-method value from.
 //!
-//! Owns the RATA file format and its located diagnostics. Must not print, render or decide exit
-//! codes (the `rata` command does); the statistics live in [`crate::rata`], survey results come
-//! from [`crate::pipeline`].
+//! Owns the RATA file format and its located diagnostics. Loading produces values only: the
+//! surveys are computed and the RATA evaluated by [`crate::pipeline::rata`]; the statistics live
+//! in [`crate::rata`]. Must not print, render or decide exit codes (the `rata` command does).
 //!
 //! # Format
 //!
@@ -43,67 +42,16 @@
 //! survey reference gives the survey's flow on `basis` (default `standard`: flow monitors under
 //! 40 CFR 75 report wet-basis flow at standard conditions, from memory).
 
-use super::text::{span_location, Spanned};
-use super::{read_text, SourceFile};
-use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-use crate::rata::{
-    evaluate_rata, RataError, RataQuantity, RataResult, RataRun, PART_75_FLOW_LIMITS,
-};
-use crate::units::{lookup_unit, parse_quantity, symbols_for, Dimension, Unit};
+use super::toml_doc::{Field, Table, TomlDoc};
+use super::{read_text_with, FileKind, FileSource, Loaded, SourceFile};
+use crate::diag::{Diagnostic, Error, Location};
+use crate::rata::{RataQuantity, PART_75_FLOW_LIMITS};
+use crate::units::{lookup_unit, symbols_for, Dimension, Unit};
 use chrono::NaiveDate;
-use serde::Deserialize;
 use std::path::Path;
-
-type S = Spanned<String>;
 
 const HINT_FORMAT: &str =
     "see the RATA format in sample-data/rata/README.md (unit2-rata.toml is a complete example)";
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFile {
-    rata: RawRata,
-    monitor: RawMonitor,
-    #[serde(default, rename = "run")]
-    runs: Vec<RawRun>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawRata {
-    title: String,
-    facility: Option<String>,
-    unit: Option<String>,
-    location: Option<String>,
-    date: Spanned<toml::Value>,
-    quantity: S,
-    display_unit: Option<S>,
-    basis: Option<S>,
-    level: Option<String>,
-    tested_by: Option<String>,
-    organisation: Option<String>,
-    reviewed_by: Option<String>,
-    notes: Option<Vec<String>>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawMonitor {
-    id: S,
-    serial: Option<String>,
-    description: Option<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawRun {
-    id: Spanned<toml::Value>,
-    reference: Option<S>,
-    survey: Option<S>,
-    monitor: S,
-    period: Option<String>,
-    rejected: Option<S>,
-}
 
 /// Which survey flow a flow RATA takes from a survey reference.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -192,32 +140,13 @@ pub struct RataSpec {
     pub runs: Vec<RunSpec>,
 }
 
-/// Where a resolved reference-method value came from.
-#[derive(Debug, Clone, PartialEq)]
-pub enum ReferenceSource {
-    /// Entered in the RATA file, as written.
-    Entered { raw: String },
-    /// The average of a survey's valid runs.
-    Survey {
-        /// As written in the RATA file.
-        path: String,
-        title: String,
-        /// Ids of the survey runs averaged.
-        runs: Vec<String>,
-    },
-}
-
-/// A RATA file with every survey reference resolved, and the evaluated RATA.
+/// A RATA file as read, with every survey its runs reference (and their readings).
 #[derive(Debug, Clone)]
-pub struct LoadedRata {
+pub struct RataInput {
     pub file: SourceFile,
     pub spec: RataSpec,
-    /// Per run (same order as `spec.runs`): where the reference value came from.
-    pub sources: Vec<ReferenceSource>,
-    /// Survey and readings files read for survey references, each with the id of the RATA run
-    /// that referenced it.
-    pub survey_files: Vec<(String, SourceFile)>,
-    pub result: RataResult,
+    /// Per run (same order as `spec.runs`): the survey it references, loaded.
+    pub surveys: Vec<Option<Loaded>>,
 }
 
 /// The SI dimension of a quantity's values.
@@ -226,53 +155,6 @@ pub fn dimension_of(quantity: RataQuantity) -> Dimension {
         RataQuantity::VelocityMS => Dimension::Velocity,
         RataQuantity::Flow => Dimension::Flow,
     }
-}
-
-struct Ctx<'a> {
-    file: &'a str,
-    text: &'a str,
-    diags: Diagnostics,
-}
-
-impl Ctx<'_> {
-    fn loc(&self, span: std::ops::Range<usize>, key: &str) -> Location {
-        span_location(self.file, self.text, span.start).with_context(format!("`{key}`"))
-    }
-
-    fn error(&mut self, span: std::ops::Range<usize>, key: &str, msg: String, hint: Option<&str>) {
-        let mut d = Diagnostic::new(msg).at(self.loc(span, key));
-        if let Some(h) = hint {
-            d = d.hint(h);
-        }
-        self.diags.push(d);
-    }
-
-    fn quantity(&mut self, v: &S, key: &str, dim: Option<Dimension>) -> Option<f64> {
-        let dim = dim?;
-        match parse_quantity(v.get_ref(), dim) {
-            Ok(x) => Some(x),
-            Err(e) => {
-                let hint = e.hint();
-                self.error(v.span(), key, format!("`{key}`: {e}"), Some(&hint));
-                None
-            }
-        }
-    }
-}
-
-fn toml_error(file: &str, text: &str, e: toml::de::Error) -> Error {
-    let loc = match e.span() {
-        Some(span) => span_location(file, text, span.start),
-        None => Location::file(file),
-    };
-    Error::input(
-        Diagnostic::new(format!(
-            "the RATA file is not valid: {}",
-            e.message().trim()
-        ))
-        .at(loc)
-        .hint(HINT_FORMAT),
-    )
 }
 
 /// The unit part of a quantity string (`"52.4 ft/s"` → `ft/s`), when it is a known unit.
@@ -287,174 +169,197 @@ fn unit_of(raw: &str) -> Option<&'static Unit> {
 
 /// Parses a RATA TOML. `file` names it in diagnostics. Survey references are not read here.
 pub fn parse_rata(file: &str, text: &str) -> Result<RataSpec, Error> {
-    let raw: RawFile = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
-    let mut cx = Ctx {
-        file,
-        text,
-        diags: Diagnostics::new(),
+    let doc = TomlDoc::parse(file, text, "RATA file")?.with_guide(HINT_FORMAT);
+    let spec = {
+        let root = doc.root();
+        read_rata(&root)
     };
-    let r = &raw.rata;
-    let (date_text, parsed) = super::text::toml_date(r.date.get_ref());
-    let date = match parsed {
-        Some(d) => Some(d),
-        None => {
-            cx.error(
-                r.date.span(),
-                "rata.date",
-                format!("`rata.date` is not a date: `{date_text}`"),
-                Some("write the date as YYYY-MM-DD, e.g. \"2026-09-22\""),
-            );
-            None
-        }
-    };
-    let quantity = match r.quantity.get_ref().trim() {
-        "velocity" => Some(RataQuantity::VelocityMS),
-        "flow" => Some(RataQuantity::Flow),
-        other => {
-            cx.error(
-                r.quantity.span(),
-                "rata.quantity",
-                format!("`rata.quantity` must be one of velocity | flow, found `{other}`"),
-                None,
-            );
-            None
-        }
-    };
+    doc.finish(spec)
+}
+
+fn read_rata(root: &Table) -> Option<RataSpec> {
+    let r = root.table("rata");
+    let m = root.table("monitor");
+    let quantity = r.as_ref().and_then(|r| {
+        r.choice(
+            "quantity",
+            &[
+                ("velocity", RataQuantity::VelocityMS),
+                ("flow", RataQuantity::Flow),
+            ],
+        )
+    });
     let dim = quantity.map(dimension_of);
-    let basis = match (&r.basis, quantity) {
-        (None, _) => Some(FlowBasis::Standard),
-        (Some(v), Some(RataQuantity::VelocityMS)) => {
-            cx.error(
-                v.span(),
-                "rata.basis",
-                "`rata.basis` applies to a flow RATA only; this one compares velocities".into(),
-                Some("remove `basis`, or set quantity = \"flow\""),
+    let meta = r
+        .as_ref()
+        .zip(m.as_ref())
+        .and_then(|(r, m)| read_meta(r, m));
+    let basis = r.as_ref().and_then(|r| read_basis(r, quantity));
+    let tables = root.tables("run");
+    let runs = read_runs(root, &tables, dim);
+    let display_unit = r.as_ref().and_then(|r| read_display_unit(r, dim, &tables));
+    let runs = runs.and_then(|runs| check_run_counts(root, runs));
+    Some(RataSpec {
+        meta: meta?,
+        quantity: quantity?,
+        display_unit: display_unit?,
+        basis: basis?,
+        runs: runs?,
+    })
+}
+
+fn read_meta(r: &Table, m: &Table) -> Option<RataMeta> {
+    let title = r
+        .required("title", "\"Unit 2 stack flow monitor, annual RATA\"")
+        .and_then(|f| f.str().map(str::to_string));
+    let date = r.date("date", "2026-09-22");
+    let monitor_id = m.required("id", "\"FM-2\"").and_then(|f| {
+        let id = f.str()?.trim().to_string();
+        if id.is_empty() {
+            f.error(
+                "`monitor.id` is empty".into(),
+                Some("write the monitor's identifier, e.g. id = \"FM-2\"".into()),
             );
-            None
+            return None;
         }
-        (Some(v), _) => {
-            let found = v.get_ref().trim();
-            match FlowBasis::ALL.iter().find(|b| b.name() == found) {
-                Some(b) => Some(*b),
-                None => {
-                    cx.error(
-                        v.span(),
-                        "rata.basis",
+        Some(id)
+    });
+    Some(RataMeta {
+        title: title?,
+        facility: r.opt_text("facility"),
+        unit: r.opt_text("unit"),
+        location: r.opt_text("location"),
+        date: date?,
+        level: r.opt_text("level"),
+        tested_by: r.opt_text("tested_by"),
+        organisation: r.opt_text("organisation"),
+        reviewed_by: r.opt_text("reviewed_by"),
+        notes: r.opt_strings("notes").unwrap_or_default(),
+        monitor_id: monitor_id?,
+        monitor_serial: m.opt_text("serial"),
+        monitor_description: m.opt_text("description"),
+    })
+}
+
+fn read_basis(r: &Table, quantity: Option<RataQuantity>) -> Option<FlowBasis> {
+    let Some(f) = r.get("basis") else {
+        return Some(FlowBasis::Standard);
+    };
+    if quantity == Some(RataQuantity::VelocityMS) {
+        f.error(
+            "`rata.basis` applies to a flow RATA only; this one compares velocities".into(),
+            Some("remove `basis`, or set quantity = \"flow\"".into()),
+        );
+        return None;
+    }
+    f.choice(&FlowBasis::ALL.map(|b| (b.name(), b)))
+}
+
+fn read_display_unit(r: &Table, dim: Option<Dimension>, runs: &[Table]) -> Option<&'static Unit> {
+    let dim = dim?;
+    match r.get("display_unit") {
+        Some(f) => {
+            let text = f.str()?;
+            match lookup_unit(text) {
+                Some(u) if u.dimension == dim => Some(u),
+                _ => {
+                    f.error(
                         format!(
-                            "`rata.basis` must be one of actual | standard | dry-standard, found `{found}`"
+                            "`rata.display_unit` must be a unit of {}, found `{text}`",
+                            dim.name()
                         ),
-                        None,
+                        Some(format!("use one of: {}", symbols_for(dim).join(", "))),
                     );
                     None
                 }
             }
         }
-    };
-    let m = &raw.monitor;
-    if m.id.get_ref().trim().is_empty() {
-        cx.error(
-            m.id.span(),
-            "monitor.id",
-            "`monitor.id` is empty".into(),
-            Some("write the monitor's identifier, e.g. id = \"FM-2\""),
-        );
+        None => runs
+            .first()
+            .and_then(|run| run.get("monitor"))
+            .and_then(|f| match f.value {
+                toml::de::DeValue::String(s) => unit_of(s),
+                _ => None,
+            })
+            .filter(|u| u.dimension == dim)
+            .or_else(|| lookup_unit(dim.si_symbol())),
     }
+}
 
-    if raw.runs.is_empty() {
-        cx.diags.push(
+/// Every `[[run]]`; `None` when one has a problem (recorded).
+fn read_runs(root: &Table, tables: &[Table], dim: Option<Dimension>) -> Option<Vec<RunSpec>> {
+    if tables.is_empty() {
+        root.doc().push(
             Diagnostic::new("the RATA file has no [[run]]")
-                .at(Location::file(file))
+                .at(Location::file(root.doc().file()))
                 .hint("add one [[run]] per paired reference-method run: id, reference or survey, monitor"),
         );
     }
-    let mut runs: Vec<RunSpec> = Vec::new();
+    let mut runs = Vec::new();
     // Ids seen so far, also of runs with other problems (so a duplicate is still found).
     let mut seen: Vec<String> = Vec::new();
-    for run in &raw.runs {
-        let id = match run.id.get_ref() {
-            toml::Value::String(s) => s.trim().to_string(),
-            toml::Value::Integer(i) => i.to_string(),
-            other => other.to_string(),
-        };
-        let at = cx.loc(run.id.span(), "run.id");
-        if id.is_empty() {
-            cx.error(
-                run.id.span(),
-                "run.id",
-                "every RATA run needs an id, found an empty one".into(),
-                None,
-            );
-        } else if seen.contains(&id) {
-            cx.error(
-                run.id.span(),
-                "run.id",
-                format!("each RATA run id must be unique, found `{id}` twice"),
-                None,
-            );
+    let mut ok = true;
+    for t in tables {
+        match read_run(t, dim, &mut seen) {
+            Some(run) => runs.push(run),
+            None => ok = false,
         }
-        seen.push(id.clone());
-        let reference = match (&run.reference, &run.survey) {
-            (Some(v), None) => {
-                cx.quantity(v, "run.reference", dim)
-                    .map(|si| ReferenceSpec::Value {
-                        si,
-                        raw: v.get_ref().trim().to_string(),
-                    })
-            }
-            (None, Some(p)) if !p.get_ref().trim().is_empty() => Some(ReferenceSpec::Survey {
-                path: p.get_ref().trim().to_string(),
-                at: cx.loc(p.span(), "run.survey"),
-            }),
-            (None, Some(p)) => {
-                cx.error(p.span(), "run.survey", "`run.survey` is empty".into(), None);
-                None
-            }
-            (Some(v), Some(_)) => {
-                cx.error(
-                    v.span(),
-                    "run.reference",
-                    format!("run `{id}` gives both `reference` and `survey`"),
-                    Some(
-                        "keep one: the reference-method value, or the survey it was computed from",
-                    ),
-                );
-                None
-            }
-            (None, None) => {
-                cx.error(
-                    run.id.span(),
-                    "run.id",
-                    format!("run `{id}` has no reference-method value"),
-                    Some("add reference = \"52.4 ft/s\" or survey = \"run-1/survey.toml\""),
-                );
-                None
-            }
-        };
-        let monitor = cx.quantity(&run.monitor, "run.monitor", dim);
-        let rejected = match &run.rejected {
-            Some(v) if v.get_ref().trim().is_empty() => {
-                cx.error(
-                    v.span(),
-                    "run.rejected",
+    }
+    ok.then_some(runs)
+}
+
+fn read_run(t: &Table, dim: Option<Dimension>, seen: &mut Vec<String>) -> Option<RunSpec> {
+    let id_field = t.required("id", "\"1\"")?;
+    let id = id_field.text().trim().to_string();
+    let at = id_field.doc.location(id_field.span.clone(), "run.id");
+    if id.is_empty() {
+        id_field.error(
+            "every RATA run needs an id, found an empty one".into(),
+            None,
+        );
+    } else if seen.contains(&id) {
+        id_field.error(
+            format!("each RATA run id must be unique, found `{id}` twice"),
+            None,
+        );
+    }
+    seen.push(id.clone());
+    let (reference_field, survey_field) = (t.get("reference"), t.get("survey"));
+    let reference = read_reference(
+        &id,
+        &id_field,
+        reference_field.as_ref(),
+        survey_field.as_ref(),
+        dim,
+    );
+    let monitor_field = t.required("monitor", "\"51.95 ft/s\"");
+    let monitor = monitor_field.as_ref().and_then(|f| f.quantity(dim?));
+    let rejected = match t.get("rejected") {
+        Some(f) => match f.str().map(str::trim) {
+            Some("") => {
+                f.error(
                     format!("run `{id}` is rejected, so it needs a reason, found none"),
-                    Some("write why, e.g. rejected = \"monitor in daily calibration during the run\""),
+                    Some("write why, e.g. rejected = \"monitor in daily calibration during the run\"".into()),
                 );
                 None
             }
-            Some(v) => Some(Some(v.get_ref().trim().to_string())),
-            None => Some(None),
-        };
-        // A used run needs positive values; a rejected one may hold zero (monitor off line).
-        let used = matches!(rejected, Some(None));
-        let mut positive = |v: Option<f64>, raw: &S, key: &str| {
-            let x = v?;
-            let ok = if used { x > 0.0 } else { x >= 0.0 };
-            if ok {
-                return Some(x);
-            }
-            cx.error(
-                raw.span(),
-                key,
+            Some(reason) => Some(Some((
+                reason.to_string(),
+                f.doc.location(f.span.clone(), "run.rejected"),
+            ))),
+            None => None,
+        },
+        None => Some(None),
+    };
+    // A used run needs positive values; a rejected one may hold zero (monitor off line).
+    let used = matches!(rejected, Some(None));
+    let positive = |v: Option<f64>, f: Option<&Field>, key: &str| -> Option<f64> {
+        let x = v?;
+        if (used && x > 0.0) || (!used && x >= 0.0) {
+            return Some(x);
+        }
+        if let Some(f) = f {
+            f.error(
                 format!(
                     "`{key}` of run `{id}` must be {}, found `{}`",
                     if used {
@@ -462,176 +367,154 @@ pub fn parse_rata(file: &str, text: &str) -> Result<RataSpec, Error> {
                     } else {
                         "zero or greater"
                     },
-                    raw.get_ref().trim()
+                    f.text().trim()
                 ),
                 None,
             );
-            None
-        };
-        let monitor = positive(monitor, &run.monitor, "run.monitor");
-        let reference = match (reference, &run.reference) {
-            (Some(ReferenceSpec::Value { si, raw }), Some(text)) => {
-                positive(Some(si), text, "run.reference").map(|si| ReferenceSpec::Value { si, raw })
-            }
-            (other, _) => other,
-        };
-        if let (Some(reference), Some(monitor_si), Some(rejected)) = (reference, monitor, rejected)
-        {
-            runs.push(RunSpec {
-                id,
-                reference,
-                monitor_si,
-                monitor_raw: run.monitor.get_ref().trim().to_string(),
-                period: run.period.clone(),
-                rejected,
-                at,
-                rejected_at: run
-                    .rejected
-                    .as_ref()
-                    .map(|v| cx.loc(v.span(), "run.rejected")),
-            });
         }
-    }
-
-    // The run-count rules (≤ 3 rejected, ≥ 9 used), located where they can be.
-    let limits = PART_75_FLOW_LIMITS;
-    if cx.diags.is_empty() {
-        let rejected: Vec<&RunSpec> = runs.iter().filter(|r| r.rejected.is_some()).collect();
-        if rejected.len() > limits.max_rejected_runs {
-            let extra = rejected[limits.max_rejected_runs];
-            let mut d = Diagnostic::new(format!(
-                "at most {} runs may be rejected, found {}",
-                limits.max_rejected_runs,
-                rejected.len()
-            ))
-            .hint("a RATA may reject up to three runs (40 CFR 75 App. A §7, from memory); repeat runs instead");
-            if let Some(at) = &extra.rejected_at {
-                d = d.at(at.clone());
-            }
-            cx.diags.push(d);
-        }
-        let used = runs.len() - rejected.len();
-        if used < limits.min_used_runs {
-            cx.diags.push(
-                Diagnostic::new(format!(
-                    "at least {} runs must remain after rejections, found {used}",
-                    limits.min_used_runs
-                ))
-                .at(Location::file(file))
-                .hint("a flow RATA needs nine or more paired runs that are not rejected (40 CFR 75 App. A §7, from memory)"),
-            );
-        }
-    }
-
-    let display_unit = match (&r.display_unit, dim) {
-        (Some(v), Some(dim)) => match lookup_unit(v.get_ref()) {
-            Some(u) if u.dimension == dim => Some(u),
-            _ => {
-                cx.error(
-                    v.span(),
-                    "rata.display_unit",
-                    format!(
-                        "`rata.display_unit` must be a unit of {}, found `{}`",
-                        dim.name(),
-                        v.get_ref()
-                    ),
-                    Some(&format!("use one of: {}", symbols_for(dim).join(", "))),
-                );
-                None
-            }
-        },
-        (None, Some(dim)) => raw
-            .runs
-            .first()
-            .and_then(|run| unit_of(run.monitor.get_ref()))
-            .filter(|u| u.dimension == dim)
-            .or_else(|| lookup_unit(dim.si_symbol())),
-        (_, None) => None,
+        None
     };
+    let monitor_si = positive(monitor, monitor_field.as_ref(), "run.monitor");
+    let reference = match reference {
+        Some(ReferenceSpec::Value { si, raw }) => {
+            positive(Some(si), reference_field.as_ref(), "run.reference")
+                .map(|si| ReferenceSpec::Value { si, raw })
+        }
+        other => other,
+    };
+    let (rejected, rejected_at) = match rejected? {
+        Some((reason, at)) => (Some(reason), Some(at)),
+        None => (None, None),
+    };
+    Some(RunSpec {
+        id,
+        reference: reference?,
+        monitor_si: monitor_si?,
+        monitor_raw: monitor_field?.text().trim().to_string(),
+        period: t.opt_text("period"),
+        rejected,
+        at,
+        rejected_at,
+    })
+}
 
-    match (date, quantity, basis, display_unit) {
-        (Some(date), Some(quantity), Some(basis), Some(display_unit)) if cx.diags.is_empty() => {
-            Ok(RataSpec {
-                meta: RataMeta {
-                    title: r.title.clone(),
-                    facility: r.facility.clone(),
-                    unit: r.unit.clone(),
-                    location: r.location.clone(),
-                    date,
-                    level: r.level.clone(),
-                    tested_by: r.tested_by.clone(),
-                    organisation: r.organisation.clone(),
-                    reviewed_by: r.reviewed_by.clone(),
-                    notes: r.notes.clone().unwrap_or_default(),
-                    monitor_id: m.id.get_ref().trim().to_string(),
-                    monitor_serial: m.serial.clone(),
-                    monitor_description: m.description.clone(),
-                },
-                quantity,
-                display_unit,
-                basis,
-                runs,
+fn read_reference(
+    id: &str,
+    id_field: &Field,
+    reference: Option<&Field>,
+    survey: Option<&Field>,
+    dim: Option<Dimension>,
+) -> Option<ReferenceSpec> {
+    match (reference, survey) {
+        (Some(v), None) => {
+            let si = v.quantity(dim?)?;
+            Some(ReferenceSpec::Value {
+                si,
+                raw: v.text().trim().to_string(),
             })
         }
-        _ => {
-            if cx.diags.is_empty() {
-                cx.diags.push(
-                    Diagnostic::new("the RATA file could not be read").at(Location::file(file)),
-                );
+        (None, Some(p)) => {
+            let path = p.str()?.trim().to_string();
+            if path.is_empty() {
+                p.error("`run.survey` is empty".into(), None);
+                return None;
             }
-            Err(Error::Input(cx.diags))
+            Some(ReferenceSpec::Survey {
+                path,
+                at: p.doc.location(p.span.clone(), "run.survey"),
+            })
+        }
+        (Some(v), Some(_)) => {
+            v.error(
+                format!("run `{id}` gives both `reference` and `survey`"),
+                Some(
+                    "keep one: the reference-method value, or the survey it was computed from"
+                        .into(),
+                ),
+            );
+            None
+        }
+        (None, None) => {
+            id_field.error(
+                format!("run `{id}` has no reference-method value"),
+                Some("add reference = \"52.4 ft/s\" or survey = \"run-1/survey.toml\"".into()),
+            );
+            None
         }
     }
 }
 
-/// Reads a RATA file, resolves its survey references (relative to the file) and evaluates the
-/// RATA; every input problem, also those inside referenced surveys, is reported in one pass.
-pub fn load(path: &Path) -> Result<LoadedRata, Error> {
+/// The run-count rules (≤ 3 rejected, ≥ 9 used), located where they can be; checked only when
+/// every run could be read.
+fn check_run_counts(root: &Table, runs: Vec<RunSpec>) -> Option<Vec<RunSpec>> {
+    let doc = root.doc();
+    if doc.has_errors() {
+        return Some(runs);
+    }
+    let limits = PART_75_FLOW_LIMITS;
+    let rejected: Vec<&RunSpec> = runs.iter().filter(|r| r.rejected.is_some()).collect();
+    let mut ok = true;
+    if rejected.len() > limits.max_rejected_runs {
+        let extra = rejected[limits.max_rejected_runs];
+        let mut d = Diagnostic::new(format!(
+            "at most {} runs may be rejected, found {}",
+            limits.max_rejected_runs,
+            rejected.len()
+        ))
+        .hint("a RATA may reject up to three runs (40 CFR 75 App. A §7, from memory); repeat runs instead");
+        if let Some(at) = &extra.rejected_at {
+            d = d.at(at.clone());
+        }
+        doc.push(d);
+        ok = false;
+    }
+    let used = runs.len() - rejected.len();
+    if used < limits.min_used_runs {
+        doc.push(
+            Diagnostic::new(format!(
+                "at least {} runs must remain after rejections, found {used}",
+                limits.min_used_runs
+            ))
+            .at(Location::file(doc.file()))
+            .hint("a flow RATA needs nine or more paired runs that are not rejected (40 CFR 75 App. A §7, from memory)"),
+        );
+        ok = false;
+    }
+    ok.then_some(runs)
+}
+
+/// Reads a RATA file and every survey its runs reference (relative to the file), with their
+/// readings; every input problem, also those inside referenced surveys, is reported in one
+/// pass. Nothing is computed: [`crate::pipeline::rata::evaluate`] does that.
+pub fn load(path: &Path) -> Result<RataInput, Error> {
+    load_with(path, &|p| std::fs::read(p))
+}
+
+/// [`load`] with the bytes of each file supplied by `source`.
+pub fn load_with(path: &Path, source: FileSource) -> Result<RataInput, Error> {
     let name = path.display().to_string();
-    let (bytes, text) = read_text(path, &name)?;
+    let (bytes, text) = read_text_with(path, &name, source)?;
     let spec = parse_rata(&name, &text)?;
     let dir = path.parent().unwrap_or(Path::new("."));
-    let mut diags = Diagnostics::new();
-    let mut sources = Vec::new();
-    let mut survey_files = Vec::new();
-    let mut runs = Vec::new();
+    let mut diags = crate::diag::Diagnostics::new();
+    let mut surveys = Vec::new();
     for run in &spec.runs {
-        let (reference, source) = match &run.reference {
-            ReferenceSpec::Value { si, raw } => {
-                (*si, ReferenceSource::Entered { raw: raw.clone() })
-            }
+        let loaded = match &run.reference {
+            ReferenceSpec::Value { .. } => None,
             ReferenceSpec::Survey { path: rel, at } => {
-                match survey_reference(&dir.join(rel), rel, at, spec.quantity, spec.basis) {
-                    Ok((value, source, files)) => {
-                        survey_files.extend(files.into_iter().map(|f| (run.id.clone(), f)));
-                        (value, source)
-                    }
+                match super::load_referenced(&dir.join(rel), rel, at, FileKind::Survey, source) {
+                    Ok(l) => Some(l),
                     Err(Error::Input(d)) => {
                         diags.extend(d);
-                        continue;
+                        None
                     }
                     Err(e) => return Err(e),
                 }
             }
         };
-        let built = match &run.rejected {
-            None => RataRun::used(&run.id, reference, run.monitor_si),
-            Some(reason) => RataRun::rejected(&run.id, reference, run.monitor_si, reason),
-        };
-        match built {
-            Ok(r) => {
-                runs.push(r);
-                sources.push(source);
-            }
-            Err(e) => diags.push(core_diagnostic(e, &name, &spec)),
-        }
+        surveys.push(loaded);
     }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
-    }
-    let result = evaluate_rata(runs, spec.quantity, PART_75_FLOW_LIMITS)
-        .map_err(|e| Error::input(core_diagnostic(e, &name, &spec)))?;
-    Ok(LoadedRata {
+    diags.finish(RataInput {
         file: SourceFile {
             name: path
                 .file_name()
@@ -641,76 +524,14 @@ pub fn load(path: &Path) -> Result<LoadedRata, Error> {
             bytes,
         },
         spec,
-        sources,
-        survey_files,
-        result,
+        surveys,
     })
-}
-
-/// Computes a referenced survey and takes its average.
-fn survey_reference(
-    path: &Path,
-    rel: &str,
-    at: &Location,
-    quantity: RataQuantity,
-    basis: FlowBasis,
-) -> Result<(f64, ReferenceSource, Vec<SourceFile>), Error> {
-    if !path.is_file() {
-        return Err(Error::input(
-            Diagnostic::new(format!("the survey `{rel}` cannot be read: no such file"))
-                .at(at.clone())
-                .hint("survey paths in a RATA file are relative to the RATA file"),
-        ));
-    }
-    let evaluation = crate::pipeline::evaluate(crate::input::load(path)?)?;
-    let Some(avg) = &evaluation.average else {
-        return Err(Error::input(
-            Diagnostic::new(format!(
-                "the survey `{rel}` has no valid run to average (see its leak checks)"
-            ))
-            .at(at.clone())
-            .hint("a run counts when its post-run leak check passed; check the survey with `annulus check`"),
-        ));
-    };
-    let value = match (quantity, basis) {
-        (RataQuantity::VelocityMS, _) => avg.mean_velocity_m_s,
-        (RataQuantity::Flow, FlowBasis::Actual) => avg.actual_flow_m3_s,
-        (RataQuantity::Flow, FlowBasis::Standard) => avg.standard_flow_m3_s,
-        (RataQuantity::Flow, FlowBasis::DryStandard) => avg.dry_standard_flow_m3_s,
-    };
-    let loaded = &evaluation.loaded;
-    let mut files = vec![loaded.survey_file.clone()];
-    files.extend(loaded.runs.iter().map(|(f, _)| f.clone()));
-    Ok((
-        value,
-        ReferenceSource::Survey {
-            path: rel.to_string(),
-            title: loaded.survey.title.clone(),
-            runs: avg.runs.clone(),
-        },
-        files,
-    ))
-}
-
-/// A core error the parser did not already catch (it checks the same rules with locations; a
-/// survey-derived value can still be out of range).
-fn core_diagnostic(e: RataError, file: &str, spec: &RataSpec) -> Diagnostic {
-    let at = match &e {
-        RataError::BadValue { run_id, .. }
-        | RataError::DuplicateRunId { run_id }
-        | RataError::MissingRejectionReason { run_id } => spec
-            .runs
-            .iter()
-            .find(|r| &r.id == run_id)
-            .map(|r| r.at.clone()),
-        _ => None,
-    };
-    Diagnostic::new(e.to_string()).at(at.unwrap_or_else(|| Location::file(file)))
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::diag::Diagnostics;
 
     fn runs_text(n: usize) -> String {
         (1..=n)

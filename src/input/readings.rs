@@ -5,10 +5,11 @@
 //! a hint; all problems of a file are collected before stopping. No reading is ever dropped: a row
 //! that does not belong to the layout, a duplicate or a missing point is an error.
 
+use super::header::{Header, HeaderError};
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::layout::Layout;
 use crate::readings::{Dp, Reading, RunReadings};
-use crate::units::{convert_in, lookup_unit, parse_number, symbols_for, Dimension, Unit};
+use crate::units::{convert_in, parse_number, Dimension, Unit};
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 enum Col {
@@ -24,71 +25,26 @@ enum Col {
 
 const HINT_CELL: &str = "use `.` as the decimal separator; put units in the header, not the cell";
 
-/// Parses `name[unit]`.
-fn parse_header(h: &str) -> Result<Col, (String, String)> {
-    let h = h.trim();
-    let (name, unit) = match h.split_once('[') {
-        Some((n, rest)) => match rest.strip_suffix(']') {
-            Some(u) => (n.trim(), Some(u.trim())),
-            None => {
-                return Err((
-                    format!("header `{h}` has no closing `]`"),
-                    "write units as name[unit], e.g. dp[inH2O]".into(),
-                ))
-            }
-        },
-        None => (h, None),
-    };
-    let unit_of = |dims: &[Dimension], example: &str| -> Result<&'static Unit, (String, String)> {
-        let Some(u) = unit else {
-            return Err((
-                format!("column `{name}` needs a unit in its header"),
-                format!("write e.g. `{example}`"),
-            ));
-        };
-        match lookup_unit(u) {
-            Some(unit) if dims.contains(&unit.dimension) => Ok(unit),
-            _ => Err((
-                format!("unit `{u}` cannot be used for column `{name}`"),
-                format!(
-                    "`{name}` takes one of: {}",
-                    dims.iter()
-                        .flat_map(|d| symbols_for(*d))
-                        .collect::<Vec<_>>()
-                        .join(", ")
-                ),
-            )),
-        }
-    };
-    let no_unit = |col: Col| -> Result<Col, (String, String)> {
-        match unit {
-            None => Ok(col),
-            Some("deg") if matches!(col, Col::Yaw | Col::Pitch) => Ok(col),
-            Some(u) => Err((
-                format!("column `{name}` takes no unit `{u}`"),
-                if matches!(col, Col::Yaw | Col::Pitch) {
-                    format!("write `{name}[deg]`")
-                } else {
-                    format!("write `{name}`")
-                },
-            )),
-        }
-    };
-    match name {
-        "line" => no_unit(Col::Line),
-        "point" => no_unit(Col::Point),
-        "dp" => Ok(Col::Dp(unit_of(
+/// The column a `name[unit]` header names.
+fn parse_header(h: &str) -> Result<Col, HeaderError> {
+    let header = Header::parse(h)?;
+    let angle = |col: Col| header.no_unit(Some("deg")).map(|()| col);
+    match header.name {
+        "line" => header.no_unit(None).map(|()| Col::Line),
+        "point" => header.no_unit(None).map(|()| Col::Point),
+        "dp" => Ok(Col::Dp(header.unit_of(
             &[Dimension::Pressure, Dimension::Length],
             "dp[inH2O]",
         )?)),
-        "temperature" => Ok(Col::Temperature(unit_of(
-            &[Dimension::Temperature],
-            "temperature[F]",
-        )?)),
-        "yaw" => no_unit(Col::Yaw),
-        "pitch" => no_unit(Col::Pitch),
-        "static" => Ok(Col::Static(unit_of(&[Dimension::Pressure], "static[inH2O]")?)),
-        "time" => no_unit(Col::Time),
+        "temperature" => Ok(Col::Temperature(
+            header.unit_of(&[Dimension::Temperature], "temperature[F]")?,
+        )),
+        "yaw" => angle(Col::Yaw),
+        "pitch" => angle(Col::Pitch),
+        "static" => Ok(Col::Static(
+            header.unit_of(&[Dimension::Pressure], "static[inH2O]")?,
+        )),
+        "time" => header.no_unit(None).map(|()| Col::Time),
         other => Err((
             format!("unknown column `{other}`"),
             "columns are line, point, dp[…], and optionally temperature[…], yaw[deg], pitch[deg], static[…], time".into(),
@@ -182,38 +138,39 @@ fn csv_rows(text: &str) -> Vec<(usize, Result<csv::StringRecord, String>)> {
         .collect()
 }
 
-/// Parses a readings file in row form.
-pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
-    if text.trim().is_empty() {
-        return Err(Error::input(
-            Diagnostic::new("the readings file is empty")
-                .at(Location::file(file))
-                .hint("fill in one row per traverse point under a header such as `line,point,dp[inH2O]` (annulus init writes a blank sheet)"),
-        ));
+/// The header record: its line in the file and its cells.
+fn header_record(
+    file: &str,
+    first: Option<(usize, Result<csv::StringRecord, String>)>,
+) -> Result<(usize, csv::StringRecord), Error> {
+    match first {
+        Some((line, Ok(h))) => Ok((line, h)),
+        Some((_, Err(e))) => Err(Error::input(
+            Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
+                .at(Location::file(file)),
+        )),
+        None => Ok((1, csv::StringRecord::new())),
     }
+}
+
+/// The columns a row-form header names, or every problem with it (unknown names, bad units,
+/// repeated or missing columns).
+fn columns(
+    file: &str,
+    line: usize,
+    headers: &csv::StringRecord,
+) -> Result<Vec<(usize, Col)>, Error> {
+    let same = |a: &Col, b: &Col| std::mem::discriminant(a) == std::mem::discriminant(b);
     let mut diags = Diagnostics::new();
-    let mut rows = csv_rows(text).into_iter();
-    let headers = match rows.next() {
-        Some((_, Ok(h))) => h,
-        Some((_, Err(e))) => {
-            return Err(Error::input(
-                Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
-                    .at(Location::file(file)),
-            ))
-        }
-        None => csv::StringRecord::new(),
-    };
-    let mut cols = Vec::new();
+    let mut cols: Vec<(usize, Col)> = Vec::new();
     for (i, h) in headers.iter().enumerate() {
         match parse_header(h) {
             Ok(c) => {
-                if cols.iter().any(|(_, x): &(usize, Col)| {
-                    std::mem::discriminant(x) == std::mem::discriminant(&c)
-                }) {
+                if cols.iter().any(|(_, x)| same(x, &c)) {
                     diags.push(
                         Diagnostic::new(format!("column `{h}` appears twice")).at(Location::at(
                             file,
-                            1,
+                            line,
                             i + 1,
                         )),
                     );
@@ -222,7 +179,7 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
             }
             Err((m, hint)) => diags.push(
                 Diagnostic::new(m)
-                    .at(Location::at(file, 1, i + 1).with_context(format!("header `{h}`")))
+                    .at(Location::at(file, line, i + 1).with_context(format!("header `{h}`")))
                     .hint(hint),
             ),
         }
@@ -232,21 +189,37 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
         (Col::Point, "point"),
         (Col::Dp(&crate::units::UNITS[0]), "dp[…]"),
     ] {
-        if !cols
-            .iter()
-            .any(|(_, c)| std::mem::discriminant(c) == std::mem::discriminant(&req))
-        {
+        if !cols.iter().any(|(_, c)| same(c, &req)) {
             diags.push(
                 Diagnostic::new(format!("the readings file has no `{name}` column"))
-                    .at(Location::at(file, 1, 1))
+                    .at(Location::at(file, line, 1))
                     .hint("the header must name line, point and dp[unit], e.g. `line,point,dp[inH2O]`"),
             );
         }
     }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
+    diags.finish(cols)
+}
+
+/// Parses a readings file in row form.
+pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
+    if text.trim().is_empty() {
+        return Err(Error::input(
+            Diagnostic::new("the readings file is empty")
+                .at(Location::file(file))
+                .hint("fill in one row per traverse point under a header such as `line,point,dp[inH2O]` (annulus init writes a blank sheet)"),
+        ));
     }
+    let mut rows = csv_rows(text).into_iter();
+    let (header_line, headers) = header_record(file, rows.next())?;
+    let cols = columns(file, header_line, &headers)?;
+    let dp_col = cols
+        .iter()
+        .find_map(|(i, c)| matches!(c, Col::Dp(_)).then_some(*i));
+    let mut diags = Diagnostics::new();
     let mut readings = Vec::new();
+    // rows with a line and point but no Δp: a sheet not filled in yet is one problem, not one
+    // per point
+    let (mut rows_seen, mut dp_blank) = (0usize, 0usize);
     for (line_no, rec) in rows {
         let rec = match rec {
             Ok(r) => r,
@@ -258,133 +231,24 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
                 continue;
             }
         };
-        if rec.iter().all(|c| c.is_empty()) {
-            continue;
+        if rec.iter().any(|c| !c.is_empty()) {
+            rows_seen += 1;
+            dp_blank += usize::from(dp_col.and_then(|i| rec.get(i)).is_some_and(str::is_empty));
         }
-        if rec.len() != headers.len() {
-            diags.push(
-                Diagnostic::new(format!(
-                    "row has {} fields, the header has {}",
-                    rec.len(),
-                    headers.len()
-                ))
-                .at(Location::at(file, line_no, 1).with_context(format!(
-                    "`{}`",
-                    rec.iter().collect::<Vec<_>>().join(",")
-                )))
-                .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
-            );
-            continue;
+        match row_reading(file, line_no, &rec, &headers, &cols) {
+            Ok(Some(r)) => readings.push(r),
+            Ok(None) => {}
+            Err(d) => diags.extend(d),
         }
-        let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
-        let line_label = get(Col::Line)
-            .map(|i| rec[i].to_string())
-            .unwrap_or_default();
-        let point_raw = get(Col::Point)
-            .map(|i| rec[i].to_string())
-            .unwrap_or_default();
-        let who = format!("line {line_label}, point {point_raw}, ");
-        let mut r = Reading {
-            line: line_label.clone(),
-            point: 0,
-            dp: Dp::Pressure { pa: f64::NAN },
-            dp_decimals: 0,
-            temperature_k: None,
-            yaw_deg: None,
-            pitch_deg: None,
-            static_pa: None,
-            time: None,
-            source_line: line_no,
-        };
-        let mut ok = true;
-        for (i, col) in &cols {
-            let raw = &rec[*i];
-            let cell = Cell {
-                file,
-                line: line_no,
-                column: i + 1,
-                header: &headers[*i],
-                who: who.clone(),
-            };
-            let res: Result<(), Diagnostic> = match col {
-                Col::Line => {
-                    if raw.is_empty() {
-                        Err(cell.error(
-                            "the line label is empty".into(),
-                            "label lines A, B, C … in port order",
-                        ))
-                    } else {
-                        Ok(())
-                    }
-                }
-                Col::Point => match raw.parse::<usize>() {
-                    Ok(p) if p >= 1 => {
-                        r.point = p;
-                        Ok(())
-                    }
-                    _ => Err(cell.error(
-                        format!("point is not a positive whole number: `{raw}`"),
-                        "points count from the near wall starting at 1",
-                    )),
-                },
-                Col::Dp(unit) => {
-                    if raw.is_empty() {
-                        Err(cell.error(
-                            "differential pressure is missing".into(),
-                            "every point needs a reading; a point that could not be read must be re-read, not left out",
-                        ))
-                    } else {
-                        number(&cell, raw, "differential pressure").map(|v| {
-                            r.dp = to_dp(unit, v);
-                            r.dp_decimals = decimals(raw);
-                        })
-                    }
-                }
-                Col::Temperature(unit) if !raw.is_empty() => number(&cell, raw, "temperature")
-                    .and_then(|v| {
-                        let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
-                        if k > 0.0 {
-                            r.temperature_k = Some(k);
-                            Ok(())
-                        } else {
-                            Err(cell.error(
-                                format!("temperature `{raw}` is below absolute zero"),
-                                "check the unit in the header",
-                            ))
-                        }
-                    }),
-                Col::Yaw | Col::Pitch if !raw.is_empty() => number(&cell, raw, "flow angle")
-                    .and_then(|v| {
-                        if (-90.0..=90.0).contains(&v) {
-                            if *col == Col::Yaw {
-                                r.yaw_deg = Some(v);
-                            } else {
-                                r.pitch_deg = Some(v);
-                            }
-                            Ok(())
-                        } else {
-                            Err(cell.error(
-                                format!("flow angle `{raw}` is outside -90 to 90 degrees"),
-                                "record the null angle of the probe from the axial direction",
-                            ))
-                        }
-                    }),
-                Col::Static(unit) if !raw.is_empty() => number(&cell, raw, "static pressure")
-                    .map(|v| r.static_pa = Some(v * unit.factor)),
-                Col::Time if !raw.is_empty() => {
-                    r.time = Some(raw.to_string());
-                    Ok(())
-                }
-                _ => Ok(()),
-            };
-            if let Err(d) = res {
-                diags.push(d);
-                ok = false;
-            }
-        }
-        if ok {
-            readings.push(r);
-        }
+    }
+    if rows_seen > 1 && dp_blank == rows_seen {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "the readings file is not filled in: all {rows_seen} rows have an empty Δp"
+            ))
+            .at(Location::file(file))
+            .hint("enter the velocity pressure read at each point in the `dp[…]` column"),
+        ));
     }
     if readings.is_empty() && diags.is_empty() {
         diags.push(
@@ -402,6 +266,136 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
         file: file.to_string(),
         readings,
     })
+}
+
+/// One row as a reading: `None` for a blank row, every bad cell of the row otherwise.
+fn row_reading(
+    file: &str,
+    line_no: usize,
+    rec: &csv::StringRecord,
+    headers: &csv::StringRecord,
+    cols: &[(usize, Col)],
+) -> Result<Option<Reading>, Diagnostics> {
+    let mut diags = Diagnostics::new();
+    if rec.iter().all(|c| c.is_empty()) {
+        return Ok(None);
+    }
+    if rec.len() != headers.len() {
+        diags.push(
+            Diagnostic::new(format!(
+                "row has {} fields, the header has {}",
+                rec.len(),
+                headers.len()
+            ))
+            .at(Location::at(file, line_no, 1).with_context(format!(
+                "`{}`",
+                rec.iter().collect::<Vec<_>>().join(",")
+            )))
+            .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
+        );
+        return Err(diags);
+    }
+    let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
+    let line_label = get(Col::Line)
+        .map(|i| rec[i].to_string())
+        .unwrap_or_default();
+    let point_raw = get(Col::Point)
+        .map(|i| rec[i].to_string())
+        .unwrap_or_default();
+    let who = format!("line {line_label}, point {point_raw}, ");
+    let mut r = Reading {
+        line: line_label,
+        point: 0,
+        dp: Dp::Pressure { pa: f64::NAN },
+        dp_decimals: 0,
+        temperature_k: None,
+        yaw_deg: None,
+        pitch_deg: None,
+        static_pa: None,
+        time: None,
+        source_line: line_no,
+    };
+    for (i, col) in cols {
+        let cell = Cell {
+            file,
+            line: line_no,
+            column: i + 1,
+            header: &headers[*i],
+            who: who.clone(),
+        };
+        if let Err(d) = read_cell(*col, &rec[*i], &cell, &mut r) {
+            diags.push(d);
+        }
+    }
+    if diags.is_empty() {
+        Ok(Some(r))
+    } else {
+        Err(diags)
+    }
+}
+
+/// Reads one cell of column `col` into the reading.
+fn read_cell(col: Col, raw: &str, cell: &Cell, r: &mut Reading) -> Result<(), Diagnostic> {
+    match col {
+        Col::Line if raw.is_empty() => Err(cell.error(
+            "the line label is empty".into(),
+            "label lines A, B, C … in port order",
+        )),
+        Col::Point => match raw.parse::<usize>() {
+            Ok(p) if p >= 1 => {
+                r.point = p;
+                Ok(())
+            }
+            _ => Err(cell.error(
+                format!("point is not a positive whole number: `{raw}`"),
+                "points count from the near wall starting at 1",
+            )),
+        },
+        Col::Dp(_) if raw.is_empty() => Err(cell.error(
+            "differential pressure is missing".into(),
+            "every point needs a reading; a point that could not be read must be re-read, not left out",
+        )),
+        Col::Dp(unit) => number(cell, raw, "differential pressure").map(|v| {
+            r.dp = to_dp(unit, v);
+            r.dp_decimals = decimals(raw);
+        }),
+        Col::Temperature(unit) if !raw.is_empty() => {
+            let v = number(cell, raw, "temperature")?;
+            let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
+            if k > 0.0 {
+                r.temperature_k = Some(k);
+                Ok(())
+            } else {
+                Err(cell.error(
+                    format!("temperature `{raw}` is below absolute zero"),
+                    "check the unit in the header",
+                ))
+            }
+        }
+        Col::Yaw | Col::Pitch if !raw.is_empty() => {
+            let v = number(cell, raw, "flow angle")?;
+            if !(-90.0..=90.0).contains(&v) {
+                return Err(cell.error(
+                    format!("flow angle `{raw}` is outside -90 to 90 degrees"),
+                    "record the null angle of the probe from the axial direction",
+                ));
+            }
+            if col == Col::Yaw {
+                r.yaw_deg = Some(v);
+            } else {
+                r.pitch_deg = Some(v);
+            }
+            Ok(())
+        }
+        Col::Static(unit) if !raw.is_empty() => {
+            number(cell, raw, "static pressure").map(|v| r.static_pa = Some(v * unit.factor))
+        }
+        Col::Time if !raw.is_empty() => {
+            r.time = Some(raw.to_string());
+            Ok(())
+        }
+        _ => Ok(()),
+    }
 }
 
 /// Parses a readings file in matrix form: `line,1,2,…,n`, one row per line, one quantity named by
@@ -506,6 +500,56 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
         file: file.to_string(),
         readings,
     })
+}
+
+/// The layout's label for a line as a reading writes it: the label itself in any case (`a` for
+/// `A`), or its number counted from 1 (`2` for the second line).
+fn layout_label(found: &str, labels: &[String]) -> Option<String> {
+    let found = found.trim();
+    if let Some(l) = labels.iter().find(|l| l.eq_ignore_ascii_case(found)) {
+        return Some(l.clone());
+    }
+    let n: usize = found.parse().ok()?;
+    labels.get(n.checked_sub(1)?).cloned()
+}
+
+/// Writes each reading's line label as the layout names it (`a` → `A`, `1` → `A`, `2` → `B` …).
+/// Labels that match no line are one problem for the file, naming the labels found and those
+/// expected, not one per reading.
+pub fn label_lines(run: &mut RunReadings, layout: &Layout) -> Result<(), Diagnostic> {
+    let labels = layout.line_labels();
+    // (label as found, first line of the file it is on)
+    let mut unknown: Vec<(String, usize)> = Vec::new();
+    for r in &mut run.readings {
+        match layout_label(&r.line, &labels) {
+            Some(l) => r.line = l,
+            None if unknown.iter().any(|(u, _)| u == &r.line) => {}
+            None => unknown.push((r.line.clone(), r.source_line)),
+        }
+    }
+    let Some((_, first_line)) = unknown.first() else {
+        return Ok(());
+    };
+    let quoted = |v: Vec<&str>| {
+        v.iter()
+            .map(|l| format!("`{l}`"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let found = quoted(unknown.iter().map(|(l, _)| l.as_str()).collect());
+    Err(Diagnostic::new(format!(
+        "line label{} {found} match{} no line of the layout, whose {} lines are {}",
+        if unknown.len() == 1 { "" } else { "s" },
+        if unknown.len() == 1 { "es" } else { "" },
+        labels.len(),
+        labels.join(", ")
+    ))
+    .at(Location::at(&run.file, *first_line, 1))
+    .hint(format!(
+        "label the lines {} in port order (any case), or number them 1 to {}; check [layout] lines in the survey",
+        labels.join(", "),
+        labels.len()
+    )))
 }
 
 /// Checks that the readings cover the layout exactly: every point once, nothing else.
@@ -618,6 +662,19 @@ mod tests {
     }
 
     #[test]
+    fn a_sheet_not_filled_in_is_one_problem() {
+        let d = err("line,point,dp[inH2O],temperature[F]\nA,1,,\nA,2,,\nB,1,,\nB,2,,\n");
+        assert_eq!(d.len(), 1, "{d}");
+        assert_eq!(
+            d.items()[0].message,
+            "the readings file is not filled in: all 4 rows have an empty Δp"
+        );
+        // one point left empty is still that point's own problem
+        let d = err("line,point,dp[inH2O]\nA,1,0.5\nA,2,\n");
+        assert_eq!(d.items()[0].message, "differential pressure is missing");
+    }
+
+    #[test]
     fn quoted_and_plain_files_read_the_same() {
         let plain = "# site note\nline,point,dp[Pa]\r\nA,1,5\n\nA,2, 6 \n";
         let quoted = "# site note\n\"line\",point,dp[Pa]\r\nA,1,\"5\"\n\nA,2, 6 \n";
@@ -646,6 +703,68 @@ mod tests {
         assert_eq!(r.readings.len(), 6);
         assert_eq!((r.readings[4].line.as_str(), r.readings[4].point), ("B", 2));
         assert!(parse_matrix("m.csv", "line,1\nA,0.1\n", "temperature[F]").is_err());
+    }
+
+    fn two_lines_of_two() -> Layout {
+        use crate::geometry::Duct;
+        use crate::layout::{locate_points, LayoutSpec, Method};
+        let mut spec = LayoutSpec::new(Method::EqualArea);
+        spec.lines = Some(2);
+        spec.points_per_line = Some(2);
+        locate_points(&Duct::round(1.0).unwrap(), &spec).unwrap()
+    }
+
+    /// Line labels as crews write them (common practice): the layout's letters in any case, or
+    /// the lines numbered from 1 in port order.
+    #[test]
+    fn line_labels_in_any_case_or_by_number() {
+        let layout = two_lines_of_two();
+        for (text, form) in [
+            (
+                "line,point,dp[Pa]\na,1,5\na,2,5\nb,1,5\nb,2,5\n",
+                "lower case",
+            ),
+            ("line,point,dp[Pa]\n1,1,5\n1,2,5\n2,1,5\n2,2,5\n", "numbers"),
+            (
+                "line,point,dp[Pa]\nA,1,5\nA,2,5\nB,1,5\nB,2,5\n",
+                "as laid out",
+            ),
+        ] {
+            let mut r = parse_rows("r.csv", text).unwrap();
+            label_lines(&mut r, &layout).unwrap_or_else(|d| panic!("{form}: {d}"));
+            let labels: Vec<&str> = r.readings.iter().map(|x| x.line.as_str()).collect();
+            assert_eq!(labels, ["A", "A", "B", "B"], "{form}");
+            assert!(match_to_layout(&r, &layout).is_ok(), "{form}");
+        }
+        // matrix files take the same labels
+        let mut m = parse_matrix("m.csv", "line,1,2\n1,5,5\n2,5,5\n", "dp[Pa]").unwrap();
+        label_lines(&mut m, &layout).unwrap();
+        assert_eq!(m.readings[3].line, "B");
+    }
+
+    #[test]
+    fn labels_that_match_no_line_are_one_problem() {
+        let layout = two_lines_of_two();
+        // three lines numbered on a two-line layout, and a stray label: one message for the file
+        let mut r = parse_rows(
+            "r.csv",
+            "line,point,dp[Pa]\nX,1,5\nX,2,5\n1,1,5\n3,1,5\n3,2,5\nY,1,5\n",
+        )
+        .unwrap();
+        let d = label_lines(&mut r, &layout).unwrap_err();
+        assert_eq!(
+            d.message,
+            "line labels `X`, `3`, `Y` match no line of the layout, whose 2 lines are A, B"
+        );
+        let at = d.location.unwrap();
+        assert_eq!((at.file.as_str(), at.line), ("r.csv", Some(2)));
+        assert!(d.hint.unwrap().contains("number them 1 to 2"));
+        // zero is not a line number
+        let mut r = parse_rows("r.csv", "line,point,dp[Pa]\n0,1,5\n").unwrap();
+        assert!(label_lines(&mut r, &layout)
+            .unwrap_err()
+            .message
+            .starts_with("line label `0` matches no line"));
     }
 
     #[test]

@@ -8,8 +8,8 @@ use serde::Serialize;
 
 use super::documents::{DocumentMeta, Presentation};
 use super::Attachment;
-use crate::archive::sha256_hex;
 use crate::calibration::{CalibrationCheck, Leg, LegResult};
+use crate::digest::sha256_hex;
 use crate::display::fixed;
 use crate::input::calibration_file::LoadedCalibration;
 use crate::input::SourceFile;

@@ -11,10 +11,10 @@ use serde::Serialize;
 use super::certificate::{Fact, FileHash};
 use super::documents::{DocumentMeta, Presentation};
 use super::{Attachment, AttachmentError};
-use crate::archive::sha256_hex;
+use crate::digest::sha256_hex;
 use crate::display::{fixed, grouped, DisplayTable, Kind, UnitSystem};
-use crate::input::rata_file::{LoadedRata, ReferenceSource};
 use crate::input::SourceFile;
+use crate::pipeline::rata::{RataEvaluation, ReferenceSource};
 use crate::rata::{LowVelocity, RataGrade, RataQuantity};
 use crate::survey::ConventionId;
 use crate::units::{convert_out, Unit};
@@ -102,7 +102,7 @@ pub struct RataUnits {
 }
 
 impl RataUnits {
-    pub fn of(r: &LoadedRata) -> RataUnits {
+    pub fn of(r: &RataEvaluation) -> RataUnits {
         let unit = r.spec.display_unit;
         let size = convert_out(r.result.reference_mean, unit).abs();
         let decimals = if size >= 1000.0 {
@@ -179,7 +179,7 @@ pub fn frequency(g: RataGrade) -> &'static str {
     }
 }
 
-pub fn quantity_text(r: &LoadedRata) -> String {
+pub fn quantity_text(r: &RataEvaluation) -> String {
     match r.spec.quantity {
         RataQuantity::VelocityMS => format!("velocity, {}", r.spec.display_unit.symbol),
         RataQuantity::Flow => {
@@ -212,7 +212,7 @@ pub fn source_text(s: &ReferenceSource) -> String {
 }
 
 /// The low-velocity alternative in words and its status (`n/a` when it does not apply).
-pub fn low_velocity_text(r: &LoadedRata, u: &RataUnits) -> (String, &'static str) {
+pub fn low_velocity_text(r: &RataEvaluation, u: &RataUnits) -> (String, &'static str) {
     let lim = &r.result.limits;
     match r.result.low_velocity {
         LowVelocity::NotApplicable { reason } => (format!("not applicable: {reason}"), "n/a"),
@@ -233,7 +233,7 @@ pub fn low_velocity_text(r: &LoadedRata, u: &RataUnits) -> (String, &'static str
 
 /// The mean difference is written `mean d`, not d̄: a combining macron upsets terminal column
 /// widths and comes out of PDF text extraction garbled.
-pub fn bias_text(r: &LoadedRata, u: &RataUnits) -> String {
+pub fn bias_text(r: &RataEvaluation, u: &RataUnits) -> String {
     let res = &r.result;
     let baf = fixed(res.bias.adjustment_factor, BAF_DECIMALS);
     if res.bias.passed {
@@ -251,7 +251,7 @@ pub fn bias_text(r: &LoadedRata, u: &RataUnits) -> String {
     }
 }
 
-pub fn verdict_text(r: &LoadedRata) -> String {
+pub fn verdict_text(r: &RataEvaluation) -> String {
     let res = &r.result;
     match res.grade() {
         RataGrade::Fail => "FAIL: the relative accuracy exceeds its limit".to_string(),
@@ -264,7 +264,7 @@ pub fn verdict_text(r: &LoadedRata) -> String {
 }
 
 /// One sentence for the PDF: the outcome, on which criterion, the frequency and the BAF.
-fn verdict_sentence(r: &LoadedRata) -> String {
+fn verdict_sentence(r: &RataEvaluation) -> String {
     let res = &r.result;
     let lim = &res.limits;
     let ra = fixed(res.relative_accuracy_percent, RA_DECIMALS);
@@ -307,7 +307,7 @@ fn flat_name(s: &str) -> String {
 }
 
 /// The RATA file and every reference survey with its readings, to embed byte for byte.
-pub fn attachments(r: &LoadedRata) -> Result<Vec<Attachment>, AttachmentError> {
+pub fn attachments(r: &RataEvaluation) -> Result<Vec<Attachment>, AttachmentError> {
     let make = |name: String, f: &SourceFile, description: String| {
         let mime = if name.ends_with(".csv") {
             "text/csv"
@@ -336,7 +336,7 @@ pub fn attachments(r: &LoadedRata) -> Result<Vec<Attachment>, AttachmentError> {
 }
 
 /// Builds the summary; `files` are the attachments it lists with their SHA-256.
-pub fn summary(r: &LoadedRata, files: &[Attachment]) -> RataSummary {
+pub fn summary(r: &RataEvaluation, files: &[Attachment]) -> RataSummary {
     let m = &r.spec.meta;
     let res = &r.result;
     let u = RataUnits::of(r);
@@ -376,7 +376,7 @@ pub fn summary(r: &LoadedRata, files: &[Attachment]) -> RataSummary {
 }
 
 /// The monitor, its serial and description in one line.
-pub fn monitor_text(r: &LoadedRata) -> String {
+pub fn monitor_text(r: &RataEvaluation) -> String {
     let m = &r.spec.meta;
     let mut monitor = m.monitor_id.clone();
     if let Some(s) = &m.monitor_serial {
@@ -385,7 +385,7 @@ pub fn monitor_text(r: &LoadedRata) -> String {
     monitor
 }
 
-fn facts(r: &LoadedRata) -> Vec<Fact> {
+fn facts(r: &RataEvaluation) -> Vec<Fact> {
     let m = &r.spec.meta;
     let who = match (&m.tested_by, &m.organisation) {
         (Some(t), Some(o)) => Some(format!("{t}, {o}")),
@@ -409,7 +409,7 @@ fn facts(r: &LoadedRata) -> Vec<Fact> {
     .collect()
 }
 
-fn runs(r: &LoadedRata, u: &RataUnits) -> Vec<RataRunRow> {
+fn runs(r: &RataEvaluation, u: &RataUnits) -> Vec<RataRunRow> {
     r.result
         .runs
         .iter()
@@ -429,7 +429,7 @@ fn runs(r: &LoadedRata, u: &RataUnits) -> Vec<RataRunRow> {
 }
 
 /// Read across in two columns: counts and means on the left, the spread on the right.
-fn stats(r: &LoadedRata, u: &RataUnits) -> Vec<Fact> {
+fn stats(r: &RataEvaluation, u: &RataUnits) -> Vec<Fact> {
     let res = &r.result;
     vec![
         Fact::new(
@@ -461,7 +461,7 @@ fn stats(r: &LoadedRata, u: &RataUnits) -> Vec<Fact> {
     ]
 }
 
-fn criteria(r: &LoadedRata, u: &RataUnits) -> Vec<Criterion> {
+fn criteria(r: &RataEvaluation, u: &RataUnits) -> Vec<Criterion> {
     let res = &r.result;
     let lim = &res.limits;
     let (lv_text, lv_status) = low_velocity_text(r, u);
@@ -509,7 +509,7 @@ const STATEMENT: &str = "This summary is computed from the paired runs embedded 
     the facility's QA plan. Reference-method traverses involve work at height, hot and toxic \
     gases and hot probes: follow site rules and permits to work.";
 
-fn meta(r: &LoadedRata, files: &[Attachment]) -> DocumentMeta {
+fn meta(r: &RataEvaluation, files: &[Attachment]) -> DocumentMeta {
     let m = &r.spec.meta;
     let fingerprint = sha256_hex(
         &files
@@ -540,12 +540,13 @@ fn meta(r: &LoadedRata, files: &[Attachment]) -> DocumentMeta {
 mod tests {
     use super::*;
 
-    fn sample() -> LoadedRata {
-        crate::input::rata_file::load(
+    fn sample() -> RataEvaluation {
+        let input = crate::input::rata_file::load(
             &std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
                 .join("sample-data/rata/unit2-rata.toml"),
         )
-        .expect("sample RATA loads")
+        .expect("sample RATA loads");
+        crate::pipeline::rata::evaluate(input).expect("sample RATA evaluates")
     }
 
     #[test]

@@ -4,9 +4,11 @@
 use super::{average_value, capitalised, headline_flow, run_range, Job, Trade};
 use crate::assess::Verdict;
 use crate::checks::Status as CheckStatus;
-use crate::display::{fixed, Kind};
+use crate::display::{fixed, grouped, Kind};
+use crate::flow::design::{flow_on_basis, Flows};
 use crate::pipeline::run_is_valid;
 use crate::report::model::{Design, Quantity, Status, Summary};
+use crate::units::FlowBasis;
 
 pub(super) fn section(job: &Job) -> Summary {
     Summary {
@@ -70,15 +72,49 @@ fn headline(job: &Job) -> Vec<Quantity> {
     out
 }
 
-/// The design comparison. The design flow is compared with the average's actual flow.
+/// The design comparison: the average's flow on the basis the design's unit names (actual for
+/// `cfm`, dry standard for `dscfm` …; see `flow::design`).
 fn design(job: &Job) -> Option<Design> {
-    let design = job.survey().design_flow_m3_s?;
+    let d = job.survey().design.as_ref()?;
     let av = job.e.average.as_ref()?;
     let percent = av.percent_of_design?;
+    let flows = Flows {
+        actual_m3_s: av.actual_flow_m3_s,
+        standard_m3_s: av.standard_flow_m3_s,
+        dry_standard_m3_s: av.dry_standard_flow_m3_s,
+    };
+    let measured = flow_on_basis(flows, d.basis, &job.e.convention);
+    let kind = match d.basis {
+        FlowBasis::Actual => Some(Kind::ActualFlow),
+        FlowBasis::Standard => Some(Kind::StandardFlow),
+        FlowBasis::DryStandard => Some(Kind::DryStandardFlow),
+        FlowBasis::Normal | FlowBasis::NormalDry => None,
+    };
+    let (design, measured, compared) = match kind {
+        Some(k) => (
+            job.quantity("Design flow", k, d.m3_s),
+            job.quantity("Measured", k, measured),
+            job.table.get(k).label.to_string(),
+        ),
+        // normal conditions (0 °C, 101.325 kPa) are the design's own, not the job's reference
+        None => {
+            let unit = if d.basis.is_dry() {
+                "dNm³/h"
+            } else {
+                "Nm³/h"
+            };
+            let normal = |si: f64| format!("{} {unit}", grouped(si * 3600.0, 0));
+            (
+                Quantity::new("Design flow", normal(d.m3_s), ""),
+                Quantity::new("Measured", normal(measured), ""),
+                d.basis.flow_words().to_string(),
+            )
+        }
+    };
     Some(Design {
-        design: job.quantity("Design flow", Kind::ActualFlow, design),
-        measured: job.quantity("Measured", Kind::ActualFlow, av.actual_flow_m3_s),
-        compared: job.table.get(Kind::ActualFlow).label.to_string(),
+        design,
+        measured,
+        compared,
         percent: format!("{} %", fixed(percent, 1)),
     })
 }
@@ -108,7 +144,7 @@ fn basis_text(job: &Job) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::testkit::evaluated;
+    use crate::report::testkit::{evaluated, evaluated_text};
 
     #[test]
     fn stack_headline_is_dry_standard_flow_with_si_beside() {
@@ -164,5 +200,27 @@ mod tests {
         let s = section(&Job::new(&e, &a));
         assert_eq!(s.verdict, Status::Fail);
         assert!(s.verdict_text.contains("checks fail"), "{}", s.verdict_text);
+    }
+
+    /// A design in dscfm is compared with the dry standard flow, and the page says so.
+    #[test]
+    fn a_design_is_compared_on_the_basis_its_unit_names() {
+        let (e, a) = evaluated_text("stack", "\n[design]\nflow = \"60000 dscfm\"\n");
+        let s = section(&Job::new(&e, &a));
+        let d = s.design.expect("a design flow");
+        assert_eq!(d.design.value, "60,000 dscfm");
+        assert_eq!(d.compared, "dry standard flow");
+        let av = e.average.as_ref().unwrap();
+        // percent of design = dry standard flow / design × 100 (flow::design)
+        let dscfm = av.dry_standard_flow_m3_s * 60.0 / 0.028316846592;
+        assert_eq!(
+            d.percent,
+            format!("{} %", fixed(100.0 * dscfm / 60000.0, 1))
+        );
+        // a design at normal conditions is shown in its own unit
+        let (e, a) = evaluated_text("stack", "\n[design]\nflow = \"95000 dNm3/h\"\n");
+        let d = section(&Job::new(&e, &a)).design.expect("a design flow");
+        assert_eq!(d.design.value, "95,000 dNm³/h");
+        assert_eq!(d.compared, "flow at normal conditions (dry)");
     }
 }

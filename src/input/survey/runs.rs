@@ -1,0 +1,72 @@
+//! `[[run]]`: each run's id, readings file, form, start and leak checks.
+
+use crate::diag::{Diagnostic, Location};
+use crate::input::toml_doc::Table;
+use crate::survey::{LeakCheck, LeakResult, ReadingsForm, RunSpec};
+
+/// A run as read, with where the survey names its readings file.
+#[derive(Debug, Clone)]
+pub struct RunEntry {
+    pub spec: RunSpec,
+    /// The `readings = "…"` value, where a readings file that cannot be read is reported.
+    pub readings_at: Location,
+}
+
+/// Reads every `[[run]]`; a survey without one is a recorded problem. Runs with a problem of
+/// their own are left out (the problem is recorded).
+pub fn read_runs(root: &Table) -> Vec<RunEntry> {
+    let tables = root.tables("run");
+    if tables.is_empty() && root.get("run").is_none() {
+        root.doc().push(
+            Diagnostic::new("the survey has no [[run]]")
+                .at(Location::file(root.doc().file()))
+                .hint("add [[run]] id = \"1\" readings = \"run1.csv\""),
+        );
+    }
+    let mut runs: Vec<RunEntry> = Vec::new();
+    for t in &tables {
+        let Some(spec) = read_run(t) else { continue };
+        if runs.iter().any(|r| r.spec.id == spec.id) {
+            t.error_at("id", format!("run id `{}` is used twice", spec.id), None);
+            continue;
+        }
+        let readings_at = match t.get("readings") {
+            Some(f) => f.doc.location(f.span.clone(), &f.path()),
+            None => Location::file(root.doc().file()),
+        };
+        runs.push(RunEntry { spec, readings_at });
+    }
+    runs
+}
+
+/// Reads one `[[run]]`.
+pub fn read_run(t: &Table) -> Option<RunSpec> {
+    let id = t.required("id", "\"1\"").map(|f| f.text());
+    let readings = t.text("readings", "\"run1.csv\"");
+    let form = match t.get("matrix") {
+        None => Some(ReadingsForm::Rows),
+        Some(f) => f.str().map(|h| ReadingsForm::Matrix {
+            header: h.to_string(),
+        }),
+    };
+    let started = t.get("started").map(|f| f.text());
+    // a leak check that cannot be read is recorded; the run is still returned so that its
+    // readings file is checked in the same pass (the recorded problem stops the survey)
+    let leak_check = match t.opt_table("leak_check") {
+        None => LeakCheck::default(),
+        Some(l) => {
+            let leak = |k: &str| l.get(k).and_then(|f| f.choice(&LeakResult::choices()));
+            LeakCheck {
+                before: leak("before"),
+                after: leak("after"),
+            }
+        }
+    };
+    Some(RunSpec {
+        id: id?,
+        readings: readings?,
+        form: form?,
+        started,
+        leak_check,
+    })
+}
