@@ -12,8 +12,13 @@
 //! (`--si`, `--units`). Flow labels also depend on the convention: an EPA job speaks of dscfm, an
 //! HVAC job of scfm of standard air, an EN ISO 16911 job of m³/h at normal conditions.
 
+mod text;
+
+pub use text::{in_unit, list, number, number_sig, percent, q, Arg, Message, Text};
+
+use crate::flow::{Convention, EpaForm};
 use crate::survey::ConventionId;
-use crate::units::{lookup_unit, Unit};
+use crate::units::{lookup_unit, Dimension, Unit};
 use serde::Serialize;
 
 /// A family of display units.
@@ -66,8 +71,12 @@ impl UnitSystem {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Kind {
-    /// Duct dimensions, point positions, port lengths.
+    /// Duct dimensions, port lengths, wall distances.
     Length,
+    /// Traverse point positions and probe marks (one step finer than [`Kind::Length`]).
+    Position,
+    /// Straight runs in duct diameters (`8.5 D`), the same in every system.
+    Diameters,
     /// Plane and terminal areas.
     Area,
     /// Pitot differential (velocity) pressure Δp.
@@ -103,8 +112,10 @@ pub enum Kind {
 }
 
 impl Kind {
-    pub const ALL: [Kind; 21] = [
+    pub const ALL: [Kind; 23] = [
         Kind::Length,
+        Kind::Position,
+        Kind::Diameters,
         Kind::Area,
         Kind::VelocityPressure,
         Kind::StaticPressure,
@@ -126,6 +137,32 @@ impl Kind {
         Kind::Mass,
         Kind::GasVolume,
     ];
+
+    /// The dimension a value of this kind is parsed as (`None` for molar masses, which are
+    /// plain numbers in input).
+    pub fn dimension(self) -> Option<Dimension> {
+        Some(match self {
+            Kind::Length | Kind::Position => Dimension::Length,
+            Kind::Diameters => Dimension::Diameters,
+            Kind::Area => Dimension::Area,
+            Kind::VelocityPressure
+            | Kind::StaticPressure
+            | Kind::Barometric
+            | Kind::AbsolutePressure
+            | Kind::OrificePressure => Dimension::Pressure,
+            Kind::Temperature => Dimension::Temperature,
+            Kind::TemperatureDifference => Dimension::TemperatureDifference,
+            Kind::Velocity => Dimension::Velocity,
+            Kind::ActualFlow | Kind::StandardFlow | Kind::DryStandardFlow => Dimension::Flow,
+            Kind::MassFlow => Dimension::MassFlow,
+            Kind::Density => Dimension::Density,
+            Kind::MolarMass => return None,
+            Kind::Percent => Dimension::Fraction,
+            Kind::Angle => Dimension::Angle,
+            Kind::LiquidVolume | Kind::GasVolume => Dimension::Volume,
+            Kind::Mass => Dimension::Mass,
+        })
+    }
 }
 
 /// How one kind of quantity is shown.
@@ -209,6 +246,42 @@ impl Shown {
         self.with_unit(significant(self.value(si), sig))
     }
 
+    /// The number for a CSV cell: three decimals more than the screen shows, trailing zeros
+    /// dropped, an ASCII minus (machines read CSV), empty for a non-finite value.
+    pub fn csv(&self, si: f64) -> String {
+        let v = self.value(si);
+        if !v.is_finite() {
+            return String::new();
+        }
+        let s = format!("{v:.*}", self.decimals + 3);
+        let s = if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.')
+        } else {
+            &s
+        };
+        match s {
+            "-0" => "0".to_string(),
+            other => other.to_string(),
+        }
+    }
+
+    /// The value as a survey file writes it (`29.62 inHg`, `-0.85 inH2O`, `1500 mm`): the
+    /// table's decimals without trailing zeros, an ASCII minus and the parseable symbol.
+    pub fn input(&self, si: f64) -> String {
+        let v = self.value(si);
+        let s = format!("{v:.*}", self.decimals);
+        let s = if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.')
+        } else {
+            &s
+        };
+        let s = if s == "-0" { "0" } else { s };
+        match self.ascii {
+            "1" => s.to_string(),
+            unit => format!("{s} {unit}"),
+        }
+    }
+
     /// A header cell for CSV (`dp[inH2O]`): the name and the parseable symbol.
     pub fn header(&self, name: &str) -> String {
         format!("{name}[{}]", self.ascii)
@@ -236,6 +309,14 @@ pub struct DisplayTable {
 }
 
 impl DisplayTable {
+    /// The job's own table: the convention's unit system (EPA Method 2 metric when the survey
+    /// reduces in metric units), with the convention's reference conditions.
+    pub fn for_convention(c: &Convention) -> DisplayTable {
+        let metric = c.id == ConventionId::EpaMethod2 && c.epa_form == EpaForm::Metric;
+        DisplayTable::new(c.id, UnitSystem::of(c.id, metric))
+            .with_reference_overridden(c.overridden)
+    }
+
     /// The table a convention implies, or the one the user asked for.
     pub fn new(convention: ConventionId, system: UnitSystem) -> DisplayTable {
         DisplayTable {
@@ -259,6 +340,9 @@ impl DisplayTable {
         match (kind, self.system) {
             (Kind::Length, InchPound) => s("in", "in", 2, "length"),
             (Kind::Length, _) => s("mm", "mm", 0, "length"),
+            (Kind::Position, InchPound) => s("in", "in", 3, "position"),
+            (Kind::Position, _) => s("mm", "mm", 1, "position"),
+            (Kind::Diameters, _) => s("D", "D", 1, "straight run"),
             (Kind::Area, InchPound) => s("ft²", "ft2", 4, "area"),
             (Kind::Area, _) => s("m²", "m2", 4, "area"),
             (Kind::VelocityPressure, InchPound) => s("inH2O", "inH2O", 3, "velocity pressure"),
@@ -333,6 +417,60 @@ impl DisplayTable {
             (Kind::DryStandardFlow, _) => s("m³/h", "m3/h", 0, "standard flow, dry"),
             _ => unreachable!("flow() is called for flow kinds only"),
         }
+    }
+
+    /// How running text (a check message, a rule) quotes a value: significant figures rather
+    /// than fixed decimals, so `2.016 in`, `0.05 inH2O`, `4.5833°`, `8.5 D`, `12.5 %`;
+    /// temperatures keep the table's decimals (`299.0 °F`).
+    pub fn quote(&self, kind: Kind, si: f64) -> String {
+        let sh = self.get(kind);
+        match kind {
+            Kind::Temperature => sh.format(si),
+            Kind::Angle => sh.format_sig(si, 5),
+            Kind::Diameters => sh.format_sig(si, 3),
+            _ => sh.format_sig(si, 4),
+        }
+    }
+
+    /// The column heading of a flow (`Q [acfm]`, `Q std dry [m³/h]`): the unit alone where it
+    /// names the basis, else a qualifier in front, so the three flows of a table never share a
+    /// heading. An actual flow is never qualified (`m³/h` and `cfm` are actual by default), nor
+    /// a standard flow whose unit differs from the actual one (`scfm` is standard air).
+    pub fn flow_heading(&self, kind: Kind) -> String {
+        let symbol = |k| self.get(k).symbol;
+        let hvac = self.convention.is_hvac();
+        let qualifier = match kind {
+            Kind::StandardFlow if symbol(kind) == symbol(Kind::ActualFlow) => {
+                if hvac {
+                    " std air"
+                } else {
+                    " std wet"
+                }
+            }
+            Kind::DryStandardFlow
+                if symbol(kind) == symbol(Kind::ActualFlow)
+                    || symbol(kind) == symbol(Kind::StandardFlow) =>
+            {
+                if hvac && symbol(Kind::StandardFlow) != symbol(Kind::ActualFlow) {
+                    " dry air"
+                } else if hvac {
+                    " std dry air"
+                } else {
+                    " std dry"
+                }
+            }
+            _ => "",
+        };
+        format!("Q{qualifier} [{}]", symbol(kind))
+    }
+
+    /// The reference conditions in this table's units (`68.3 °F, 29.920 inHg`).
+    pub fn reference(&self, temperature_k: f64, pressure_pa: f64) -> String {
+        format!(
+            "{}, {}",
+            self.format(Kind::Temperature, temperature_k),
+            self.format(Kind::AbsolutePressure, pressure_pa)
+        )
     }
 
     /// Shorthand: `get(kind).format(si)`.
@@ -545,6 +683,39 @@ mod tests {
     }
 
     #[test]
+    fn input_text_reads_back_through_the_parser() {
+        use crate::units::PA_PER_INHG;
+        for system in UnitSystem::ALL {
+            let t = DisplayTable::new(ConventionId::EpaMethod2, system);
+            for (kind, si) in [
+                (Kind::Barometric, 29.62 * PA_PER_INHG),
+                (Kind::StaticPressure, -211.7),
+                (Kind::Position, 1.5),
+                (Kind::Temperature, 293.15),
+            ] {
+                let sh = t.get(kind);
+                let text = sh.input(si);
+                assert!(text.is_ascii(), "{text}");
+                let back = parse_quantity(&text, kind.dimension().unwrap()).unwrap();
+                // the text is rounded to the table's decimals
+                let step = 10f64.powi(-(sh.decimals as i32)) / sh.factor.abs();
+                assert!((back - si).abs() <= step, "{system:?} {kind:?}: {text}");
+            }
+        }
+        let ip = DisplayTable::new(ConventionId::HvacIp, UnitSystem::InchPound);
+        // 0.85 inH2O: NIST SP 811 B.8 conventional inch of water
+        assert_eq!(
+            ip.get(Kind::StaticPressure)
+                .input(-0.85 * crate::units::PA_PER_INH2O),
+            "-0.85 inH2O"
+        );
+        // 1 in = 0.0254 m exactly: 60 1/8 in
+        assert_eq!(ip.get(Kind::Position).input(60.125 * 0.0254), "60.125 in");
+        let si = DisplayTable::new(ConventionId::Iso16911, UnitSystem::Si);
+        assert_eq!(si.get(Kind::Position).input(1.5), "1500 mm");
+    }
+
+    #[test]
     fn csv_headers_carry_parseable_symbols() {
         let t = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
         assert_eq!(t.get(Kind::VelocityPressure).header("dp"), "dp[inH2O]");
@@ -580,6 +751,37 @@ mod tests {
         assert_eq!(inch_eighths(30.5).as_deref(), Some("30 1/2"));
         assert_eq!(inch_eighths(2.875).as_deref(), Some("2 7/8"));
         assert_eq!(inch_eighths(2.016), None, "not a mark to the eighth");
+    }
+
+    #[test]
+    fn flow_headings_name_their_basis() {
+        let heads = |c, s| {
+            let t = DisplayTable::new(c, s);
+            [Kind::ActualFlow, Kind::StandardFlow, Kind::DryStandardFlow].map(|k| t.flow_heading(k))
+        };
+        // the unit names the basis: EPA English and EN ISO 16911
+        assert_eq!(
+            heads(ConventionId::EpaMethod2, UnitSystem::InchPound),
+            ["Q [acfm]", "Q [wscfm]", "Q [dscfm]"]
+        );
+        assert_eq!(
+            heads(ConventionId::Iso16911, UnitSystem::Si),
+            ["Q [m³/h]", "Q [Nm³/h]", "Q [dNm³/h]"]
+        );
+        // scfm is standard air; the dry-air figure says so
+        assert_eq!(
+            heads(ConventionId::HvacIp, UnitSystem::InchPound),
+            ["Q [acfm]", "Q [scfm]", "Q dry air [scfm]"]
+        );
+        // the same unit three times: qualified
+        assert_eq!(
+            heads(ConventionId::EpaMethod2, UnitSystem::Si),
+            ["Q [m³/h]", "Q std wet [m³/h]", "Q std dry [m³/h]"]
+        );
+        assert_eq!(
+            heads(ConventionId::HvacSi, UnitSystem::Si),
+            ["Q [m³/h]", "Q std air [m³/h]", "Q std dry air [m³/h]"]
+        );
     }
 
     #[test]

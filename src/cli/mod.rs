@@ -129,6 +129,7 @@ where
     let ctx = output::Ctx {
         quiet: cli.quiet,
         color,
+        width: output::terminal_width(),
     };
     let result = match cli.command {
         Command::Layout(a) => layout::run(a, &ctx),
