@@ -224,7 +224,8 @@ fn units_of_another_system(text: &str, system: System) -> Vec<String> {
 }
 
 /// Golden outputs for an inch-pound, an SI and an EPA metric survey: the `compute` screen,
-/// `compute --points`, the per-point CSV and `check`, and no unit of another system in any.
+/// `compute --points`, the per-point CSV and `check --all`, and no unit of another system in any
+/// of them, nor in `check` and `layout` (screen and CSV).
 #[test]
 fn each_job_is_shown_in_its_own_units() {
     for (dir, system) in SAMPLES {
@@ -243,6 +244,12 @@ fn each_job_is_shown_in_its_own_units() {
             ),
             ("check", vec!["check", survey.as_str()], "txt"),
             ("check-all", vec!["check", survey.as_str(), "--all"], "txt"),
+            ("layout", vec!["layout", survey.as_str()], "txt"),
+            (
+                "layout-csv",
+                vec!["layout", survey.as_str(), "--format", "csv"],
+                "csv",
+            ),
         ];
         for (name, args, ext) in runs {
             let (code, out, err) = annulus(&args);
@@ -253,7 +260,7 @@ fn each_job_is_shown_in_its_own_units() {
             assert_eq!(err, "", "{dir} {name}");
             // `check` without --all shows only warnings and failures: the golden keeps every
             // finding's words
-            if name != "check" {
+            if !matches!(name, "check" | "layout" | "layout-csv") {
                 golden(&format!("{name}-{dir}.{ext}"), &out);
             }
             let foreign = units_of_another_system(&out, system);
@@ -269,6 +276,30 @@ fn each_job_is_shown_in_its_own_units() {
                 );
             }
         }
+    }
+}
+
+/// The words of `check --format csv` (limits and messages) are in the job's units too; the
+/// `measured` and `unit` columns are SI on purpose (the unit is named on every row).
+#[test]
+fn check_csv_words_are_in_the_jobs_units() {
+    for (dir, system) in SAMPLES {
+        let survey = format!("sample-data/{dir}/survey.toml");
+        let (_, out, _) = annulus(&["check", &survey, "--format", "csv"]);
+        let mut rows = csv::Reader::from_reader(out.as_bytes());
+        let header = rows.headers().unwrap().clone();
+        let col = |name: &str| header.iter().position(|h| h == name).unwrap();
+        let (limit, message) = (col("limit"), col("message"));
+        let mut n = 0;
+        for row in rows.records() {
+            let row = row.unwrap();
+            for text in [&row[limit], &row[message]] {
+                let foreign = units_of_another_system(text, system);
+                assert!(foreign.is_empty(), "{dir}: {}", foreign.join("\n"));
+            }
+            n += 1;
+        }
+        assert!(n > 10, "{dir}: {n} findings");
     }
 }
 

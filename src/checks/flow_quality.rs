@@ -34,6 +34,7 @@ const fn spec(
         default: LimitDefault::Fixed(v),
         kind,
         stricter,
+        quoting: &[],
     }
 }
 
@@ -186,7 +187,7 @@ pub static GAUGE_SENSITIVITY: CheckDef = CheckDef {
 pub static METHOD_2F_VELOCITY: CheckDef = CheckDef {
     id: "method-2f-velocity",
     group: Group::Flow,
-    description: "Method 2F (yaw and pitch correction) is used only at an average velocity of at least 20 ft/s",
+    description: "Method 2F (yaw and pitch correction) is used only at or above the method's minimum average velocity",
     source: "EPA Method 2F (40 CFR 60 App. A-2) §1.2",
     criterion: "",
     limits: &[spec(

@@ -171,11 +171,15 @@ pub enum LimitDefault {
 pub struct LimitSpec {
     /// Key in the check's `[checks.<id>]` table.
     pub key: &'static str,
-    /// The limit in words with `{}` where the value goes, e.g. `"mean |yaw| ≤ {}"`.
+    /// The limit in words with `{}` where the value goes, e.g. `"mean |yaw| ≤ {}"`, then one
+    /// `{}` for each of [`LimitSpec::quoting`].
     pub text: &'static str,
     pub default: LimitDefault,
     pub kind: LimitKind,
     pub stricter: Stricter,
+    /// Fixed quantities of the rule the words quote besides the limit (SI), shown in the job's
+    /// units like the limit: `"diameter ≥ {} and area ≥ {}"` quotes Method 1's 113 in².
+    pub quoting: &'static [(Kind, f64)],
 }
 
 /// Judges a survey-scope check.
@@ -371,6 +375,17 @@ pub enum Change {
 }
 
 impl LimitSpec {
+    /// The limit's words with `value` in its place and the quantities it quotes.
+    pub fn words(&self, value: Arg) -> Text {
+        let mut args = vec![value];
+        args.extend(
+            self.quoting
+                .iter()
+                .map(|&(kind, si)| crate::display::q(kind, si)),
+        );
+        Text::template(self.text, args)
+    }
+
     /// Whether `value` tightens or relaxes this limit.
     pub fn change(&self, value: f64) -> Change {
         match self.default {
@@ -642,12 +657,12 @@ impl<'a> Rule<'a> {
                                     .map(|(_, v)| *v)
                             });
                             if v.is_none() {
-                                return Some(Text::template(spec.text, vec![what.into()]));
+                                return Some(spec.words(what.into()));
                             }
                             v
                         }
                     }?;
-                    Some(Text::template(spec.text, vec![self.format(spec, v)]))
+                    Some(spec.words(self.format(spec, v)))
                 })),
             "; ",
         )
@@ -875,7 +890,38 @@ mod tests {
                 def.id
             );
             for l in def.limits {
-                assert!(l.text.contains("{}"), "{} {}", def.id, l.key);
+                assert_eq!(
+                    l.text.matches("{}").count(),
+                    1 + l.quoting.len(),
+                    "{} {}",
+                    def.id,
+                    l.key
+                );
+                if let LimitKind::Quantity(kind) = l.kind {
+                    assert!(kind.dimension().is_some(), "{} {}", def.id, l.key);
+                }
+            }
+            // the words carry no quantity of their own: those are quoted in the job's units
+            for words in [def.description, def.criterion]
+                .into_iter()
+                .chain(def.limits.iter().map(|l| l.text))
+            {
+                let w: Vec<&str> = words.split(' ').collect();
+                for pair in w.windows(2) {
+                    let number = pair[0].chars().last().is_some_and(|c| c.is_ascii_digit());
+                    let unit = pair[1].trim_end_matches([',', ')', ';']);
+                    // percent, diameters and degrees read the same in every system
+                    let system_bound = crate::units::lookup_unit(unit).is_some_and(|u| {
+                        use crate::units::Dimension::{Angle, Diameters, Fraction};
+                        !matches!(u.dimension, Fraction | Diameters | Angle)
+                    });
+                    assert!(
+                        !(number && system_bound),
+                        "{}: `{} {unit}` in {words:?}",
+                        def.id,
+                        pair[0]
+                    );
+                }
             }
         }
         assert!(find("cyclonic-flow").is_some());

@@ -27,6 +27,7 @@ const fn at_least(key: &'static str, text: &'static str, v: f64, kind: LimitKind
         default: LimitDefault::Fixed(v),
         kind,
         stricter: Stricter::Higher,
+        quoting: &[],
     }
 }
 
@@ -107,18 +108,24 @@ pub static DUCT_SIZE: CheckDef = CheckDef {
     source: "EPA Method 1 (40 CFR 60 App. A-1) §1.2; Method 1A §1.2",
     criterion: "",
     limits: &[
-        at_least(
-            "minimum_diameter",
-            "Method 1: diameter ≥ {} and area ≥ 113 in² (0.071 m²)",
-            12.0 * IN,
-            LENGTH,
-        ),
-        at_least(
-            "method_1a_minimum",
-            "Method 1A: {} to 12 in with a standard pitot",
-            4.0 * IN,
-            LENGTH,
-        ),
+        LimitSpec {
+            quoting: &[(Kind::Area, EPA_MIN_AREA_M2)],
+            ..at_least(
+                "minimum_diameter",
+                "Method 1: diameter ≥ {} and area ≥ {}",
+                12.0 * IN,
+                LENGTH,
+            )
+        },
+        LimitSpec {
+            quoting: &[(Kind::Length, 12.0 * IN)],
+            ..at_least(
+                "method_1a_minimum",
+                "Method 1A: {} to {} with a standard pitot",
+                4.0 * IN,
+                LENGTH,
+            )
+        },
     ],
     conventions: EPA,
     from_memory: false,
@@ -130,7 +137,7 @@ pub static METHOD_2H_SIZE: CheckDef = CheckDef {
     id: "method-2h-size",
     group: Group::Plane,
     description:
-        "a Method 2H wall-effects factor is used only on a circular stack of at least 3.3 ft",
+        "a Method 2H wall-effects factor is used only on a circular stack of the method's minimum diameter",
     source: "EPA Method 2H (40 CFR 60 App. A-2) §1.2, §8",
     criterion: "",
     limits: &[
@@ -165,6 +172,7 @@ pub static POINT_COUNT: CheckDef = CheckDef {
         default: LimitDefault::Computed("the layout advisor's minimum number of"),
         kind: LimitKind::Count,
         stricter: Stricter::Higher,
+        quoting: &[],
     }],
     conventions: ALL,
     from_memory: false,
@@ -179,12 +187,15 @@ pub static WALL_DISTANCE_EPA: CheckDef = CheckDef {
     source: "EPA Method 1 (40 CFR 60 App. A-1) §11.3",
     criterion: "",
     limits: &[
-        at_least(
-            "large_stack",
-            "≥ {} from the wall above 24 in (0.61 m)",
-            1.0 * IN,
-            LENGTH,
-        ),
+        LimitSpec {
+            quoting: &[(Kind::Length, 24.0 * IN)],
+            ..at_least(
+                "large_stack",
+                "≥ {} from the wall above {}",
+                1.0 * IN,
+                LENGTH,
+            )
+        },
         at_least("small_stack", "≥ {} on smaller stacks", 0.5 * IN, LENGTH),
     ],
     conventions: EPA,

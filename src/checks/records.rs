@@ -20,6 +20,7 @@ const INTERVAL: LimitSpec = LimitSpec {
     default: LimitDefault::Fixed(12.0),
     kind: LimitKind::Months,
     stricter: Stricter::Lower,
+    quoting: &[],
 };
 
 pub static PROBE_CALIBRATION: CheckDef = CheckDef {

@@ -33,6 +33,7 @@ const fn spec(
         default: LimitDefault::Fixed(v),
         kind,
         stricter,
+        quoting: &[],
     }
 }
 

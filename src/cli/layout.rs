@@ -230,13 +230,17 @@ fn table(s: &PlaneSetting, plane: &Plane, marks: &[ProbeMark], ctx: &Ctx) -> Str
     };
     out += &format!("plane      {shape}\n");
     out += &format!("area       {}\n", t.format(Kind::Area, l.duct().area_m2()));
-    out += &format!(
-        "method     {} — {} lines × {} points = {} ({})\n",
-        l.method(),
-        l.lines(),
-        l.points_per_line(),
-        l.total_points(),
-        l.source()
+    out += &paragraph(
+        "method     ",
+        &format!(
+            "{} — {} lines × {} points = {} ({})",
+            l.method(),
+            l.lines(),
+            l.points_per_line(),
+            l.total_points(),
+            l.source()
+        ),
+        ctx.width,
     );
     if let Some((rule, min)) = l.wall_rule() {
         out += &format!(
