@@ -424,6 +424,11 @@ impl DisplayTable {
     /// temperatures keep the table's decimals (`299.0 °F`).
     pub fn quote(&self, kind: Kind, si: f64) -> String {
         let sh = self.get(kind);
+        // an area under a square foot reads in square inches (Method 1's 113 in²)
+        const SQUARE_FOOT_M2: f64 = 0.09290304;
+        if kind == Kind::Area && self.system.is_inch_pound() && si.abs() < SQUARE_FOOT_M2 {
+            return Shown::new("in²", "in2", 2, "area").format_sig(si, 4);
+        }
         match kind {
             Kind::Temperature => sh.format(si),
             Kind::Angle => sh.format_sig(si, 5),
@@ -781,6 +786,21 @@ mod tests {
         assert_eq!(
             heads(ConventionId::HvacSi, UnitSystem::Si),
             ["Q [m³/h]", "Q std air [m³/h]", "Q std dry air [m³/h]"]
+        );
+    }
+
+    #[test]
+    fn running_text_quotes_to_significant_figures() {
+        let ip = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
+        // 1 in = 0.0254 m exactly: EPA Method 1 §1.2's 113 in² and 12 in
+        assert_eq!(ip.quote(Kind::Area, 113.0 * 0.0254 * 0.0254), "113 in²");
+        assert_eq!(ip.quote(Kind::Area, 4.0 * 0.09290304), "4 ft²");
+        assert_eq!(ip.quote(Kind::Length, 12.0 * 0.0254), "12 in");
+        assert_eq!(ip.quote(Kind::Diameters, 8.5), "8.5 D");
+        assert_eq!(ip.quote(Kind::Temperature, 293.15), "68.0 °F");
+        assert_eq!(
+            ip.si().quote(Kind::Area, 113.0 * 0.0254 * 0.0254),
+            "0.0729 m²"
         );
     }
 

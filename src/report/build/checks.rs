@@ -261,9 +261,9 @@ mod tests {
             .chain(c.remarks.clone())
             .collect();
         for f in a.findings().filter(|f| f.setting.is_some()) {
-            let set = f.setting.as_deref().unwrap();
+            let set = f.setting.as_ref().unwrap().to_string();
             assert!(
-                all.iter().all(|m| !m.contains(set)),
+                all.iter().all(|m| !m.contains(&set)),
                 "the setting `{set}` is printed in the checks; it belongs under Deviations"
             );
         }
