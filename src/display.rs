@@ -8,17 +8,18 @@
 //! converted here only to be printed. Conversion factors come from the unit table in
 //! [`crate::units`]; this module only chooses among its symbols.
 //!
-//! The unit system comes from the convention ([`UnitSystem::of`]) unless the user overrides it
+//! The unit system comes from the convention ([`UnitSystem::of`]; a computed job's own table is
+//! `flow::Convention::display_table`) unless the user overrides it
 //! (`--si`, `--units`). Flow labels also depend on the convention: an EPA job speaks of dscfm, an
 //! HVAC job of scfm of standard air, an EN ISO 16911 job of m³/h at normal conditions.
 
 mod text;
 
-pub use text::{in_unit, list, number, number_sig, percent, q, Arg, Message, Text};
+pub use crate::wording::{in_unit, list, number, number_sig, percent, q, Arg, Kind, Render, Text};
+pub use text::Message;
 
-use crate::flow::{Convention, EpaForm};
 use crate::survey::ConventionId;
-use crate::units::{lookup_unit, Dimension, Unit};
+use crate::units::{lookup_unit, Unit};
 use serde::Serialize;
 
 /// A family of display units.
@@ -62,106 +63,6 @@ impl UnitSystem {
 
     pub fn is_inch_pound(self) -> bool {
         self == UnitSystem::InchPound
-    }
-}
-
-/// What a number on a screen or page is: the kinds of quantity the program prints. Finer than
-/// [`crate::units::Dimension`]: a velocity pressure and a barometric pressure are both pressures
-/// but are read in different units.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Kind {
-    /// Duct dimensions, port lengths, wall distances.
-    Length,
-    /// Traverse point positions and probe marks (one step finer than [`Kind::Length`]).
-    Position,
-    /// Straight runs in duct diameters (`8.5 D`), the same in every system.
-    Diameters,
-    /// Plane and terminal areas.
-    Area,
-    /// Pitot differential (velocity) pressure Δp.
-    VelocityPressure,
-    /// Duct static (gauge) pressure.
-    StaticPressure,
-    /// Barometric pressure.
-    Barometric,
-    /// Absolute duct pressure.
-    AbsolutePressure,
-    /// Dry gas meter orifice pressure ΔH (EPA Method 4 / 5 trains).
-    OrificePressure,
-    Temperature,
-    TemperatureDifference,
-    Velocity,
-    ActualFlow,
-    /// Standard (wet) flow, or normal flow under EN ISO 16911-1.
-    StandardFlow,
-    /// Dry standard flow (dscfm, dscm/h, m³/h at normal conditions dry).
-    DryStandardFlow,
-    MassFlow,
-    Density,
-    MolarMass,
-    /// A fraction shown in percent (moisture, composition, percent of design).
-    Percent,
-    Angle,
-    /// Condensed water volume (impingers), mL everywhere.
-    LiquidVolume,
-    /// Weighed water (silica gel), g everywhere.
-    Mass,
-    /// Dry gas meter volume.
-    GasVolume,
-}
-
-impl Kind {
-    pub const ALL: [Kind; 23] = [
-        Kind::Length,
-        Kind::Position,
-        Kind::Diameters,
-        Kind::Area,
-        Kind::VelocityPressure,
-        Kind::StaticPressure,
-        Kind::Barometric,
-        Kind::AbsolutePressure,
-        Kind::OrificePressure,
-        Kind::Temperature,
-        Kind::TemperatureDifference,
-        Kind::Velocity,
-        Kind::ActualFlow,
-        Kind::StandardFlow,
-        Kind::DryStandardFlow,
-        Kind::MassFlow,
-        Kind::Density,
-        Kind::MolarMass,
-        Kind::Percent,
-        Kind::Angle,
-        Kind::LiquidVolume,
-        Kind::Mass,
-        Kind::GasVolume,
-    ];
-
-    /// The dimension a value of this kind is parsed as (`None` for molar masses, which are
-    /// plain numbers in input).
-    pub fn dimension(self) -> Option<Dimension> {
-        Some(match self {
-            Kind::Length | Kind::Position => Dimension::Length,
-            Kind::Diameters => Dimension::Diameters,
-            Kind::Area => Dimension::Area,
-            Kind::VelocityPressure
-            | Kind::StaticPressure
-            | Kind::Barometric
-            | Kind::AbsolutePressure
-            | Kind::OrificePressure => Dimension::Pressure,
-            Kind::Temperature => Dimension::Temperature,
-            Kind::TemperatureDifference => Dimension::TemperatureDifference,
-            Kind::Velocity => Dimension::Velocity,
-            Kind::ActualFlow | Kind::StandardFlow | Kind::DryStandardFlow => Dimension::Flow,
-            Kind::MassFlow => Dimension::MassFlow,
-            Kind::Density => Dimension::Density,
-            Kind::MolarMass => return None,
-            Kind::Percent => Dimension::Fraction,
-            Kind::Angle => Dimension::Angle,
-            Kind::LiquidVolume | Kind::GasVolume => Dimension::Volume,
-            Kind::Mass => Dimension::Mass,
-        })
     }
 }
 
@@ -309,14 +210,6 @@ pub struct DisplayTable {
 }
 
 impl DisplayTable {
-    /// The job's own table: the convention's unit system (EPA Method 2 metric when the survey
-    /// reduces in metric units), with the convention's reference conditions.
-    pub fn for_convention(c: &Convention) -> DisplayTable {
-        let metric = c.id == ConventionId::EpaMethod2 && c.epa_form == EpaForm::Metric;
-        DisplayTable::new(c.id, UnitSystem::of(c.id, metric))
-            .with_reference_overridden(c.overridden)
-    }
-
     /// The table a convention implies, or the one the user asked for.
     pub fn new(convention: ConventionId, system: UnitSystem) -> DisplayTable {
         DisplayTable {

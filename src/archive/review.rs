@@ -15,7 +15,6 @@ use crate::assess::{assess, Assessment};
 use crate::checks::integrity::{ReportedQuantity, ReportedScope, ReportedValue};
 use crate::checks::{num, pct, Status};
 use crate::diag::Error;
-use crate::display::DisplayTable;
 use crate::input::assess_config::load_assess_config;
 use crate::input::load_with;
 use crate::pipeline::{evaluate, Evaluation};
@@ -649,7 +648,7 @@ fn discrepancy(eval: &Evaluation, v: &ReportedValue, message: &str) -> Discrepan
 /// The survey's headline figure.
 pub fn key_figure(e: &Evaluation) -> Option<KeyFigure> {
     let avg = e.average.as_ref()?;
-    let table = DisplayTable::for_convention(&e.convention);
+    let table = e.convention.display_table();
     let (kind, si) = if e.convention.id.is_hvac() {
         (crate::display::Kind::ActualFlow, avg.actual_flow_m3_s)
     } else {

@@ -584,7 +584,7 @@ pub struct Subject<'a> {
 impl Subject<'_> {
     /// The job's display table: findings print in its units (JSON messages too).
     pub fn table(&self) -> DisplayTable {
-        DisplayTable::for_convention(self.convention)
+        self.convention.display_table()
     }
 }
 

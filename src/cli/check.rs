@@ -75,9 +75,7 @@ fn message(f: &Finding, units: &DisplayTable) -> String {
 
 pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
     let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
-    let units = args
-        .units
-        .table(DisplayTable::for_convention(&e.convention));
+    let units = args.units.table(e.convention.display_table());
     let text = match args.format {
         Format::Json => json_text(&a),
         Format::Csv => {

@@ -27,9 +27,7 @@ pub struct ComputeArgs {
 pub fn run(args: ComputeArgs, ctx: &Ctx) -> Result<i32, Error> {
     let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
     let doc = ResultsDoc::new(&e, &a);
-    let units = args
-        .units
-        .table(DisplayTable::for_convention(&e.convention));
+    let units = args.units.table(e.convention.display_table());
     let text = match args.format {
         Format::Json => json_text(&doc),
         Format::Csv => points_csv(&doc, &units),

@@ -166,6 +166,15 @@ impl Convention {
         v
     }
 
+    /// The job's own display table: the convention's unit system (EPA Method 2's metric units
+    /// when the survey reduces in metric), and whether the survey set the reference conditions.
+    pub fn display_table(&self) -> crate::display::DisplayTable {
+        use crate::display::{DisplayTable, UnitSystem};
+        let metric = self.epa_form == EpaForm::Metric;
+        DisplayTable::new(self.id, UnitSystem::of(self.id, metric))
+            .with_reference_overridden(self.overridden)
+    }
+
     /// The standard conditions as the method itself writes them, in its own units (`528 °R,
     /// 29.92 inHg` for EPA Method 2 English; `293 K, 760 mmHg` metric), where the method fixes
     /// them and the survey did not set its own. EPA Method 2 converts with 460 and 273, so these

@@ -8,9 +8,9 @@
 //! disturbance or the exit ("A").
 
 use super::rect::{tab_spacing_counts, TABLE_1_1};
-use crate::display::{q, Kind, Text};
 use crate::geometry::Duct;
 use crate::text;
+use crate::wording::{q, Kind, Text};
 
 const IN: f64 = 0.0254;
 
@@ -137,7 +137,7 @@ pub struct Advice {
 }
 
 /// A straight run as the advice quotes it (`8.5 D`).
-fn diameters(d: f64) -> crate::display::Arg {
+fn diameters(d: f64) -> crate::wording::Arg {
     q(Kind::Diameters, d)
 }
 
