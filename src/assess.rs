@@ -804,6 +804,7 @@ mod tests {
         assert_eq!(f.status, Status::Pass, "{}", f.message);
         assert!(
             f.message
+                .to_string()
                 .contains("(limit relaxed from 20° to 25°: straightening vanes fitted upstream)"),
             "{}",
             f.message
@@ -816,7 +817,7 @@ mod tests {
             "check disabled by the survey: one port blocked by a platform"
         );
         assert_eq!(
-            f.setting.as_deref(),
+            f.setting.as_ref().map(|s| s.to_string()).as_deref(),
             Some("disabled: one port blocked by a platform")
         );
     }

@@ -8,9 +8,15 @@
 //! converted here only to be printed. Conversion factors come from the unit table in
 //! [`crate::units`]; this module only chooses among its symbols.
 //!
-//! The unit system comes from the convention ([`UnitSystem::of`]) unless the user overrides it
+//! The unit system comes from the convention ([`UnitSystem::of`]; a computed job's own table is
+//! `flow::Convention::display_table`) unless the user overrides it
 //! (`--si`, `--units`). Flow labels also depend on the convention: an EPA job speaks of dscfm, an
 //! HVAC job of scfm of standard air, an EN ISO 16911 job of m³/h at normal conditions.
+
+mod text;
+
+pub use crate::wording::{in_unit, list, number, number_sig, percent, q, Arg, Kind, Render, Text};
+pub use text::Message;
 
 use crate::survey::ConventionId;
 use crate::units::{lookup_unit, Unit};
@@ -58,74 +64,6 @@ impl UnitSystem {
     pub fn is_inch_pound(self) -> bool {
         self == UnitSystem::InchPound
     }
-}
-
-/// What a number on a screen or page is: the kinds of quantity the program prints. Finer than
-/// [`crate::units::Dimension`]: a velocity pressure and a barometric pressure are both pressures
-/// but are read in different units.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Kind {
-    /// Duct dimensions, point positions, port lengths.
-    Length,
-    /// Plane and terminal areas.
-    Area,
-    /// Pitot differential (velocity) pressure Δp.
-    VelocityPressure,
-    /// Duct static (gauge) pressure.
-    StaticPressure,
-    /// Barometric pressure.
-    Barometric,
-    /// Absolute duct pressure.
-    AbsolutePressure,
-    /// Dry gas meter orifice pressure ΔH (EPA Method 4 / 5 trains).
-    OrificePressure,
-    Temperature,
-    TemperatureDifference,
-    Velocity,
-    ActualFlow,
-    /// Standard (wet) flow, or normal flow under EN ISO 16911-1.
-    StandardFlow,
-    /// Dry standard flow (dscfm, dscm/h, m³/h at normal conditions dry).
-    DryStandardFlow,
-    MassFlow,
-    Density,
-    MolarMass,
-    /// A fraction shown in percent (moisture, composition, percent of design).
-    Percent,
-    Angle,
-    /// Condensed water volume (impingers), mL everywhere.
-    LiquidVolume,
-    /// Weighed water (silica gel), g everywhere.
-    Mass,
-    /// Dry gas meter volume.
-    GasVolume,
-}
-
-impl Kind {
-    pub const ALL: [Kind; 21] = [
-        Kind::Length,
-        Kind::Area,
-        Kind::VelocityPressure,
-        Kind::StaticPressure,
-        Kind::Barometric,
-        Kind::AbsolutePressure,
-        Kind::OrificePressure,
-        Kind::Temperature,
-        Kind::TemperatureDifference,
-        Kind::Velocity,
-        Kind::ActualFlow,
-        Kind::StandardFlow,
-        Kind::DryStandardFlow,
-        Kind::MassFlow,
-        Kind::Density,
-        Kind::MolarMass,
-        Kind::Percent,
-        Kind::Angle,
-        Kind::LiquidVolume,
-        Kind::Mass,
-        Kind::GasVolume,
-    ];
 }
 
 /// How one kind of quantity is shown.
@@ -209,6 +147,42 @@ impl Shown {
         self.with_unit(significant(self.value(si), sig))
     }
 
+    /// The number for a CSV cell: three decimals more than the screen shows, trailing zeros
+    /// dropped, an ASCII minus (machines read CSV), empty for a non-finite value.
+    pub fn csv(&self, si: f64) -> String {
+        let v = self.value(si);
+        if !v.is_finite() {
+            return String::new();
+        }
+        let s = format!("{v:.*}", self.decimals + 3);
+        let s = if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.')
+        } else {
+            &s
+        };
+        match s {
+            "-0" => "0".to_string(),
+            other => other.to_string(),
+        }
+    }
+
+    /// The value as a survey file writes it (`29.62 inHg`, `-0.85 inH2O`, `1500 mm`): the
+    /// table's decimals without trailing zeros, an ASCII minus and the parseable symbol.
+    pub fn input(&self, si: f64) -> String {
+        let v = self.value(si);
+        let s = format!("{v:.*}", self.decimals);
+        let s = if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.')
+        } else {
+            &s
+        };
+        let s = if s == "-0" { "0" } else { s };
+        match self.ascii {
+            "1" => s.to_string(),
+            unit => format!("{s} {unit}"),
+        }
+    }
+
     /// A header cell for CSV (`dp[inH2O]`): the name and the parseable symbol.
     pub fn header(&self, name: &str) -> String {
         format!("{name}[{}]", self.ascii)
@@ -259,6 +233,9 @@ impl DisplayTable {
         match (kind, self.system) {
             (Kind::Length, InchPound) => s("in", "in", 2, "length"),
             (Kind::Length, _) => s("mm", "mm", 0, "length"),
+            (Kind::Position, InchPound) => s("in", "in", 3, "position"),
+            (Kind::Position, _) => s("mm", "mm", 1, "position"),
+            (Kind::Diameters, _) => s("D", "D", 1, "straight run"),
             (Kind::Area, InchPound) => s("ft²", "ft2", 4, "area"),
             (Kind::Area, _) => s("m²", "m2", 4, "area"),
             (Kind::VelocityPressure, InchPound) => s("inH2O", "inH2O", 3, "velocity pressure"),
@@ -333,6 +310,65 @@ impl DisplayTable {
             (Kind::DryStandardFlow, _) => s("m³/h", "m3/h", 0, "standard flow, dry"),
             _ => unreachable!("flow() is called for flow kinds only"),
         }
+    }
+
+    /// How running text (a check message, a rule) quotes a value: significant figures rather
+    /// than fixed decimals, so `2.016 in`, `0.05 inH2O`, `4.5833°`, `8.5 D`, `12.5 %`;
+    /// temperatures keep the table's decimals (`299.0 °F`).
+    pub fn quote(&self, kind: Kind, si: f64) -> String {
+        let sh = self.get(kind);
+        // an area under a square foot reads in square inches (Method 1's 113 in²)
+        const SQUARE_FOOT_M2: f64 = 0.09290304;
+        if kind == Kind::Area && self.system.is_inch_pound() && si.abs() < SQUARE_FOOT_M2 {
+            return Shown::new("in²", "in2", 2, "area").format_sig(si, 4);
+        }
+        match kind {
+            Kind::Temperature => sh.format(si),
+            Kind::Angle => sh.format_sig(si, 5),
+            Kind::Diameters => sh.format_sig(si, 3),
+            _ => sh.format_sig(si, 4),
+        }
+    }
+
+    /// The column heading of a flow (`Q [acfm]`, `Q std dry [m³/h]`): the unit alone where it
+    /// names the basis, else a qualifier in front, so the three flows of a table never share a
+    /// heading. An actual flow is never qualified (`m³/h` and `cfm` are actual by default), nor
+    /// a standard flow whose unit differs from the actual one (`scfm` is standard air).
+    pub fn flow_heading(&self, kind: Kind) -> String {
+        let symbol = |k| self.get(k).symbol;
+        let hvac = self.convention.is_hvac();
+        let qualifier = match kind {
+            Kind::StandardFlow if symbol(kind) == symbol(Kind::ActualFlow) => {
+                if hvac {
+                    " std air"
+                } else {
+                    " std wet"
+                }
+            }
+            Kind::DryStandardFlow
+                if symbol(kind) == symbol(Kind::ActualFlow)
+                    || symbol(kind) == symbol(Kind::StandardFlow) =>
+            {
+                if hvac && symbol(Kind::StandardFlow) != symbol(Kind::ActualFlow) {
+                    " dry air"
+                } else if hvac {
+                    " std dry air"
+                } else {
+                    " std dry"
+                }
+            }
+            _ => "",
+        };
+        format!("Q{qualifier} [{}]", symbol(kind))
+    }
+
+    /// The reference conditions in this table's units (`68.3 °F, 29.920 inHg`).
+    pub fn reference(&self, temperature_k: f64, pressure_pa: f64) -> String {
+        format!(
+            "{}, {}",
+            self.format(Kind::Temperature, temperature_k),
+            self.format(Kind::AbsolutePressure, pressure_pa)
+        )
     }
 
     /// Shorthand: `get(kind).format(si)`.
@@ -545,6 +581,39 @@ mod tests {
     }
 
     #[test]
+    fn input_text_reads_back_through_the_parser() {
+        use crate::units::PA_PER_INHG;
+        for system in UnitSystem::ALL {
+            let t = DisplayTable::new(ConventionId::EpaMethod2, system);
+            for (kind, si) in [
+                (Kind::Barometric, 29.62 * PA_PER_INHG),
+                (Kind::StaticPressure, -211.7),
+                (Kind::Position, 1.5),
+                (Kind::Temperature, 293.15),
+            ] {
+                let sh = t.get(kind);
+                let text = sh.input(si);
+                assert!(text.is_ascii(), "{text}");
+                let back = parse_quantity(&text, kind.dimension().unwrap()).unwrap();
+                // the text is rounded to the table's decimals
+                let step = 10f64.powi(-(sh.decimals as i32)) / sh.factor.abs();
+                assert!((back - si).abs() <= step, "{system:?} {kind:?}: {text}");
+            }
+        }
+        let ip = DisplayTable::new(ConventionId::HvacIp, UnitSystem::InchPound);
+        // 0.85 inH2O: NIST SP 811 B.8 conventional inch of water
+        assert_eq!(
+            ip.get(Kind::StaticPressure)
+                .input(-0.85 * crate::units::PA_PER_INH2O),
+            "-0.85 inH2O"
+        );
+        // 1 in = 0.0254 m exactly: 60 1/8 in
+        assert_eq!(ip.get(Kind::Position).input(60.125 * 0.0254), "60.125 in");
+        let si = DisplayTable::new(ConventionId::Iso16911, UnitSystem::Si);
+        assert_eq!(si.get(Kind::Position).input(1.5), "1500 mm");
+    }
+
+    #[test]
     fn csv_headers_carry_parseable_symbols() {
         let t = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
         assert_eq!(t.get(Kind::VelocityPressure).header("dp"), "dp[inH2O]");
@@ -580,6 +649,52 @@ mod tests {
         assert_eq!(inch_eighths(30.5).as_deref(), Some("30 1/2"));
         assert_eq!(inch_eighths(2.875).as_deref(), Some("2 7/8"));
         assert_eq!(inch_eighths(2.016), None, "not a mark to the eighth");
+    }
+
+    #[test]
+    fn flow_headings_name_their_basis() {
+        let heads = |c, s| {
+            let t = DisplayTable::new(c, s);
+            [Kind::ActualFlow, Kind::StandardFlow, Kind::DryStandardFlow].map(|k| t.flow_heading(k))
+        };
+        // the unit names the basis: EPA English and EN ISO 16911
+        assert_eq!(
+            heads(ConventionId::EpaMethod2, UnitSystem::InchPound),
+            ["Q [acfm]", "Q [wscfm]", "Q [dscfm]"]
+        );
+        assert_eq!(
+            heads(ConventionId::Iso16911, UnitSystem::Si),
+            ["Q [m³/h]", "Q [Nm³/h]", "Q [dNm³/h]"]
+        );
+        // scfm is standard air; the dry-air figure says so
+        assert_eq!(
+            heads(ConventionId::HvacIp, UnitSystem::InchPound),
+            ["Q [acfm]", "Q [scfm]", "Q dry air [scfm]"]
+        );
+        // the same unit three times: qualified
+        assert_eq!(
+            heads(ConventionId::EpaMethod2, UnitSystem::Si),
+            ["Q [m³/h]", "Q std wet [m³/h]", "Q std dry [m³/h]"]
+        );
+        assert_eq!(
+            heads(ConventionId::HvacSi, UnitSystem::Si),
+            ["Q [m³/h]", "Q std air [m³/h]", "Q std dry air [m³/h]"]
+        );
+    }
+
+    #[test]
+    fn running_text_quotes_to_significant_figures() {
+        let ip = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
+        // 1 in = 0.0254 m exactly: EPA Method 1 §1.2's 113 in² and 12 in
+        assert_eq!(ip.quote(Kind::Area, 113.0 * 0.0254 * 0.0254), "113 in²");
+        assert_eq!(ip.quote(Kind::Area, 4.0 * 0.09290304), "4 ft²");
+        assert_eq!(ip.quote(Kind::Length, 12.0 * 0.0254), "12 in");
+        assert_eq!(ip.quote(Kind::Diameters, 8.5), "8.5 D");
+        assert_eq!(ip.quote(Kind::Temperature, 293.15), "68.0 °F");
+        assert_eq!(
+            ip.si().quote(Kind::Area, 113.0 * 0.0254 * 0.0254),
+            "0.0729 m²"
+        );
     }
 
     #[test]

@@ -45,3 +45,4 @@ pub mod results;
 pub mod survey;
 pub mod uncertainty;
 pub mod units;
+pub mod wording;

@@ -1,12 +1,12 @@
 //! The results document: what `compute --format json` prints, what the report embeds and what
 //! `verify` re-derives and compares. SI units, the unit in every key (see the contract).
 //!
-//! Also the convention's display units, so every presenter prints the same labels.
+//! How a quantity is shown is not its business: every presenter asks
+//! [`crate::display::DisplayTable`].
 
 use crate::assess::{Assessment, RunAssessment};
-use crate::flow::{Average, Convention, EpaForm, PointResult, RunResult};
+use crate::flow::{Average, PointResult, RunResult};
 use crate::pipeline::{run_is_valid, Evaluation};
-use crate::survey::ConventionId;
 use serde::Serialize;
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -161,98 +161,5 @@ fn run_doc(r: &RunResult, valid: bool, a: Option<&RunAssessment>) -> RunDoc {
         epa: r.epa.clone(),
         uncertainty: a.and_then(|x| x.uncertainty.clone()),
         checks: a.map(|x| x.checks.clone()).unwrap_or_default(),
-    }
-}
-
-/// A quantity as a convention prints it: label, unit, factor from SI.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Shown {
-    pub label: &'static str,
-    pub unit: &'static str,
-    pub per_si: f64,
-    pub decimals: usize,
-}
-
-impl Shown {
-    pub fn fmt(&self, si: f64) -> String {
-        format!("{:.*}", self.decimals, si * self.per_si)
-    }
-}
-
-const FT: f64 = 0.3048;
-const FT3: f64 = FT * FT * FT;
-
-/// Display units of the headline quantities under a convention.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct DisplayUnits {
-    pub velocity: Shown,
-    pub actual: Shown,
-    pub standard: Shown,
-    pub dry_standard: Shown,
-    pub mass: Shown,
-}
-
-impl DisplayUnits {
-    /// SI display units for any convention (`compute --si`).
-    pub fn si() -> DisplayUnits {
-        let s = |label, unit, per_si, decimals| Shown {
-            label,
-            unit,
-            per_si,
-            decimals,
-        };
-        DisplayUnits {
-            velocity: s("velocity", "m/s", 1.0, 3),
-            actual: s("actual flow", "m³/h", 3600.0, 0),
-            standard: s("standard flow, wet", "m³/h (ref, wet)", 3600.0, 0),
-            dry_standard: s("standard flow, dry", "m³/h (ref, dry)", 3600.0, 0),
-            mass: s("mass flow", "kg/h", 3600.0, 0),
-        }
-    }
-
-    pub fn for_convention(c: &Convention) -> DisplayUnits {
-        let s = |label, unit, per_si, decimals| Shown {
-            label,
-            unit,
-            per_si,
-            decimals,
-        };
-        match (c.id, c.epa_form) {
-            (ConventionId::EpaMethod2, EpaForm::English) => DisplayUnits {
-                velocity: s("velocity", "ft/s", 1.0 / FT, 2),
-                actual: s("actual flow", "acfm", 60.0 / FT3, 0),
-                standard: s("wet standard flow", "wscfm", 60.0 / FT3, 0),
-                dry_standard: s("dry standard flow", "dscfm", 60.0 / FT3, 0),
-                mass: s("mass flow", "lb/h", 3600.0 / 0.453_592_37, 0),
-            },
-            (ConventionId::EpaMethod2, EpaForm::Metric) => DisplayUnits {
-                velocity: s("velocity", "m/s", 1.0, 3),
-                actual: s("actual flow", "m³/h", 3600.0, 0),
-                standard: s("wet standard flow", "wscm/h", 3600.0, 0),
-                dry_standard: s("dry standard flow", "dscm/h", 3600.0, 0),
-                mass: s("mass flow", "kg/h", 3600.0, 0),
-            },
-            (ConventionId::Iso16911, _) => DisplayUnits {
-                velocity: s("velocity", "m/s", 1.0, 3),
-                actual: s("actual flow", "m³/h", 3600.0, 0),
-                standard: s("normal flow, wet", "m³/h (n, wet)", 3600.0, 0),
-                dry_standard: s("normal flow, dry", "m³/h (n, dry)", 3600.0, 0),
-                mass: s("mass flow", "kg/h", 3600.0, 0),
-            },
-            (ConventionId::HvacIp, _) => DisplayUnits {
-                velocity: s("velocity", "fpm", 60.0 / FT, 0),
-                actual: s("actual flow", "acfm", 60.0 / FT3, 0),
-                standard: s("standard air flow", "scfm", 60.0 / FT3, 0),
-                dry_standard: s("standard air flow, dry", "scfm (dry air)", 60.0 / FT3, 0),
-                mass: s("mass flow", "lb/min", 60.0 / 0.453_592_37, 1),
-            },
-            (ConventionId::HvacSi, _) => DisplayUnits {
-                velocity: s("velocity", "m/s", 1.0, 2),
-                actual: s("actual flow", "m³/h", 3600.0, 0),
-                standard: s("standard air flow", "m³/h (1.2 kg/m³)", 3600.0, 0),
-                dry_standard: s("standard air flow, dry", "m³/h (dry air)", 3600.0, 0),
-                mass: s("mass flow", "kg/s", 1.0, 3),
-            },
-        }
     }
 }

@@ -74,14 +74,6 @@ impl ConventionId {
     pub fn is_hvac(self) -> bool {
         matches!(self, ConventionId::HvacIp | ConventionId::HvacSi)
     }
-
-    /// Results print in US units under EPA Method 2 and hvac-ip, SI otherwise.
-    pub fn unit_system(self) -> crate::units::UnitSystem {
-        match self {
-            ConventionId::EpaMethod2 | ConventionId::HvacIp => crate::units::UnitSystem::Us,
-            _ => crate::units::UnitSystem::Si,
-        }
-    }
 }
 
 /// Duct wall material, for the Method 2H default wall-effects factor.

@@ -1,4 +1,5 @@
-//! Quantities with units: parsing at the edges, SI inside, display in US or SI units.
+//! Quantities with units: parsing at the edges, SI inside; how they are shown is the display
+//! table's ([`crate::display`]).
 //!
 //! Owns the unit table (one row per accepted symbol, with its conversion to SI and the source of the
 //! factor) and nothing else: no file reading, no domain rules. Every quantity string in a survey, a
@@ -695,51 +696,6 @@ pub fn from_unit(value: f64, symbol: &str) -> f64 {
     }
 }
 
-/// Which family of units results are printed in.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum UnitSystem {
-    Us,
-    Si,
-}
-
-impl UnitSystem {
-    /// The display unit for a dimension in this system.
-    pub fn unit_for(self, dimension: Dimension) -> &'static str {
-        match (self, dimension) {
-            (UnitSystem::Us, Dimension::Length) => "in",
-            (UnitSystem::Si, Dimension::Length) => "mm",
-            (UnitSystem::Us, Dimension::Pressure) => "inH2O",
-            (UnitSystem::Si, Dimension::Pressure) => "Pa",
-            (UnitSystem::Us, Dimension::Temperature) => "F",
-            (UnitSystem::Si, Dimension::Temperature) => "C",
-            (UnitSystem::Us, Dimension::Flow) => "cfm",
-            (UnitSystem::Si, Dimension::Flow) => "m3/h",
-            (UnitSystem::Us, Dimension::Velocity) => "ft/s",
-            (UnitSystem::Si, Dimension::Velocity) => "m/s",
-            (UnitSystem::Us, Dimension::Density) => "lb/ft3",
-            (UnitSystem::Si, Dimension::Density) => "kg/m3",
-            (UnitSystem::Us, Dimension::Mass) => "lb",
-            (UnitSystem::Si, Dimension::Mass) => "kg",
-            (UnitSystem::Us, Dimension::Volume) => "ft3",
-            (UnitSystem::Si, Dimension::Volume) => "m3",
-            (_, d) => d.si_symbol(),
-        }
-    }
-}
-
-/// Formats an SI value in `symbol` with `decimals` places, e.g. `format_in(0.6096, "in", 2)` →
-/// `"24.00 in"`.
-pub fn format_in(si: f64, symbol: &str, decimals: usize) -> String {
-    let v = to_unit(si, symbol);
-    let unit = match symbol {
-        "F" => "°F",
-        "C" => "°C",
-        other => other,
-    };
-    format!("{v:.decimals$} {unit}")
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1035,8 +991,6 @@ mod tests {
             let si = convert_in(12.5, unit, unit.dimension).unwrap();
             assert!(close(convert_out(si, unit), 12.5, 1e-12), "{}", unit.symbol);
         }
-        assert_eq!(format_in(0.6096, "in", 2), "24.00 in");
-        assert_eq!(format_in(293.15, "F", 1), "68.0 °F");
     }
 
     #[test]

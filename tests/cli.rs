@@ -15,6 +15,8 @@ fn annulus(args: &[&str]) -> (i32, String, String) {
         .current_dir(root())
         .env("NO_COLOR", "1")
         .env_remove("SOURCE_DATE_EPOCH")
+        // not a terminal: tables fit the 100-column default
+        .env_remove("COLUMNS")
         .output()
         .expect("binary runs");
     (
@@ -41,7 +43,7 @@ fn golden(name: &str, found: &str) {
 
 #[test]
 fn compute_runs_on_every_sample_survey() {
-    for dir in ["stack", "en-stack", "hvac"] {
+    for dir in ["stack", "en-stack", "hvac", "stack-metric"] {
         let survey = format!("sample-data/{dir}/survey.toml");
         let (code, out, err) = annulus(&["compute", &survey]);
         assert_eq!(code, 0, "{err}");
@@ -92,8 +94,229 @@ fn compute_runs_on_every_sample_survey() {
         }
         let (code, csv, _) = annulus(&["compute", &survey, "--format", "csv"]);
         assert_eq!(code, 0);
-        assert!(csv.starts_with("run,line,point,position[m],dp[Pa]"));
+        // the display units in the headers, as the readings parser reads them
+        let dp = match dir {
+            "stack" => "position[in],dp[inH2O],temperature[F]",
+            "hvac" => "position[in],dp[inH2O],temperature[F]",
+            "en-stack" => "position[mm],dp[Pa],temperature[C]",
+            _ => "position[mm],dp[mmH2O],temperature[C]",
+        };
+        assert!(
+            csv.starts_with(&format!("run,line,point,{dp}")),
+            "{dir}: {csv}"
+        );
     }
+}
+
+/// The unit system a sample survey is written and shown in.
+const SAMPLES: [(&str, System); 4] = [
+    ("stack", System::InchPound),
+    ("hvac", System::InchPound),
+    ("en-stack", System::Si),
+    ("stack-metric", System::EpaMetric),
+];
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum System {
+    InchPound,
+    Si,
+    EpaMetric,
+}
+
+/// Units that must not appear in an output of `system`: symbols that are never words, found
+/// anywhere, and short symbols (`in`, `F`, `m` …) found after a number or as a CSV header unit.
+fn foreign_units(system: System) -> (&'static [&'static str], &'static [&'static str]) {
+    const METRIC: &[&str] = &[
+        "Pa", "kPa", "hPa", "mmH2O", "mmHg", "m/s", "°C", "kg/m³", "kg/m3", "m²", "m2", "m³/h",
+        "m3/h", "Nm³/h", "dNm³/h", "wscm/h", "dscm/h", "kg/h", "kg/s", "g/mol", "mm", "m³", "m3",
+    ];
+    const INCH_POUND: &[&str] = &[
+        "inH2O",
+        "inHg",
+        "°F",
+        "°R",
+        "fpm",
+        "cfm",
+        "acfm",
+        "scfm",
+        "wscfm",
+        "dscfm",
+        "ft/s",
+        "ft²",
+        "ft2",
+        "ft³",
+        "ft3",
+        "lb/ft³",
+        "lb/ft3",
+        "lb/h",
+        "lb/min",
+        "lb/lb-mol",
+    ];
+    match system {
+        System::InchPound => (METRIC, &["C", "K", "m", "cm"]),
+        System::Si => (INCH_POUND, &["in", "F", "ft", "R", "lb"]),
+        // EPA Method 2 metric: mm of water and mercury, °C, m/s; never Pa or kPa
+        System::EpaMetric => (
+            &[
+                "Pa",
+                "kPa",
+                "hPa",
+                "inH2O",
+                "inHg",
+                "°F",
+                "°R",
+                "fpm",
+                "cfm",
+                "acfm",
+                "scfm",
+                "wscfm",
+                "dscfm",
+                "ft/s",
+                "ft²",
+                "ft2",
+                "ft³",
+                "lb/ft³",
+                "lb/h",
+                "lb/lb-mol",
+            ],
+            &["in", "F", "ft", "R", "lb"],
+        ),
+    }
+}
+
+/// Every unit of another system in `text`, with its line. A line with the token `SI` shows SI
+/// beside the job's units on purpose and is skipped.
+fn units_of_another_system(text: &str, system: System) -> Vec<String> {
+    let (anywhere, after_number) = foreign_units(system);
+    let is_number = |t: &str| {
+        let t = t.trim_start_matches(['−', '-', '+', '±']).replace(',', "");
+        !t.is_empty() && t.parse::<f64>().is_ok()
+    };
+    let mut found = Vec::new();
+    for line in text.lines() {
+        // (token, the character before it)
+        let mut tokens: Vec<(&str, Option<char>)> = Vec::new();
+        let mut start = None;
+        for (i, c) in line.char_indices().chain([(line.len(), ' ')]) {
+            let delimiter = c.is_whitespace() || "()[],;:".contains(c);
+            match (start, delimiter) {
+                (None, false) => start = Some(i),
+                (Some(s), true) => {
+                    tokens.push((&line[s..i], line[..s].chars().last()));
+                    start = None;
+                }
+                _ => {}
+            }
+        }
+        if tokens.iter().any(|(t, _)| *t == "SI") {
+            continue;
+        }
+        for (i, (t, before)) in tokens.iter().enumerate() {
+            let t = t.trim_end_matches('.');
+            let header_unit = line.contains(&format!("[{t}]"));
+            let after = i > 0 && *before == Some(' ') && is_number(tokens[i - 1].0);
+            if anywhere.contains(&t) || (after_number.contains(&t) && (after || header_unit)) {
+                found.push(format!("`{t}` in: {line}"));
+            }
+        }
+    }
+    found
+}
+
+/// Golden outputs for an inch-pound, an SI and an EPA metric survey: the `compute` screen,
+/// `compute --points`, the per-point CSV and `check --all`, and no unit of another system in any
+/// of them, nor in `check` and `layout` (screen and CSV).
+#[test]
+fn each_job_is_shown_in_its_own_units() {
+    for (dir, system) in SAMPLES {
+        let survey = format!("sample-data/{dir}/survey.toml");
+        let runs = [
+            ("compute", vec!["compute", survey.as_str()], "txt"),
+            (
+                "compute-points",
+                vec!["compute", survey.as_str(), "--points"],
+                "txt",
+            ),
+            (
+                "points",
+                vec!["compute", survey.as_str(), "--format", "csv"],
+                "csv",
+            ),
+            ("check", vec!["check", survey.as_str()], "txt"),
+            ("check-all", vec!["check", survey.as_str(), "--all"], "txt"),
+            ("layout", vec!["layout", survey.as_str()], "txt"),
+            (
+                "layout-csv",
+                vec!["layout", survey.as_str(), "--format", "csv"],
+                "csv",
+            ),
+        ];
+        for (name, args, ext) in runs {
+            let (code, out, err) = annulus(&args);
+            assert!(
+                code == 0 || (name.starts_with("check") && code == 3),
+                "{err}"
+            );
+            assert_eq!(err, "", "{dir} {name}");
+            // `check` without --all shows only warnings and failures: the golden keeps every
+            // finding's words
+            if !matches!(name, "check" | "layout" | "layout-csv") {
+                golden(&format!("{name}-{dir}.{ext}"), &out);
+            }
+            let foreign = units_of_another_system(&out, system);
+            assert!(
+                foreign.is_empty(),
+                "{dir} {name} shows units of another system:\n{}",
+                foreign.join("\n")
+            );
+            for line in out.lines().filter(|_| ext == "txt") {
+                assert!(
+                    line.chars().count() <= 100,
+                    "{dir} {name}: wider than 100 columns: {line}"
+                );
+            }
+        }
+    }
+}
+
+/// The words of `check --format csv` (limits and messages) are in the job's units too; the
+/// `measured` and `unit` columns are SI on purpose (the unit is named on every row).
+#[test]
+fn check_csv_words_are_in_the_jobs_units() {
+    for (dir, system) in SAMPLES {
+        let survey = format!("sample-data/{dir}/survey.toml");
+        let (_, out, _) = annulus(&["check", &survey, "--format", "csv"]);
+        let mut rows = csv::Reader::from_reader(out.as_bytes());
+        let header = rows.headers().unwrap().clone();
+        let col = |name: &str| header.iter().position(|h| h == name).unwrap();
+        let (limit, message) = (col("limit"), col("message"));
+        let mut n = 0;
+        for row in rows.records() {
+            let row = row.unwrap();
+            for text in [&row[limit], &row[message]] {
+                let foreign = units_of_another_system(text, system);
+                assert!(foreign.is_empty(), "{dir}: {}", foreign.join("\n"));
+            }
+            n += 1;
+        }
+        assert!(n > 10, "{dir}: {n} findings");
+    }
+}
+
+/// The scan itself finds what it is meant to find.
+#[test]
+fn the_unit_scan_catches_a_foreign_unit() {
+    assert!(units_of_another_system("area 0.5574 m²", System::InchPound).len() == 1);
+    assert!(units_of_another_system("dp[Pa],v", System::InchPound).len() == 1);
+    assert!(units_of_another_system("limit 12 in", System::Si).len() == 1);
+    assert!(units_of_another_system("temperature[F]", System::Si).len() == 1);
+    assert!(units_of_another_system("T [°F]  v [m/s]", System::EpaMetric).len() == 1);
+    assert!(units_of_another_system("mean Δp 12.45 Pa", System::EpaMetric).len() == 1);
+    // words are not units; a line marked SI shows SI on purpose
+    assert!(
+        units_of_another_system("points in all; K = 0.005 inH2O", System::InchPound).is_empty()
+    );
+    assert!(units_of_another_system("dp [inH2O]  dp SI [Pa]", System::InchPound).is_empty());
 }
 
 #[test]
@@ -444,9 +667,132 @@ fn compute_prints_si_on_request() {
     let (code, si, _) = annulus(&["compute", "sample-data/stack/survey.toml", "--si"]);
     assert_eq!(code, 0);
     assert!(
-        si.contains("m³/h (ref, dry)") && !si.contains("dscfm"),
+        si.contains("Q std dry [m³/h]") && !si.contains("dscfm"),
         "{si}"
     );
+    // the method's formulas keep its own units; the figures are all SI (--quiet drops the notes)
+    let (_, si, _) = annulus(&[
+        "compute",
+        "sample-data/stack/survey.toml",
+        "--si",
+        "--quiet",
+    ]);
+    assert!(units_of_another_system(&si, System::Si).is_empty(), "{si}");
+    // --units names the system; SI and EPA metric per-point CSVs read their own units
+    let (code, csv, _) = annulus(&[
+        "compute",
+        "sample-data/hvac/survey.toml",
+        "--units",
+        "si",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0);
+    assert!(csv.starts_with("run,line,point,position[mm],dp[Pa],temperature[C]"));
+    let (code, check, _) = annulus(&[
+        "check",
+        "sample-data/stack/survey.toml",
+        "--units",
+        "epa-metric",
+    ]);
+    assert_eq!(code, 0);
+    assert!(
+        units_of_another_system(&check, System::EpaMetric).is_empty(),
+        "{check}"
+    );
+    let (code, _, err) = annulus(&[
+        "compute",
+        "sample-data/stack/survey.toml",
+        "--units",
+        "metric",
+    ]);
+    assert_eq!(code, 1);
+    assert!(
+        err.contains("inch-pound") && err.contains("epa-metric"),
+        "{err}"
+    );
+    // JSON stays SI whatever the screen's units
+    let (_, a, _) = annulus(&[
+        "compute",
+        "sample-data/stack/survey.toml",
+        "--format",
+        "json",
+    ]);
+    let (_, b, _) = annulus(&[
+        "compute",
+        "sample-data/stack/survey.toml",
+        "--format",
+        "json",
+        "--si",
+    ]);
+    assert_eq!(a, b);
+}
+
+#[test]
+fn init_writes_each_job_in_its_own_units() {
+    let dir = tempfile::tempdir().unwrap();
+    // the convention's own units, and EPA Method 2 reduced in metric on request
+    for (convention, units, system, want_sheet, want_survey) in [
+        (
+            "hvac-ip",
+            None,
+            System::InchPound,
+            "dp[inH2O],temperature[F]",
+            "\"29.62 inHg\"",
+        ),
+        (
+            "iso-16911",
+            None,
+            System::Si,
+            "dp[Pa],temperature[C]",
+            "\"100.3 kPa\"",
+        ),
+        (
+            "epa-method-2",
+            Some("epa-metric"),
+            System::EpaMetric,
+            "dp[mmH2O],temperature[C]",
+            "epa_units = \"metric\"",
+        ),
+    ] {
+        let d = dir.path().join(convention);
+        let mut args = vec![
+            "init",
+            d.to_str().unwrap(),
+            "--round",
+            "1.5m",
+            "--convention",
+            convention,
+            "--upstream",
+            "8D",
+            "--downstream",
+            "2D",
+            "--date",
+            "2026-12-01",
+        ];
+        if let Some(u) = units {
+            args.extend(["--units", u]);
+        }
+        let (code, _, err) = annulus(&args);
+        assert_eq!(code, 0, "{err}");
+        let sheet = std::fs::read_to_string(d.join("run1.csv")).unwrap();
+        assert!(
+            sheet.starts_with(&format!("line,point,{want_sheet}")),
+            "{sheet}"
+        );
+        let survey = std::fs::read_to_string(d.join("survey.toml")).unwrap();
+        assert!(survey.contains(want_survey), "{convention}: {survey}");
+        // the units the file is written in, comment examples included
+        let foreign = units_of_another_system(&survey.replace('"', " "), system);
+        assert!(foreign.is_empty(), "{convention}: {}", foreign.join("\n"));
+        // and the layout read back from it shows the same units
+        let (code, out, err) = annulus(&["layout", d.join("survey.toml").to_str().unwrap()]);
+        assert_eq!(code, 0, "{err}");
+        assert!(
+            units_of_another_system(&out, system).is_empty(),
+            "{convention}: {out}"
+        );
+    }
 }
 
 /// One run reports every problem of a survey, its assessment sections, the files it names and

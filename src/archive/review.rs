@@ -18,7 +18,6 @@ use crate::diag::Error;
 use crate::input::assess_config::load_assess_config;
 use crate::input::load_with;
 use crate::pipeline::{evaluate, Evaluation};
-use crate::results::DisplayUnits;
 use crate::units::convert_out;
 use rayon::prelude::*;
 use serde::Serialize;
@@ -561,7 +560,7 @@ fn assessment_notes(eval: &Evaluation, a: &Assessment, reported: &[ReportedValue
                 id: f.id.clone(),
                 run: run.cloned(),
                 subject: f.subject.clone(),
-                message: f.message.clone(),
+                message: f.message.to_string(),
             }),
             Status::Warn if !warnings.contains(&f.id) => warnings.push(f.id.clone()),
             _ => {}
@@ -570,7 +569,11 @@ fn assessment_notes(eval: &Evaluation, a: &Assessment, reported: &[ReportedValue
     if paired {
         for (v, f) in reported.iter().zip(judged) {
             if f.status == Status::Fail {
-                notes.push(Note::Discrepancy(discrepancy(eval, v, &f.message)));
+                notes.push(Note::Discrepancy(discrepancy(
+                    eval,
+                    v,
+                    &f.message.to_string(),
+                )));
             }
         }
     }
@@ -645,16 +648,20 @@ fn discrepancy(eval: &Evaluation, v: &ReportedValue, message: &str) -> Discrepan
 /// The survey's headline figure.
 pub fn key_figure(e: &Evaluation) -> Option<KeyFigure> {
     let avg = e.average.as_ref()?;
-    let u = DisplayUnits::for_convention(&e.convention);
-    let (shown, si) = if e.convention.id.is_hvac() {
-        (u.actual, avg.actual_flow_m3_s)
+    let table = e.convention.display_table();
+    let (kind, si) = if e.convention.id.is_hvac() {
+        (crate::display::Kind::ActualFlow, avg.actual_flow_m3_s)
     } else {
-        (u.dry_standard, avg.dry_standard_flow_m3_s)
+        (
+            crate::display::Kind::DryStandardFlow,
+            avg.dry_standard_flow_m3_s,
+        )
     };
+    let shown = table.get(kind);
     Some(KeyFigure {
         quantity: shown.label,
         value_si: si,
-        shown: format!("{} {}", shown.fmt(si), shown.unit),
+        shown: shown.format(si),
     })
 }
 

@@ -8,16 +8,18 @@
 //! printing.
 
 use super::{
-    list_labels, num, pct, CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec,
-    Rule, RunView, Status, Stricter, Subject, ALL,
+    CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, RunView, Status,
+    Stricter, Subject, ALL,
 };
+use crate::display::{in_unit, list, number, percent, q, Kind, Text};
 use crate::flow::design::{flow_on_basis, Flows};
 use crate::flow::{Convention, RunResult};
 use crate::readings::{Dp, Reading};
+use crate::text;
 use crate::units::FlowBasis;
 use crate::units::{convert_out, Dimension, Unit};
 
-const FRACTION: LimitKind = LimitKind::Quantity(Dimension::Fraction);
+const FRACTION: LimitKind = LimitKind::Quantity(Kind::Percent);
 /// Two recorded values are the same when they agree to this relative tolerance (they come from
 /// the same decimal text through the same unit factor, so any real difference is far larger).
 const SAME_REL: f64 = 1e-9;
@@ -52,6 +54,7 @@ pub static REPEATED_VALUES: CheckDef = CheckDef {
         default: LimitDefault::Fixed(4.0),
         kind: LimitKind::Count,
         stricter: Stricter::Lower,
+        quoting: &[],
     }],
     conventions: ALL,
     from_memory: false,
@@ -86,6 +89,7 @@ pub static ROUND_NUMBERS: CheckDef = CheckDef {
         default: LimitDefault::Fixed(0.5),
         kind: FRACTION,
         stricter: Stricter::Lower,
+        quoting: &[],
     }],
     conventions: ALL,
     from_memory: false,
@@ -105,6 +109,7 @@ pub static REPORTED_VALUES: CheckDef = CheckDef {
         default: LimitDefault::Fixed(0.005),
         kind: FRACTION,
         stricter: Stricter::Lower,
+        quoting: &[],
     }],
     conventions: ALL,
     from_memory: false,
@@ -292,7 +297,7 @@ fn identical_sequences(rule: &Rule, s: &Subject) -> Vec<Finding> {
         for j in i + 1..lines.len() {
             let (a, b) = (&lines[i].1, &lines[j].1);
             if a.len() == b.len() && a.iter().zip(b).all(|(x, y)| same(*x, *y)) {
-                pairs.push(format!("{} = {}", lines[i].0, lines[j].0));
+                pairs.push(Text::from(format!("{} = {}", lines[i].0, lines[j].0)));
             }
         }
     }
@@ -301,7 +306,7 @@ fn identical_sequences(rule: &Rule, s: &Subject) -> Vec<Finding> {
             Status::Pass,
             Some(0.0),
             "1",
-            format!(
+            text!(
                 "no two of the {} traverse lines have identical Δp sequences",
                 lines.len()
             ),
@@ -312,9 +317,9 @@ fn identical_sequences(rule: &Rule, s: &Subject) -> Vec<Finding> {
             rule.violated(),
             Some(pairs.len() as f64),
             "1",
-            format!(
+            text!(
                 "identical Δp sequences point for point: {}; copied data or a re-used sheet?",
-                list_labels(&pairs, 6)
+                list(pairs, 6)
             ),
             &[],
         )
@@ -322,7 +327,7 @@ fn identical_sequences(rule: &Rule, s: &Subject) -> Vec<Finding> {
     vec![f]
 }
 
-fn repeated_values(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
+fn repeated_values(rule: &Rule, _s: &Subject, run: &RunView) -> Finding {
     let rs = &run.readings.readings;
     let limit = rule.value("longest_run");
     let mut best = (0usize, 0usize); // (length, start index)
@@ -341,10 +346,11 @@ fn repeated_values(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         return rule.not_applicable("the run has no readings");
     }
     let first = &rs[best.1];
+    // as recorded: in the unit of the readings file
     let value = match (run.dp_unit, first.dp) {
-        (Some(u), _) => format!("{} {}", num(recorded_value(first, u)), u.symbol),
-        (None, Dp::Pressure { pa }) => s.show(pa, Dimension::Pressure),
-        (None, Dp::Column { height_m }) => s.show(height_m, Dimension::Length),
+        (Some(u), _) => text!("{} {}", number(recorded_value(first, u)), u.symbol),
+        (None, Dp::Pressure { pa }) => Text::from(q(Kind::VelocityPressure, pa)),
+        (None, Dp::Column { height_m }) => Text::from(q(Kind::Length, height_m)),
     };
     let status = if best.0 as f64 > limit {
         rule.violated()
@@ -355,13 +361,14 @@ fn repeated_values(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         status,
         Some(best.0 as f64),
         "1",
-        format!(
-            "longest run of equal readings: {} in a row ({value}, from line {} point {}, file line {}), limit {}",
+        text!(
+            "longest run of equal readings in a row: {} ({}, from line {} point {}, file line {}), limit {}",
             best.0,
-            first.line,
+            value,
+            first.line.clone(),
             first.point,
             first.source_line,
-            limit
+            limit as i64
         ),
         &[],
     )
@@ -386,7 +393,7 @@ fn recorded_resolution(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         Err(why) => return rule.not_applicable(why),
     };
     let step = convert_out(res_pa, unit);
-    let finer: Vec<String> = run
+    let finer: Vec<Text> = run
         .readings
         .readings
         .iter()
@@ -394,16 +401,28 @@ fn recorded_resolution(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
             let steps = recorded_value(r, unit) / step;
             (steps - steps.round()).abs() > 1e-6 * steps.abs().max(1.0)
         })
-        .map(|r| format!("{}{} {}", r.line, r.point, num(recorded_value(r, unit))))
+        .map(|r| {
+            text!(
+                "{}{} {}",
+                r.line.clone(),
+                r.point,
+                number(recorded_value(r, unit))
+            )
+        })
         .collect();
     let n = run.readings.readings.len();
-    let res = format!("{} {}", num(step), unit.symbol);
+    // the resolution in the unit the readings were recorded in
+    let res = in_unit(unit, res_pa);
     if finer.is_empty() {
         rule.finding(
             Status::Pass,
             Some(0.0),
             "1",
-            format!("all {n} readings are whole steps of the stated resolution {res}"),
+            text!(
+                "all {} readings are whole steps of the stated resolution {}",
+                n,
+                res
+            ),
             &[],
         )
     } else {
@@ -411,10 +430,12 @@ fn recorded_resolution(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
             rule.violated(),
             Some(finer.len() as f64),
             "1",
-            format!(
-                "{} of {n} readings are finer than the gauge's stated resolution {res}: {}",
+            text!(
+                "{} of {} readings are finer than the gauge's stated resolution {}: {}",
                 finer.len(),
-                list_labels(&finer, 6)
+                n,
+                res,
+                list(finer, 6)
             ),
             &[],
         )
@@ -434,7 +455,7 @@ fn round_numbers(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         .filter(|k| *k != 0)
         .collect();
     if digits.len() < MIN_ROUND_SAMPLE {
-        return rule.not_applicable(format!(
+        return rule.not_applicable(text!(
             "{} non-zero readings: too few to judge digit preference",
             digits.len()
         ));
@@ -443,10 +464,9 @@ fn round_numbers(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         let steps = convert_out(res_pa, unit) * scale;
         let r5 = steps / 5.0;
         if steps >= 5.0 - 1e-9 && (r5 - r5.round()).abs() < 1e-6 {
-            return rule.not_applicable(format!(
-                "the gauge's stated resolution {} {} makes every reading end in 0 or 5",
-                num(convert_out(res_pa, unit)),
-                unit.symbol
+            return rule.not_applicable(text!(
+                "the gauge's stated resolution {} makes every reading end in 0 or 5",
+                in_unit(unit, res_pa)
             ));
         }
     }
@@ -462,13 +482,15 @@ fn round_numbers(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         status,
         Some(share),
         "1",
-        format!(
-            "{round} of {} readings ({}) end in 0 or 5 at {decimals} decimal{} of {}, limit {}{}",
+        text!(
+            "{} of {} readings ({}) end in 0 or 5 at {} decimal{} of {}, limit {}{}",
+            round,
             digits.len(),
-            pct(share),
+            percent(share),
+            decimals,
             if decimals == 1 { "" } else { "s" },
             unit.symbol,
-            pct(limit),
+            percent(limit),
             if status == Status::Pass {
                 ""
             } else {
@@ -544,39 +566,43 @@ fn reported_values(rule: &Rule, s: &Subject) -> Vec<Finding> {
         };
         let subject = format!("{scope} {}", v.quantity.key());
         let mut f = match recomputed(s, v) {
-            Err(why) => rule.not_applicable(format!(
-                "{scope} {} reported as `{}`: {why}",
+            Err(why) => rule.not_applicable(text!(
+                "{} {} reported as `{}`: {}",
+                scope.clone(),
                 v.quantity.name(),
-                v.raw
+                v.raw.clone(),
+                why
             )),
             Ok((x, wrong)) => {
-                let shown = |si: f64| format!("{} {}", num(convert_out(si, v.unit)), v.unit.symbol);
+                // in the unit the value was reported in, so the two read side by side
+                let shown = |si: f64| in_unit(v.unit, si);
                 let diff = if x != 0.0 {
                     (v.value_si - x) / x.abs()
                 } else {
                     f64::INFINITY
                 };
-                let head = format!(
-                    "{scope} {} reported `{}`, recomputed {} ({}{})",
+                let head = text!(
+                    "{} {} reported `{}`, recomputed {} ({}{})",
+                    scope.clone(),
                     v.quantity.name(),
-                    v.raw,
+                    v.raw.clone(),
                     shown(x),
                     if diff >= 0.0 { "+" } else { "" },
-                    pct(diff)
+                    percent(diff)
                 );
                 if diff.abs() <= tol + 1e-12 {
                     rule.finding(
                         Status::Pass,
                         Some(diff),
                         "1",
-                        format!("{head}: within ±{}", pct(tol)),
+                        text!("{}: within ±{}", head, percent(tol)),
                         &[],
                     )
                 } else {
                     let classic = wrong
                         .filter(|w| *w != 0.0 && ((v.value_si - w) / w).abs() <= tol + 1e-12)
                         .map(|w| {
-                            format!(
+                            text!(
                                 "; it matches {} from √(mean Δp), the classic error: average the square roots, not Δp",
                                 shown(w)
                             )
@@ -594,9 +620,12 @@ fn reported_values(rule: &Rule, s: &Subject) -> Vec<Finding> {
                         rule.violated(),
                         Some(diff),
                         "1",
-                        format!(
-                            "{head}: differs by more than ±{}{classic}{excluded}",
-                            pct(tol)
+                        text!(
+                            "{}: differs by more than ±{}{}{}",
+                            head,
+                            percent(tol),
+                            classic,
+                            excluded
                         ),
                         &[],
                     )
@@ -634,8 +663,12 @@ mod tests {
         let f = survey_finding(&a, "identical-sequences");
         assert_eq!(f.status, Status::Warn);
         assert!(
-            f.message.contains("run 1 line A = run 2 line A")
-                && f.message.contains("run 1 line B = run 2 line B"),
+            f.message
+                .to_string()
+                .contains("run 1 line A = run 2 line A")
+                && f.message
+                    .to_string()
+                    .contains("run 1 line B = run 2 line B"),
             "{}",
             f.message
         );
@@ -643,6 +676,7 @@ mod tests {
         let a = one(&[("A", &EPA_DP_A), ("B", &EPA_DP_A)], "");
         assert!(survey_finding(&a, "identical-sequences")
             .message
+            .to_string()
             .contains("run 1 line A = run 1 line B"));
         assert_eq!(
             survey_finding(&epa_one_run(""), "identical-sequences").status,
@@ -661,7 +695,8 @@ mod tests {
         assert_eq!(f.measured, Some(5.0));
         assert!(
             f.message
-                .contains("5 in a row (0.5 inH2O, from line A point 1"),
+                .to_string()
+                .contains("in a row: 5 (0.5 inH2O, from line A point 1"),
             "{}",
             f.message
         );
@@ -687,7 +722,8 @@ mod tests {
         assert_eq!(f.status, Status::Warn);
         assert_eq!(f.measured, Some(2.0));
         assert!(
-            f.message.contains("A2 0.553") && f.message.contains("0.01 inH2O"),
+            f.message.to_string().contains("A2 0.553")
+                && f.message.to_string().contains("0.01 inH2O"),
             "{}",
             f.message
         );
@@ -759,7 +795,7 @@ mod tests {
         let bad = by("run 1 standard_flow");
         assert_eq!(bad.status, Status::Fail);
         assert!(
-            bad.message.contains("reported `38000 cfm`"),
+            bad.message.to_string().contains("reported `38000 cfm`"),
             "{}",
             bad.message
         );
@@ -781,9 +817,13 @@ mod tests {
         ));
         let f = survey_finding(&a, "reported-values");
         assert_eq!(f.status, Status::Fail, "{}", f.message);
-        assert!(f.message.contains("the classic error"), "{}", f.message);
+        assert!(
+            f.message.to_string().contains("the classic error"),
+            "{}",
+            f.message
+        );
         assert_eq!(
-            f.setting.as_deref(),
+            f.setting.as_ref().map(|s| s.to_string()).as_deref(),
             Some("limit tightened from 0.5 % to 0.05 %")
         );
     }

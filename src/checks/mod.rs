@@ -26,11 +26,12 @@ pub mod plane;
 pub mod records;
 pub mod runs;
 
-use crate::flow::{Average, Convention, EpaForm, RunResult};
+use crate::display::{number, Arg, DisplayTable, Kind, Message, Text};
+use crate::flow::{Average, Convention, RunResult};
 use crate::plane::Plane;
 use crate::readings::RunReadings;
 use crate::survey::{ConventionId, RunSpec, Survey};
-use crate::units::{format_in, Dimension, Unit, UnitSystem};
+use crate::units::Unit;
 use instruments::Instruments;
 use integrity::ReportedValue;
 use serde::Serialize;
@@ -53,17 +54,19 @@ pub enum Group {
 }
 
 /// How a finding's message carries the survey's setting of the check: ` (limit relaxed …: reason)`.
-fn setting_suffix(setting: &str) -> String {
-    format!(" ({setting})")
+fn setting_suffix(setting: Text) -> Text {
+    crate::text!(" ({})", setting)
 }
 
 impl Finding {
-    /// The message without the survey's setting, for a page that prints each setting once on its
-    /// own (the report's deviations).
+    /// The message without the survey's setting, in the job's units, for a page that prints each
+    /// setting once on its own (the report's deviations).
     pub fn message_without_setting(&self) -> String {
+        let table = self.message.table();
+        let message = self.message.render(table);
         match &self.setting {
-            Some(s) => self.message.replacen(&setting_suffix(s), "", 1),
-            None => self.message.clone(),
+            Some(s) => message.replacen(&setting_suffix(s.text().clone()).render(table), "", 1),
+            None => message,
         }
     }
 }
@@ -100,20 +103,24 @@ impl fmt::Display for Status {
 /// diameters; `null` when there is no single value), `unit` (the SI symbol of `measured`),
 /// `limit` (in words), and where they apply `subject` (what the finding is about when a check
 /// yields several) and `setting` (how the survey changed the check).
+///
+/// The words (`message`, `limit`, `setting`) are kept as values with their quantities in SI and
+/// rendered only when printed: in the job's units by `Display` and in JSON, in any other
+/// table's units by [`Message::render`].
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Finding {
     pub id: String,
     pub group: Group,
     pub status: Status,
-    pub message: String,
+    pub message: Message,
     pub source: String,
     pub measured: Option<f64>,
     pub unit: &'static str,
-    pub limit: String,
+    pub limit: Message,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub subject: Option<String>,
     #[serde(skip_serializing_if = "Option::is_none")]
-    pub setting: Option<String>,
+    pub setting: Option<Message>,
 }
 
 /// What a check is judged over.
@@ -129,8 +136,9 @@ pub enum Scope {
 /// How a limit value is written in `[checks]` and printed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum LimitKind {
-    /// A quantity string with a unit (`"25 deg"`, `"0.03 inH2O"`, `"10 %"`, `"6 D"`).
-    Quantity(Dimension),
+    /// A quantity string with a unit (`"25 deg"`, `"0.03 inH2O"`, `"10 %"`, `"6 D"`), shown
+    /// as this kind of quantity.
+    Quantity(Kind),
     /// A plain number (a ratio such as the T factor).
     Number,
     /// A plain whole count (points, readings).
@@ -163,11 +171,15 @@ pub enum LimitDefault {
 pub struct LimitSpec {
     /// Key in the check's `[checks.<id>]` table.
     pub key: &'static str,
-    /// The limit in words with `{}` where the value goes, e.g. `"mean |yaw| ≤ {}"`.
+    /// The limit in words with `{}` where the value goes, e.g. `"mean |yaw| ≤ {}"`, then one
+    /// `{}` for each of [`LimitSpec::quoting`].
     pub text: &'static str,
     pub default: LimitDefault,
     pub kind: LimitKind,
     pub stricter: Stricter,
+    /// Fixed quantities of the rule the words quote besides the limit (SI), shown in the job's
+    /// units like the limit: `"diameter ≥ {} and area ≥ {}"` quotes Method 1's 113 in².
+    pub quoting: &'static [(Kind, f64)],
 }
 
 /// Judges a survey-scope check.
@@ -289,8 +301,8 @@ pub struct CheckInfo {
     pub on_violation: Status,
 }
 
-/// Every check in words, with its default limits shown in `units`.
-pub fn describe(units: UnitSystem) -> Vec<CheckInfo> {
+/// Every check in words, with its default limits shown in `table`'s units.
+pub fn describe(table: &DisplayTable) -> Vec<CheckInfo> {
     REGISTRY
         .iter()
         .map(|def| CheckInfo {
@@ -299,7 +311,7 @@ pub fn describe(units: UnitSystem) -> Vec<CheckInfo> {
             scope: def.scope(),
             description: def.description,
             source: def.source,
-            limit: Rule::new(def, None, units).limit_text(&[]),
+            limit: Rule::new(def, None, *table).limit_text(&[]).render(table),
             keys: def.limits.iter().map(|l| l.key).collect(),
             conventions: def.conventions.iter().map(|c| c.name()).collect(),
             from_memory: def.from_memory,
@@ -363,6 +375,17 @@ pub enum Change {
 }
 
 impl LimitSpec {
+    /// The limit's words with `value` in its place and the quantities it quotes.
+    pub fn words(&self, value: Arg) -> Text {
+        let mut args = vec![value];
+        args.extend(
+            self.quoting
+                .iter()
+                .map(|&(kind, si)| crate::display::q(kind, si)),
+        );
+        Text::template(self.text, args)
+    }
+
     /// Whether `value` tightens or relaxes this limit.
     pub fn change(&self, value: f64) -> Change {
         match self.default {
@@ -559,20 +582,9 @@ pub struct Subject<'a> {
 }
 
 impl Subject<'_> {
-    /// Units findings are worded in: the convention's, SI for EPA Method 2 reduced in metric.
-    pub fn units(&self) -> UnitSystem {
-        if self.convention.id == ConventionId::EpaMethod2
-            && self.convention.epa_form == EpaForm::Metric
-        {
-            UnitSystem::Si
-        } else {
-            self.survey.convention.unit_system()
-        }
-    }
-
-    /// A value in the units findings are worded in, e.g. `0.050 inH2O` or `12.5 Pa`.
-    pub fn show(&self, si: f64, dimension: Dimension) -> String {
-        show(si, dimension, self.units())
+    /// The job's display table: findings print in its units (JSON messages too).
+    pub fn table(&self) -> DisplayTable {
+        self.convention.display_table()
     }
 }
 
@@ -581,15 +593,15 @@ impl Subject<'_> {
 pub struct Rule<'a> {
     pub def: &'static CheckDef,
     setting: Option<&'a Override>,
-    units: UnitSystem,
+    table: DisplayTable,
 }
 
 impl<'a> Rule<'a> {
-    pub fn new(def: &'static CheckDef, setting: Option<&'a Override>, units: UnitSystem) -> Self {
+    pub fn new(def: &'static CheckDef, setting: Option<&'a Override>, table: DisplayTable) -> Self {
         Rule {
             def,
             setting,
-            units,
+            table,
         }
     }
 
@@ -624,39 +636,40 @@ impl<'a> Rule<'a> {
         self.set_value(key).unwrap_or(computed)
     }
 
-    fn format(&self, spec: &LimitSpec, v: f64) -> String {
-        format_limit(v, spec.kind, self.units)
+    fn format(&self, spec: &LimitSpec, v: f64) -> Arg {
+        limit_arg(v, spec.kind)
     }
 
     /// The limits in words with the values in force (`computed` fills computed defaults).
-    pub fn limit_text(&self, computed: &[(&str, f64)]) -> String {
-        let criterion = (!self.def.criterion.is_empty()).then(|| self.def.criterion.to_string());
-        criterion
-            .into_iter()
-            .chain(self.def.limits.iter().filter_map(|spec| {
-                let v = match spec.default {
-                    LimitDefault::Fixed(_) => Some(self.value(spec.key)),
-                    LimitDefault::Computed(what) => {
-                        let v = self.set_value(spec.key).or_else(|| {
-                            computed
-                                .iter()
-                                .find(|(k, _)| *k == spec.key)
-                                .map(|(_, v)| *v)
-                        });
-                        if v.is_none() {
-                            return Some(spec.text.replace("{}", what));
+    pub fn limit_text(&self, computed: &[(&str, f64)]) -> Text {
+        let criterion = (!self.def.criterion.is_empty()).then(|| Text::from(self.def.criterion));
+        Text::join(
+            criterion
+                .into_iter()
+                .chain(self.def.limits.iter().filter_map(|spec| {
+                    let v = match spec.default {
+                        LimitDefault::Fixed(_) => Some(self.value(spec.key)),
+                        LimitDefault::Computed(what) => {
+                            let v = self.set_value(spec.key).or_else(|| {
+                                computed
+                                    .iter()
+                                    .find(|(k, _)| *k == spec.key)
+                                    .map(|(_, v)| *v)
+                            });
+                            if v.is_none() {
+                                return Some(spec.words(what.into()));
+                            }
+                            v
                         }
-                        v
-                    }
-                }?;
-                Some(spec.text.replace("{}", &self.format(spec, v)))
-            }))
-            .collect::<Vec<_>>()
-            .join("; ")
+                    }?;
+                    Some(spec.words(self.format(spec, v)))
+                })),
+            "; ",
+        )
     }
 
     /// How the survey changed this check, in words, e.g. "limit relaxed from 20° to 25°: …".
-    pub fn setting_text(&self, computed: &[(&str, f64)]) -> Option<String> {
+    pub fn setting_text(&self, computed: &[(&str, f64)]) -> Option<Text> {
         let o = self.setting?;
         let mut parts = Vec::new();
         let single = self.def.limits.len() == 1;
@@ -664,10 +677,10 @@ impl<'a> Rule<'a> {
             let Some(spec) = self.def.limit(key) else {
                 continue;
             };
-            let name = if single {
-                "limit".to_string()
+            let name: Text = if single {
+                "limit".into()
             } else {
-                format!("limit `{key}`")
+                format!("limit `{key}`").into()
             };
             let default = match spec.default {
                 LimitDefault::Fixed(d) => Some(d),
@@ -676,7 +689,7 @@ impl<'a> Rule<'a> {
                 }
             };
             let Some(d) = default else {
-                parts.push(format!("{name} set to {}", self.format(spec, *v)));
+                parts.push(crate::text!("{} set to {}", name, self.format(spec, *v)));
                 continue;
             };
             let verb = match compare(spec.stricter, d, *v) {
@@ -685,10 +698,12 @@ impl<'a> Rule<'a> {
                 _ => "kept",
             };
             parts.push(if verb == "kept" {
-                format!("{name} kept at {}", self.format(spec, d))
+                crate::text!("{} kept at {}", name, self.format(spec, d))
             } else {
-                format!(
-                    "{name} {verb} from {} to {}",
+                crate::text!(
+                    "{} {} from {} to {}",
+                    name,
+                    verb,
                     self.format(spec, d),
                     self.format(spec, *v)
                 )
@@ -697,10 +712,10 @@ impl<'a> Rule<'a> {
         if parts.is_empty() {
             return None;
         }
-        let mut s = parts.join(", ");
+        let mut s = Text::join(parts, ", ");
         if let Some(r) = &o.reason {
-            s.push_str(": ");
-            s.push_str(r);
+            s.push(": ");
+            s.push(r.clone());
         }
         Some(s)
     }
@@ -716,33 +731,38 @@ impl<'a> Rule<'a> {
         status: Status,
         measured: Option<f64>,
         unit: &'static str,
-        message: impl Into<String>,
+        message: impl Into<Text>,
         computed: &[(&str, f64)],
     ) -> Finding {
         let mut message = message.into();
         let setting = self.setting_text(computed);
         if let Some(s) = &setting {
-            message.push_str(&setting_suffix(s));
+            message.push(setting_suffix(s.clone()));
         }
         if self.def.from_memory && status != Status::NotApplicable {
-            message.push_str(" [limit from memory, not yet confirmed against the standard]");
+            message.push(" [limit from memory, not yet confirmed against the standard]");
         }
         Finding {
             id: self.def.id.to_string(),
             group: self.def.group,
             status,
-            message,
+            message: Message::new(message, self.table),
             source: self.def.source.to_string(),
             measured: measured.filter(|m| m.is_finite()),
             unit,
-            limit: self.limit_text(computed),
+            limit: Message::new(self.limit_text(computed), self.table),
             subject: None,
-            setting,
+            setting: setting.map(|s| Message::new(s, self.table)),
         }
     }
 
+    /// The job's display table (for words a check sets itself).
+    pub fn table(&self) -> DisplayTable {
+        self.table
+    }
+
     /// A not-applicable finding saying why.
-    pub fn not_applicable(&self, why: impl Into<String>) -> Finding {
+    pub fn not_applicable(&self, why: impl Into<Text>) -> Finding {
         self.finding(Status::NotApplicable, None, "", why, &[])
     }
 
@@ -755,7 +775,7 @@ impl<'a> Rule<'a> {
             format!("check disabled by the survey: {reason}"),
             &[],
         );
-        f.setting = Some(format!("disabled: {reason}"));
+        f.setting = Some(Message::new(format!("disabled: {reason}"), self.table));
         f
     }
 }
@@ -770,7 +790,7 @@ pub struct Findings {
 
 /// Runs every registered check that applies to the survey's convention.
 pub fn run_all(subject: &Subject, settings: &Settings) -> Findings {
-    let units = subject.units();
+    let table = subject.table();
     let mut out = Findings {
         survey: Vec::new(),
         runs: vec![Vec::new(); subject.runs.len()],
@@ -780,7 +800,7 @@ pub fn run_all(subject: &Subject, settings: &Settings) -> Findings {
             continue;
         }
         let setting = settings.get(def.id);
-        let rule = Rule::new(def, setting, units);
+        let rule = Rule::new(def, setting, table);
         let disabled = setting
             .filter(|s| !s.enabled())
             .map(|s| s.reason().unwrap_or(""));
@@ -811,90 +831,24 @@ pub fn worst<'a>(findings: impl IntoIterator<Item = &'a Finding>) -> Status {
         .unwrap_or(Status::NotApplicable)
 }
 
-/// Up to `max` labels, then "and N more".
-pub fn list_labels(labels: &[String], max: usize) -> String {
-    if labels.len() <= max {
-        labels.join(", ")
-    } else {
-        format!(
-            "{} and {} more",
-            labels[..max].join(", "),
-            labels.len() - max
-        )
-    }
-}
-
-/// A number to about five significant figures, without trailing zeros.
+/// A number to about five significant figures, without trailing zeros (for words built outside
+/// a [`Text`], e.g. review notes).
 pub fn num(x: f64) -> String {
-    num_sig(x, 5)
-}
-
-/// A number to `sig` significant figures, without trailing zeros.
-pub fn num_sig(x: f64, sig: i32) -> String {
-    if !x.is_finite() {
-        return if x.is_nan() {
-            "—".into()
-        } else if x > 0.0 {
-            "∞".into()
-        } else {
-            "−∞".into()
-        };
-    }
-    if x == 0.0 {
-        return "0".into();
-    }
-    let mag = x.abs().log10().floor() as i32;
-    let decimals = (sig - 1 - mag).clamp(0, 12) as usize;
-    let s = format!("{x:.decimals$}");
-    let s = if s.contains('.') {
-        s.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        s
-    };
-    if s == "-0" {
-        "0".into()
-    } else {
-        s
-    }
+    crate::display::significant(x, 5)
 }
 
 /// A fraction as a percentage, e.g. `0.7` → `70 %`.
 pub fn pct(fraction: f64) -> String {
-    format!("{} %", num_sig(fraction * 100.0, 4))
+    format!("{} %", crate::display::significant(fraction * 100.0, 4))
 }
 
-/// A quantity in the display units of `units`.
-pub fn show(si: f64, dimension: Dimension, units: UnitSystem) -> String {
-    let sym = |s: &str| format!("{} {s}", num_sig(crate::units::to_unit(si, s), 4));
-    match dimension {
-        Dimension::Angle => format!("{}°", num(si)),
-        Dimension::Diameters => format!("{} D", num_sig(si, 3)),
-        Dimension::Fraction => pct(si),
-        Dimension::TemperatureDifference => match units {
-            UnitSystem::Us => format!("{} °F", num_sig(si * 1.8, 4)),
-            UnitSystem::Si => format!("{} K", num_sig(si, 4)),
-        },
-        Dimension::Temperature => {
-            let s = units.unit_for(Dimension::Temperature);
-            format_in(si, s, 1)
-        }
-        Dimension::Length => match units {
-            UnitSystem::Us if si >= 36.0 * 0.0254 => sym("ft"),
-            UnitSystem::Us => sym("in"),
-            UnitSystem::Si if si >= 1.0 => sym("m"),
-            UnitSystem::Si => sym("mm"),
-        },
-        d => sym(units.unit_for(d)),
-    }
-}
-
-/// A limit value in words.
-pub fn format_limit(v: f64, kind: LimitKind, units: UnitSystem) -> String {
+/// A limit value, as an argument of a limit's words.
+pub fn limit_arg(v: f64, kind: LimitKind) -> Arg {
     match kind {
-        LimitKind::Quantity(d) => show(v, d, units),
-        LimitKind::Number => num(v),
-        LimitKind::Count => format!("{}", v.round() as i64),
-        LimitKind::Months => format!("{} months", v.round() as i64),
+        LimitKind::Quantity(k) => crate::display::q(k, v),
+        LimitKind::Number => number(v),
+        LimitKind::Count => Arg::Int(v.round() as i64),
+        LimitKind::Months => crate::text!("{} months", v.round() as i64).into(),
     }
 }
 
@@ -936,7 +890,38 @@ mod tests {
                 def.id
             );
             for l in def.limits {
-                assert!(l.text.contains("{}"), "{} {}", def.id, l.key);
+                assert_eq!(
+                    l.text.matches("{}").count(),
+                    1 + l.quoting.len(),
+                    "{} {}",
+                    def.id,
+                    l.key
+                );
+                if let LimitKind::Quantity(kind) = l.kind {
+                    assert!(kind.dimension().is_some(), "{} {}", def.id, l.key);
+                }
+            }
+            // the words carry no quantity of their own: those are quoted in the job's units
+            for words in [def.description, def.criterion]
+                .into_iter()
+                .chain(def.limits.iter().map(|l| l.text))
+            {
+                let w: Vec<&str> = words.split(' ').collect();
+                for pair in w.windows(2) {
+                    let number = pair[0].chars().last().is_some_and(|c| c.is_ascii_digit());
+                    let unit = pair[1].trim_end_matches([',', ')', ';']);
+                    // percent, diameters and degrees read the same in every system
+                    let system_bound = crate::units::lookup_unit(unit).is_some_and(|u| {
+                        use crate::units::Dimension::{Angle, Diameters, Fraction};
+                        !matches!(u.dimension, Fraction | Diameters | Angle)
+                    });
+                    assert!(
+                        !(number && system_bound),
+                        "{}: `{} {unit}` in {words:?}",
+                        def.id,
+                        pair[0]
+                    );
+                }
             }
         }
         assert!(find("cyclonic-flow").is_some());
@@ -951,7 +936,10 @@ mod tests {
         assert_eq!(o.limits(), &[("limit", 15.0)]);
         let e = Override::new(def, true, None, vec![("limit".into(), 25.0)]).unwrap_err();
         assert_eq!(e.key.as_deref(), Some("limit"));
-        assert!(e.message.contains("relaxed without a reason"), "{e}");
+        assert!(
+            e.message.to_string().contains("relaxed without a reason"),
+            "{e}"
+        );
         let e = Override::new(def, false, Some("  ".into()), vec![]).unwrap_err();
         assert_eq!(e.key.as_deref(), Some("enabled"));
         let e = Override::new(def, true, None, vec![("mean".into(), 15.0)]).unwrap_err();
@@ -967,15 +955,22 @@ mod tests {
         .is_err());
     }
 
+    fn ip() -> DisplayTable {
+        DisplayTable::new(
+            ConventionId::EpaMethod2,
+            crate::display::UnitSystem::InchPound,
+        )
+    }
+
     #[test]
     fn describe_lists_every_check_with_its_default_limits() {
-        let all = describe(UnitSystem::Us);
+        let all = describe(&ip());
         assert_eq!(all.len(), REGISTRY.len());
         let c = all.iter().find(|c| c.id == "gauge-sensitivity").unwrap();
         assert!(c.limit.contains("mean Δp ≥ 0.05 inH2O"), "{}", c.limit);
         assert_eq!(c.keys, ["mean_dp", "fraction_below", "t_factor"]);
         assert_eq!(c.conventions, ["epa-method-2"]);
-        let si = describe(UnitSystem::Si);
+        let si = describe(&ip().si());
         let w = si.iter().find(|c| c.id == "wall-distance-epa").unwrap();
         assert!(w.limit.contains("25.4 mm"), "{}", w.limit);
         // a computed limit is named, not given a number
@@ -1000,15 +995,17 @@ mod tests {
             vec![("limit".into(), 25.0)],
         )
         .unwrap();
-        let rule = Rule::new(def, Some(&o), UnitSystem::Us);
+        let rule = Rule::new(def, Some(&o), ip());
         assert_eq!(rule.value("limit"), 25.0);
         assert_eq!(
-            rule.setting_text(&[]).unwrap(),
+            rule.setting_text(&[]).unwrap().render(&ip()),
             "limit relaxed from 20° to 25°: swirl vanes upstream, agreed with the agency"
         );
         let f = rule.finding(Status::Pass, Some(22.0), "deg", "mean |yaw| 22°", &[]);
         assert!(
-            f.message.contains("limit relaxed from 20° to 25°"),
+            f.message
+                .to_string()
+                .contains("limit relaxed from 20° to 25°"),
             "{}",
             f.message
         );
@@ -1022,17 +1019,19 @@ mod tests {
         assert_eq!(num(20.0), "20");
         assert_eq!(num(0.05), "0.05");
         assert_eq!(pct(0.7), "70 %");
+        let limit = |v, k| Text::from(limit_arg(v, k)).render(&ip());
+        // NIST SP 811 B.8: 0.05 inH2O (conventional) = 12.454 Pa; 1 in = 0.0254 m exactly
         assert_eq!(
-            show(
+            limit(
                 0.05 * crate::units::PA_PER_INH2O,
-                Dimension::Pressure,
-                UnitSystem::Us
+                LimitKind::Quantity(Kind::VelocityPressure)
             ),
             "0.05 inH2O"
         );
         assert_eq!(
-            show(12.0 * 0.0254, Dimension::Length, UnitSystem::Us),
+            limit(12.0 * 0.0254, LimitKind::Quantity(Kind::Length)),
             "12 in"
         );
+        assert_eq!(limit(12.0, LimitKind::Months), "12 months");
     }
 }

@@ -10,6 +10,7 @@ use super::{
     Subject, ALL,
 };
 use crate::survey::ProbeKind;
+use crate::text;
 use chrono::{Months, NaiveDate};
 use serde::Serialize;
 
@@ -19,6 +20,7 @@ const INTERVAL: LimitSpec = LimitSpec {
     default: LimitDefault::Fixed(12.0),
     kind: LimitKind::Months,
     stricter: Stricter::Lower,
+    quoting: &[],
 };
 
 pub static PROBE_CALIBRATION: CheckDef = CheckDef {
@@ -93,7 +95,7 @@ fn probe_interval(rule: &Rule) -> u32 {
 /// `[instruments]` entry's, with the interval in force (the survey's `[checks]` setting, the
 /// instrument's own `interval_months`, or the default).
 pub fn calibration_dues(s: &Subject, settings: &super::Settings) -> Vec<CalibrationDue> {
-    let rule = |def: &'static CheckDef| Rule::new(def, settings.get(def.id), s.units());
+    let rule = |def: &'static CheckDef| Rule::new(def, settings.get(def.id), s.table());
     let mut out = Vec::new();
     if let Some(date) = s.survey.probe.calibrated {
         let months = probe_interval(&rule(&PROBE_CALIBRATION));
@@ -159,13 +161,15 @@ fn judge(
         }
     );
     let (status, msg) = match calibration_state(calibrated, interval, test_date) {
-        CalibrationState::Current { valid_until } => {
-            (Status::Pass, format!("{base}: valid until {valid_until}"))
-        }
-        CalibrationState::AfterTest => (Status::Pass, format!("{base}: a post-test calibration")),
-        CalibrationState::Expired { expired_on } => {
-            (rule.violated(), format!("{base}: EXPIRED on {expired_on}"))
-        }
+        CalibrationState::Current { valid_until } => (
+            Status::Pass,
+            text!("{}: valid until {}", base, valid_until.to_string()),
+        ),
+        CalibrationState::AfterTest => (Status::Pass, text!("{}: a post-test calibration", base)),
+        CalibrationState::Expired { expired_on } => (
+            rule.violated(),
+            text!("{}: EXPIRED on {}", base, expired_on.to_string()),
+        ),
     };
     rule.finding(status, Some(age_days as f64), "d", msg, &[])
 }
@@ -253,8 +257,12 @@ fn instrument_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
             None => continue,
         };
         if let Some(own) = interval_months {
-            f.limit = format!(
-                "calibrated within {own} months before the test (the instrument's stated interval)"
+            f.limit = crate::display::Message::new(
+                text!(
+                    "calibrated within {} months before the test (the instrument's stated interval)",
+                    *own
+                ),
+                rule.table(),
             );
         }
         f.subject = Some(role.key().to_string());
@@ -324,7 +332,11 @@ mod assessed {
         let a = calibrated("2025-05-11", "");
         let f = survey_finding(&a, "probe-calibration");
         assert_eq!(f.status, Status::Fail);
-        assert!(f.message.contains("EXPIRED on 2026-05-11"), "{}", f.message);
+        assert!(
+            f.message.to_string().contains("EXPIRED on 2026-05-11"),
+            "{}",
+            f.message
+        );
         assert_eq!(f.measured, Some(521.0));
         assert!(a.failed());
         // within the interval
@@ -340,7 +352,7 @@ mod assessed {
         let f = survey_finding(&a, "probe-calibration");
         assert_eq!(f.status, Status::Pass, "{}", f.message);
         assert!(
-            f.message.contains(
+            f.message.to_string().contains(
                 "limit relaxed from 12 months to 18 months: manufacturer interval for this probe"
             ),
             "{}",
@@ -366,7 +378,7 @@ mod assessed {
         assert_eq!(found[0].subject.as_deref(), Some("dp"));
         assert_eq!(found[0].status, Status::Fail, "{}", found[0].message);
         assert!(
-            found[0].message.contains("Δp gauge M-12"),
+            found[0].message.to_string().contains("Δp gauge M-12"),
             "{}",
             found[0].message
         );
@@ -379,6 +391,6 @@ mod assessed {
         );
         let f = survey_finding(&a, "instrument-calibration");
         assert_eq!(f.status, Status::Pass, "{}", f.message);
-        assert!(f.limit.contains("24 months"));
+        assert!(f.limit.to_string().contains("24 months"));
     }
 }

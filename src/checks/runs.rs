@@ -6,16 +6,17 @@
 //! [`RunView::valid`]); the leak-check finding only explains it. No files, no printing.
 
 use super::{
-    num, pct, CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, RunView,
-    Status, Stricter, Subject, ALL, EPA, HVAC, STACK,
+    CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, RunView, Status,
+    Stricter, Subject, ALL, EPA, HVAC, STACK,
 };
+use crate::display::{number, percent, q, Kind, Text};
 use crate::layout::advisor::{EPA_MIN_AREA_M2, EPA_MIN_DIAMETER_M};
 use crate::survey::LeakResult;
-use crate::units::Dimension;
+use crate::text;
 
-const TEMPERATURE: LimitKind = LimitKind::Quantity(Dimension::Temperature);
-const SPREAD: LimitKind = LimitKind::Quantity(Dimension::TemperatureDifference);
-const FRACTION: LimitKind = LimitKind::Quantity(Dimension::Fraction);
+const TEMPERATURE: LimitKind = LimitKind::Quantity(Kind::Temperature);
+const SPREAD: LimitKind = LimitKind::Quantity(Kind::TemperatureDifference);
+const FRACTION: LimitKind = LimitKind::Quantity(Kind::Percent);
 /// EPA Method 1A lower size limit, 4 in (Method 1A §1.2).
 const METHOD_1A_MIN_M: f64 = 4.0 * 0.0254;
 
@@ -32,6 +33,7 @@ const fn spec(
         default: LimitDefault::Fixed(v),
         kind,
         stricter,
+        quoting: &[],
     }
 }
 
@@ -159,7 +161,7 @@ fn leak_check(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
     if s.survey.convention.is_hvac() && lc.before.is_none() && lc.after.is_none() {
         return rule.not_applicable("HVAC traverses do not record pitot leak checks");
     }
-    let state = format!(
+    let state = text!(
         "pre-run leak check {}, post-run {}",
         leak_name(lc.before),
         leak_name(lc.after)
@@ -175,9 +177,11 @@ fn leak_check(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
             rule.violated(),
             None,
             "",
-            format!(
-                "RUN {} IS INVALID AND EXCLUDED FROM THE AVERAGE: {why} ({state}); a failed or missing post-run leak check voids the run",
-                run.spec.id
+            text!(
+                "RUN {} IS INVALID AND EXCLUDED FROM THE AVERAGE: {} ({}); a failed or missing post-run leak check voids the run",
+                run.spec.id.clone(),
+                why,
+                state
             ),
             &[],
         );
@@ -186,13 +190,13 @@ fn leak_check(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         (Some(LeakResult::Pass), Some(LeakResult::Pass)) => (Status::Pass, state),
         _ => (
             Status::Warn,
-            format!("{state}: the run counts, but the record is incomplete"),
+            text!("{}: the run counts, but the record is incomplete", state),
         ),
     };
     rule.finding(status, None, "", msg, &[])
 }
 
-fn temperature_range(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
+fn temperature_range(rule: &Rule, _s: &Subject, run: &RunView) -> Finding {
     let pts = &run.result.points;
     let (lo, hi) = (rule.value("minimum"), rule.value("maximum"));
     let spread_limit = rule.value("spread");
@@ -204,20 +208,21 @@ fn temperature_range(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         .iter()
         .map(|p| p.temperature_k)
         .fold(f64::NEG_INFINITY, f64::max);
-    let out: Vec<String> = pts
+    let out: Vec<Text> = pts
         .iter()
         .filter(|p| p.temperature_k < lo || p.temperature_k > hi)
+        .take(6)
         .map(|p| {
-            format!(
+            text!(
                 "{}{} {}",
-                p.line,
+                p.line.clone(),
                 p.point,
-                s.show(p.temperature_k, Dimension::Temperature)
+                q(Kind::Temperature, p.temperature_k)
             )
         })
         .collect();
-    let t = |x| s.show(x, Dimension::Temperature);
-    let range = format!(
+    let t = |x| q(Kind::Temperature, x);
+    let range = text!(
         "point temperatures {} to {}, plausible range {} to {}",
         t(tmin),
         t(tmax),
@@ -228,18 +233,20 @@ fn temperature_range(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
     let (status, msg) = if !out.is_empty() {
         (
             rule.violated(),
-            format!(
-                "{range}: outside it at {}; check the unit in the temperature header",
-                out.iter().take(6).cloned().collect::<Vec<_>>().join(", ")
+            text!(
+                "{}: outside it at {}; check the unit in the temperature header",
+                range,
+                Text::join(out, ", ")
             ),
         )
     } else if spread > spread_limit + 1e-9 {
         (
             Status::Warn,
-            format!(
-                "{range}; the points differ by {} (more than {}): stratified gas or a mistyped value",
-                s.show(spread, Dimension::TemperatureDifference),
-                s.show(spread_limit, Dimension::TemperatureDifference)
+            text!(
+                "{}; the points differ by {} (more than {}): stratified gas or a mistyped value",
+                range,
+                q(Kind::TemperatureDifference, spread),
+                q(Kind::TemperatureDifference, spread_limit)
             ),
         )
     } else {
@@ -263,12 +270,12 @@ fn run_agreement(rule: &Rule, s: &Subject) -> Vec<Finding> {
         status,
         Some(rsd),
         "1",
-        format!(
+        text!(
             "actual flow of runs {}: relative standard deviation {}, largest deviation from the mean {}, limit {}",
             avg.runs.join(", "),
-            pct(rsd),
-            pct(avg.flow_max_deviation),
-            pct(limit)
+            percent(rsd),
+            percent(avg.flow_max_deviation),
+            percent(limit)
         ),
         &[],
     )]
@@ -280,7 +287,11 @@ fn steady_flow_method_1a(rule: &Rule, s: &Subject) -> Vec<Finding> {
     let method_1a =
         (de < EPA_MIN_DIAMETER_M || duct.area_m2() < EPA_MIN_AREA_M2) && de >= METHOD_1A_MIN_M;
     if !method_1a {
-        return vec![rule.not_applicable("the duct is not in Method 1A's 4 to 12 in range")];
+        return vec![rule.not_applicable(text!(
+            "the duct is not in Method 1A's {} to {} range",
+            q(Kind::Length, METHOD_1A_MIN_M),
+            q(Kind::Length, EPA_MIN_DIAMETER_M)
+        ))];
     }
     let valid: Vec<_> = s.runs.iter().filter(|r| r.valid).collect();
     if valid.len() < 2 {
@@ -306,19 +317,19 @@ fn steady_flow_method_1a(rule: &Rule, s: &Subject) -> Vec<Finding> {
         status,
         Some(worst.0),
         "1",
-        format!(
+        text!(
             "largest change between consecutive traverses {} (run {} to run {}), limit ±{}{}",
-            pct(worst.0),
-            worst.1,
-            worst.2,
-            pct(limit),
+            percent(worst.0),
+            worst.1.to_string(),
+            worst.2.to_string(),
+            percent(limit),
             if status == Status::Pass {
-                String::new()
+                Text::new()
             } else {
-                format!(
-                    ": the flow was not steady (largest change {})",
-                    num(worst.0 * 100.0)
-                ) + " %"
+                text!(
+                    ": the flow was not steady (largest change {} %)",
+                    number(worst.0 * 100.0)
+                )
             }
         ),
         &[],
@@ -364,7 +375,7 @@ mod tests {
         let f = run_finding(&a, 1, "leak-check");
         assert_eq!(f.status, Status::Fail);
         assert!(
-            f.message.starts_with(
+            f.message.to_string().starts_with(
                 "RUN 2 IS INVALID AND EXCLUDED FROM THE AVERAGE: the post-run leak check failed"
             ),
             "{}",
@@ -372,7 +383,11 @@ mod tests {
         );
         let f = run_finding(&a, 2, "leak-check");
         assert_eq!(f.status, Status::Fail);
-        assert!(f.message.contains("not recorded"), "{}", f.message);
+        assert!(
+            f.message.to_string().contains("not recorded"),
+            "{}",
+            f.message
+        );
         // a missing pre-run check is a warning; the run counts
         assert_eq!(run_finding(&a, 3, "leak-check").status, Status::Warn);
         assert_eq!(
@@ -419,7 +434,7 @@ mod tests {
         let a = assess_text(&survey(EPA_SURVEY, &["1"], ""), &[("run1.csv", c)]);
         let f = run_finding(&a, 0, "stack-temperature-range");
         assert_eq!(f.status, Status::Fail);
-        assert!(f.message.contains("A4"), "{}", f.message);
+        assert!(f.message.to_string().contains("A4"), "{}", f.message);
         // a 100 °F spread (55.6 K > 50 K) warns
         let mut t = EPA_T_F;
         t[0] = 200.0;
@@ -507,6 +522,6 @@ mod tests {
         let a = hvac("\"185 F\"");
         let f = run_finding(&a, 0, "air-temperature-range");
         assert_eq!(f.status, Status::Fail, "{}", f.message);
-        assert!(f.message.contains("176.0 °F"), "{}", f.message);
+        assert!(f.message.to_string().contains("176.0 °F"), "{}", f.message);
     }
 }

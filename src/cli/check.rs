@@ -1,10 +1,11 @@
 //! `annulus check`: acceptance checks and data-quality findings, grouped, then the uncertainty
 //! budgets and a verdict. Exit code 3 when any check fails.
 
-use super::output::{csv_text, json_text, status, Ctx, Format, Table};
+use super::output::{csv_text, json_text, status, Ctx, Format, Table, UnitsArgs};
 use crate::assess::{Assessment, UncertaintyReport, Verdict};
 use crate::checks::{Finding, Group};
 use crate::diag::Error;
+use crate::display::DisplayTable;
 use crate::input::load;
 use crate::pipeline::evaluate_and_assess;
 use clap::Args;
@@ -20,6 +21,8 @@ pub struct CheckArgs {
     /// Show passing and not-applicable checks too (the table shows warnings and failures first).
     #[arg(long)]
     pub all: bool,
+    #[command(flatten)]
+    pub units: UnitsArgs,
 }
 
 const GROUPS: [(Group, &str); 5] = [
@@ -38,7 +41,7 @@ fn rows(a: &Assessment) -> Vec<(Option<&str>, &Finding)> {
     v
 }
 
-fn budget_table(name: &str, u: &UncertaintyReport) -> String {
+fn budget_table(name: &str, u: &UncertaintyReport, width: usize) -> String {
     let mut t = Table::new(&["component", "u (rel)", "sensitivity", "dof"]).right(&[1, 2, 3]);
     for c in &u.components {
         t.row(vec![
@@ -53,7 +56,7 @@ fn budget_table(name: &str, u: &UncertaintyReport) -> String {
     format!(
         "\nuncertainty, {name} (spatial integration: {})\n{}combined {:.2} %, effective dof {}, k = {:.3}, expanded ±{:.2} % (about 95 %)\n",
         u.spatial_method,
-        t.render(),
+        t.fit(width),
         u.combined_relative * 100.0,
         u.effective_dof.map(|d| format!("{d:.1}")).unwrap_or_else(|| "∞".into()),
         u.coverage_factor,
@@ -61,8 +64,18 @@ fn budget_table(name: &str, u: &UncertaintyReport) -> String {
     )
 }
 
+/// A finding's words in the screen's units, with how the survey changed the check.
+fn message(f: &Finding, units: &DisplayTable) -> String {
+    let mut msg = f.message.render(units);
+    if let Some(s) = &f.setting {
+        msg += &format!(" [{}]", s.render(units));
+    }
+    msg
+}
+
 pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
     let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
+    let units = args.units.table(e.convention.display_table());
     let text = match args.format {
         Format::Json => json_text(&a),
         Format::Csv => {
@@ -76,12 +89,14 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                         f.status.name().to_string(),
                         f.measured.map(|m| format!("{m}")).unwrap_or_default(),
                         f.unit.to_string(),
-                        f.limit.clone(),
+                        f.limit.render(&units),
                         f.source.clone(),
-                        f.message.clone(),
+                        f.message.render(&units),
                     ]
                 })
                 .collect();
+            // `measured` is SI, in the `unit` the next column names; the words are in the
+            // screen's units
             csv_text(
                 &[
                     "run", "group", "id", "status", "measured", "unit", "limit", "source",
@@ -94,7 +109,7 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
             let mut out = format!("{}\n", e.loaded.survey.title);
             let all = rows(&a);
             for (g, name) in GROUPS {
-                let mut t = Table::new(&["status", "run", "check", "finding"]);
+                let mut t = Table::new(&["status", "run", "check", "finding"]).wrap(&[3]);
                 let mut shown = 0;
                 let mut hidden = 0;
                 let mut items: Vec<&(Option<&str>, &Finding)> =
@@ -111,10 +126,7 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                         continue;
                     }
                     shown += 1;
-                    let mut msg = f.message.clone();
-                    if let Some(s) = &f.setting {
-                        msg += &format!(" [{s}]");
-                    }
+                    let msg = message(f, &units);
                     t.row(vec![
                         status(f.status.name(), ctx.color),
                         run.unwrap_or("").to_string(),
@@ -133,13 +145,13 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                 }
                 out.push('\n');
                 if shown > 0 {
-                    out += &t.render();
+                    out += &t.fit(ctx.width);
                 }
             }
             if !ctx.quiet {
                 for r in &a.runs {
                     match &r.uncertainty {
-                        Some(u) => out += &budget_table(&format!("run {}", r.id), u),
+                        Some(u) => out += &budget_table(&format!("run {}", r.id), u, ctx.width),
                         None => {
                             if let Some(n) = &r.uncertainty_note {
                                 out += &format!("\nuncertainty, run {}: {n}\n", r.id);
@@ -149,8 +161,11 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                 }
                 if let Some(avg) = &a.average {
                     if let Some(u) = &avg.uncertainty {
-                        out +=
-                            &budget_table(&format!("average of runs {}", avg.runs.join(", ")), u);
+                        out += &budget_table(
+                            &format!("average of runs {}", avg.runs.join(", ")),
+                            u,
+                            ctx.width,
+                        );
                     }
                 }
             }

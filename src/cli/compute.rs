@@ -1,11 +1,12 @@
 //! `annulus compute`: velocities, density and flows for each run and their average.
 
-use super::output::{csv_text, json_text, Ctx, Format, Table};
+use super::output::{csv_text, json_text, paragraph, Ctx, Format, Table, UnitsArgs};
 use crate::diag::Error;
+use crate::display::{DisplayTable, Kind, UnitSystem};
+use crate::flow::EpaForm;
 use crate::input::load;
 use crate::pipeline::{evaluate_and_assess, run_is_valid, Evaluation};
-use crate::results::{DisplayUnits, ResultsDoc};
-use crate::units::to_unit;
+use crate::results::{PointDoc, ResultsDoc};
 use clap::Args;
 use std::path::PathBuf;
 
@@ -13,30 +14,39 @@ use std::path::PathBuf;
 pub struct ComputeArgs {
     /// The survey file (its [[run]] readings files are read relative to it).
     pub survey: PathBuf,
-    /// Output format: a table, the results JSON, or per-point CSV.
+    /// Output format: a table, the results JSON (SI), or per-point CSV (the table's units).
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
     /// Show every point's reading and velocity in the table.
     #[arg(long)]
     pub points: bool,
-    /// Print the table in SI units (m/s, m³/h, kg/h, °C) whatever the convention.
-    #[arg(long)]
-    pub si: bool,
+    #[command(flatten)]
+    pub units: UnitsArgs,
 }
 
 pub fn run(args: ComputeArgs, ctx: &Ctx) -> Result<i32, Error> {
     let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
     let doc = ResultsDoc::new(&e, &a);
+    let units = args.units.table(e.convention.display_table());
     let text = match args.format {
         Format::Json => json_text(&doc),
-        Format::Csv => points_csv(&doc),
-        Format::Table => table(&e, &doc, args.points, args.si, ctx),
+        Format::Csv => points_csv(&doc, &units),
+        Format::Table => table(&e, &doc, args.points, &units, ctx),
     };
     super::emit(&text)?;
     Ok(0)
 }
 
-fn points_csv(doc: &ResultsDoc) -> String {
+/// Every point of every run, in `t`'s units (the unit in each header, as the readings parser
+/// reads it).
+fn points_csv(doc: &ResultsDoc, t: &DisplayTable) -> String {
+    let (pos, dp, temp, angle, vel) = (
+        t.get(Kind::Position),
+        t.get(Kind::VelocityPressure),
+        t.get(Kind::Temperature),
+        t.get(Kind::Angle),
+        t.get(Kind::Velocity),
+    );
     let mut rows = Vec::new();
     for r in &doc.runs {
         for p in &r.points {
@@ -44,11 +54,11 @@ fn points_csv(doc: &ResultsDoc) -> String {
                 r.id.clone(),
                 p.line.clone(),
                 p.point.to_string(),
-                format!("{:.6}", p.position_m),
-                format!("{:.4}", p.dp_pa),
-                format!("{:.3}", p.temperature_k),
-                p.yaw_deg.map(|v| format!("{v}")).unwrap_or_default(),
-                format!("{:.5}", p.velocity_m_s),
+                pos.csv(p.position_m),
+                dp.csv(p.dp_pa),
+                temp.csv(p.temperature_k),
+                p.yaw_deg.map(|v| angle.csv(v)).unwrap_or_default(),
+                vel.csv(p.velocity_m_s),
                 format!("{}", p.weight),
                 p.adjusted.to_string(),
                 p.negative.to_string(),
@@ -60,11 +70,11 @@ fn points_csv(doc: &ResultsDoc) -> String {
             "run",
             "line",
             "point",
-            "position[m]",
-            "dp[Pa]",
-            "temperature[K]",
-            "yaw[deg]",
-            "velocity[m/s]",
+            &pos.header("position"),
+            &dp.header("dp"),
+            &temp.header("temperature"),
+            &angle.header("yaw"),
+            &vel.header("velocity"),
             "weight",
             "adjusted",
             "negative",
@@ -73,65 +83,84 @@ fn points_csv(doc: &ResultsDoc) -> String {
     )
 }
 
-fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, si: bool, ctx: &Ctx) -> String {
-    let s = &e.loaded.survey;
-    let u = if si {
-        DisplayUnits::si()
-    } else {
-        DisplayUnits::for_convention(&e.convention)
+/// The Method 2 working figures in the method's own units, shown when the screen is in them.
+fn epa_figures(f: &crate::flow::run::EpaFigures, t: &DisplayTable) -> Option<String> {
+    let (own, root, temp, pressure) = match f.form {
+        EpaForm::English => (UnitSystem::InchPound, "√inH2O", "°R", "inHg"),
+        EpaForm::Metric => (UnitSystem::EpaMetric, "√mmH2O", "K", "mmHg"),
     };
+    (t.system == own).then(|| {
+        format!(
+            "Method 2 working figures: (√Δp)avg {:.6} {root}, Ts {:.1} {temp}, Ps {:.4} {pressure}",
+            f.sqrt_dp_avg, f.ts_abs, f.ps
+        )
+    })
+}
+
+fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, t: &DisplayTable, ctx: &Ctx) -> String {
+    let s = &e.loaded.survey;
+    let c = &e.convention;
+    let sh = |k: Kind| t.get(k);
     let mut out = format!("{}\n", s.title);
     if let Some(site) = &s.site {
         out += &format!("site        {site}\n");
     }
     out += &format!("date        {}\n", s.date);
     out += &format!(
-        "plane       {} points ({}), area {:.4} m²\n",
-        doc.points_per_run, doc.layout_method, doc.area_m2
+        "plane       {} points ({}), area {}\n",
+        doc.points_per_run,
+        doc.layout_method,
+        t.format(Kind::Area, doc.area_m2)
     );
-    out += &format!("convention  {}\n", e.convention.id.name());
+    out += &format!("convention  {}\n", c.id.name());
     if !ctx.quiet {
-        for n in &doc.convention_notes {
-            out += &format!("            {n}\n");
+        for n in c.formulas() {
+            out += &paragraph("            ", &n, ctx.width);
         }
+        let own_units = t.system == UnitSystem::of(c.id, c.epa_form == EpaForm::Metric);
+        let reference = match c.reference_as_written() {
+            Some(words) if own_units => words.to_string(),
+            _ => t.reference(c.reference_temperature_k, c.reference_pressure_pa),
+        };
+        out += &format!("            reference {reference}, {}\n", c.basis_words());
+    }
+    if t.system != UnitSystem::of(c.id, c.epa_form == EpaForm::Metric) {
+        out += &format!("units       {} (asked for)\n", t.system.name());
     }
     out.push('\n');
-    let (tu, tdec) = match (si, s.convention.unit_system()) {
-        (false, crate::units::UnitSystem::Us) => ("F", 1),
-        _ => ("C", 1),
-    };
-    let mut t = Table::new(&[
+    let heading = |name: &str, k: Kind| format!("{name} [{}]", sh(k).symbol);
+    let mut table = Table::new(&[
         "run",
         "",
-        &format!("T [°{tu}]"),
-        "ρ [kg/m³]",
-        &format!("v [{}]", u.velocity.unit),
-        &format!("Q [{}]", u.actual.unit),
-        &format!("Q [{}]", u.standard.unit),
-        &format!("Q [{}]", u.dry_standard.unit),
-        &format!("ṁ [{}]", u.mass.unit),
+        &heading("T", Kind::Temperature),
+        &heading("ρ", Kind::Density),
+        &heading("v", Kind::Velocity),
+        &t.flow_heading(Kind::ActualFlow),
+        &t.flow_heading(Kind::StandardFlow),
+        &t.flow_heading(Kind::DryStandardFlow),
+        &heading("ṁ", Kind::MassFlow),
     ])
     .right(&[2, 3, 4, 5, 6, 7, 8]);
     for (r, spec) in doc.runs.iter().zip(&s.runs) {
         let valid = run_is_valid(spec, s.convention);
-        t.row(vec![
+        table.row(vec![
             r.id.clone(),
             if valid {
                 String::new()
             } else {
                 super::output::status("excluded", ctx.color)
             },
-            format!("{:.tdec$}", to_unit(r.mean_temperature_k, tu)),
-            format!("{:.4}", r.density_kg_m3),
-            u.velocity.fmt(r.mean_velocity_m_s),
-            u.actual.fmt(r.actual_flow_m3_s),
-            u.standard.fmt(r.standard_flow_m3_s),
-            u.dry_standard.fmt(r.dry_standard_flow_m3_s),
-            u.mass.fmt(r.mass_flow_kg_s),
+            t.number(Kind::Temperature, r.mean_temperature_k),
+            t.number(Kind::Density, r.density_kg_m3),
+            t.number(Kind::Velocity, r.mean_velocity_m_s),
+            t.number(Kind::ActualFlow, r.actual_flow_m3_s),
+            t.number(Kind::StandardFlow, r.standard_flow_m3_s),
+            t.number(Kind::DryStandardFlow, r.dry_standard_flow_m3_s),
+            t.number(Kind::MassFlow, r.mass_flow_kg_s),
         ]);
     }
     if let Some(a) = &doc.average {
-        t.row(vec![
+        table.row(vec![
             "average".into(),
             format!(
                 "{} run{}",
@@ -140,22 +169,21 @@ fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, si: bool, ctx: &Ctx) ->
             ),
             String::new(),
             String::new(),
-            u.velocity.fmt(a.mean_velocity_m_s),
-            u.actual.fmt(a.actual_flow_m3_s),
-            u.standard.fmt(a.standard_flow_m3_s),
-            u.dry_standard.fmt(a.dry_standard_flow_m3_s),
-            u.mass.fmt(a.mass_flow_kg_s),
+            t.number(Kind::Velocity, a.mean_velocity_m_s),
+            t.number(Kind::ActualFlow, a.actual_flow_m3_s),
+            t.number(Kind::StandardFlow, a.standard_flow_m3_s),
+            t.number(Kind::DryStandardFlow, a.dry_standard_flow_m3_s),
+            t.number(Kind::MassFlow, a.mass_flow_kg_s),
         ]);
     }
-    out += &t.render();
+    out += &table.fit(ctx.width);
     let u95 = |u: &Option<crate::assess::UncertaintyReport>| {
         u.as_ref()
             .map(|x| format!("±{:.1} %", x.expanded_relative * 100.0))
             .unwrap_or_else(|| "—".into())
     };
     out += &format!(
-        "expanded uncertainty (95 %): {}{}
-",
+        "expanded uncertainty (95 %): {}{}\n",
         doc.runs
             .iter()
             .map(|r| format!("run {} {}", r.id, u95(&r.uncertainty)))
@@ -214,67 +242,85 @@ fn table(e: &Evaluation, doc: &ResultsDoc, points: bool, si: bool, ctx: &Ctx) ->
     if !ctx.quiet {
         out.push('\n');
         for r in &doc.runs {
-            let diff = (r.sqrt_of_mean_dp_velocity_m_s / r.mean_velocity_m_s - 1.0) * 100.0;
-            let mut line = format!(
-                "run {}: Bws {:.2} % ({}), Ms {:.3} g/mol, p {:.0} Pa",
-                r.id,
-                r.moisture_fraction * 100.0,
-                r.moisture_basis,
-                r.wet_molar_mass_g_mol,
-                r.absolute_pressure_pa
-            );
-            if let Some(f) = &r.epa {
-                line += &format!(
-                    "; (√Δp)avg {:.6}, Ts {:.1}, Ps {:.5}, Ms {:.3}",
-                    f.sqrt_dp_avg, f.ts_abs, f.ps, f.ms
-                );
-            }
-            if r.wall_factor != 1.0 {
-                line += &format!("; wall factor {:.4}", r.wall_factor);
-            }
-            out += &line;
-            out.push('\n');
-            out += &format!(
-                "        √(mean Δp) instead of mean √Δp would report {} {} ({:+.3} %)\n",
-                u.velocity.fmt(r.sqrt_of_mean_dp_velocity_m_s),
-                u.velocity.unit,
-                diff
-            );
+            out += &run_notes(r, t, ctx.width);
         }
     }
     if points {
         for r in &doc.runs {
             out += &format!("\nrun {} points\n", r.id);
-            let mut t = Table::new(&[
-                "line",
-                "point",
-                "Δp [Pa]",
-                &format!("T [°{tu}]"),
-                "yaw [°]",
-                &format!("v [{}]", u.velocity.unit),
-                "note",
-            ])
-            .right(&[1, 2, 3, 4, 5]);
-            for p in &r.points {
-                let mut note = Vec::new();
-                if p.adjusted {
-                    note.push("adjusted");
-                }
-                if p.negative {
-                    note.push("negative Δp");
-                }
-                t.row(vec![
-                    p.line.clone(),
-                    p.point.to_string(),
-                    format!("{:.2}", p.dp_pa),
-                    format!("{:.1}", to_unit(p.temperature_k, tu)),
-                    p.yaw_deg.map(|y| format!("{y:.0}")).unwrap_or_default(),
-                    u.velocity.fmt(p.velocity_m_s),
-                    note.join(", "),
-                ]);
-            }
-            out += &t.render();
+            out += &points_table(&r.points, t).fit(ctx.width);
         }
     }
     out
+}
+
+/// How a run's gas was worked out, the method's own figures, and what the √(mean Δp) mistake
+/// would have reported.
+fn run_notes(r: &crate::results::RunDoc, t: &DisplayTable, width: usize) -> String {
+    let lead = format!("run {}: ", r.id);
+    let indent = " ".repeat(lead.chars().count());
+    let percent = t.get(Kind::Percent);
+    let molar = t.get(Kind::MolarMass);
+    let mut line = format!(
+        "Bws {} ({}), Ms {}, p {}",
+        percent.with_unit(percent.number_with(r.moisture_fraction, 2)),
+        r.moisture_basis,
+        molar.with_unit(molar.number_with(r.wet_molar_mass_g_mol, 3)),
+        t.format(Kind::AbsolutePressure, r.absolute_pressure_pa)
+    );
+    if r.wall_factor != 1.0 {
+        line += &format!("; wall factor {:.4}", r.wall_factor);
+    }
+    let mut out = paragraph(&lead, &line, width);
+    if let Some(f) = r.epa.as_ref().and_then(|f| epa_figures(f, t)) {
+        out += &paragraph(&indent, &f, width);
+    }
+    let diff = (r.sqrt_of_mean_dp_velocity_m_s / r.mean_velocity_m_s - 1.0) * 100.0;
+    out += &paragraph(
+        &indent,
+        &format!(
+            "√(mean Δp) instead of mean √Δp would report {} ({:+.3} %)",
+            t.format(Kind::Velocity, r.sqrt_of_mean_dp_velocity_m_s),
+            diff
+        ),
+        width,
+    );
+    out
+}
+
+/// One run's points: reading, temperature, yaw and velocity in `t`'s units.
+fn points_table(points: &[PointDoc], t: &DisplayTable) -> Table {
+    let heading = |name: &str, k: Kind| format!("{name} [{}]", t.get(k).symbol);
+    let mut table = Table::new(&[
+        "line",
+        "point",
+        &heading("Δp", Kind::VelocityPressure),
+        &heading("T", Kind::Temperature),
+        &heading("yaw", Kind::Angle),
+        &heading("v", Kind::Velocity),
+        "note",
+    ])
+    .right(&[1, 2, 3, 4, 5])
+    .wrap(&[6]);
+    for p in points {
+        let mut note = Vec::new();
+        if p.adjusted {
+            note.push("adjusted");
+        }
+        if p.negative {
+            note.push("negative Δp");
+        }
+        table.row(vec![
+            p.line.clone(),
+            p.point.to_string(),
+            t.number(Kind::VelocityPressure, p.dp_pa),
+            t.number(Kind::Temperature, p.temperature_k),
+            p.yaw_deg
+                .map(|y| t.number(Kind::Angle, y))
+                .unwrap_or_default(),
+            t.number(Kind::Velocity, p.velocity_m_s),
+            note.join(", "),
+        ]);
+    }
+    table
 }

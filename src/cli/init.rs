@@ -4,9 +4,11 @@ use super::layout::plane_for;
 use super::output::Ctx;
 use super::plane_args::{PlaneArgs, PlaneSetting};
 use crate::diag::{Diagnostic, Error, Location};
+use crate::display::{Kind, UnitSystem};
 use crate::geometry::Shape;
 use crate::plane::Plane;
 use crate::survey::ConventionId;
+use crate::units::{PA_PER_INH2O, PA_PER_INHG};
 use clap::Args;
 use std::path::{Path, PathBuf};
 
@@ -31,22 +33,9 @@ pub struct InitArgs {
     pub force: bool,
 }
 
-fn units(c: ConventionId) -> (&'static str, &'static str, &'static str, &'static str) {
-    // (dp unit, temperature unit, length unit, pressure unit for barometric)
-    match c {
-        ConventionId::EpaMethod2 | ConventionId::HvacIp => ("inH2O", "F", "in", "inHg"),
-        ConventionId::Iso16911 | ConventionId::HvacSi => ("Pa", "C", "mm", "kPa"),
-    }
-}
-
-fn fmt_len(v: f64, unit: &str) -> String {
-    let x = crate::units::to_unit(v, unit);
-    let s = format!("{x:.3}");
-    let s = s.trim_end_matches('0').trim_end_matches('.');
-    format!("{s} {unit}")
-}
-
-/// The survey text for a plane: every section present, values to fill left empty.
+/// The survey text for a plane: every section present, values to fill left empty, quantities
+/// and examples in the job's units (`--units` / `--si` choose others; `epa-metric` makes an EPA
+/// Method 2 survey reduce in the method's metric units).
 pub fn survey_text(
     s: &PlaneSetting,
     plane: &Plane,
@@ -54,23 +43,29 @@ pub fn survey_text(
     title: &str,
     date: &str,
 ) -> String {
-    let (_, _, lu, pu) = units(s.convention);
+    let t = &s.table;
+    let len = |m: f64| t.get(Kind::Position).input(m);
     let l = &plane.layout;
     let duct = match l.duct().shape() {
         Shape::Round { diameter_m } => {
-            format!("shape = \"round\"\ndiameter = \"{}\"          # inside diameter", fmt_len(diameter_m, lu))
+            format!("shape = \"round\"\ndiameter = \"{}\"          # inside diameter", len(diameter_m))
         }
         Shape::Rectangular { width_m, height_m } => format!(
             "shape = \"rectangular\"\nwidth = \"{}\"             # inside, the side with the ports\nheight = \"{}\"",
-            fmt_len(width_m, lu),
-            fmt_len(height_m, lu)
+            len(width_m),
+            len(height_m)
         ),
     };
+    // examples in the job's units: 29.62 inHg barometric, -0.85 inH2O static, 68 °F
+    let barometric = t.get(Kind::Barometric).input(29.62 * PA_PER_INHG);
+    let static_p = t.get(Kind::StaticPressure).input(-0.85 * PA_PER_INH2O);
+    let air = t.get(Kind::Temperature).input(293.15);
+    let epa_metric = s.convention == ConventionId::EpaMethod2 && t.system == UnitSystem::EpaMetric;
     let dist = |d: Option<f64>| d.map(|x| format!("{x:.1} D")).unwrap_or_default();
     let stack = !s.convention.is_hvac();
     let mut t = format!(
         r#"# annulus survey: fill in the empty values, then `annulus compute` this file.
-# Quantities are strings with a unit ("29.92 inHg", "68 F", "8.1 %"); see the README.
+# Quantities are strings with a unit ("{barometric}", "{air}", "8.1 %"); see the README.
 
 [survey]
 title = "{title}"
@@ -98,14 +93,19 @@ coefficient = {cp}
 serial = ""
 calibrated = ""                  # YYYY-MM-DD of the probe's calibration
 
-[gas]
-barometric = ""                  # absolute, e.g. "29.62 {pu}"
-static = ""                      # duct static (gauge), e.g. "-0.85 inH2O"
+{flow}[gas]
+barometric = ""                  # absolute, e.g. "{barometric}"
+static = ""                      # duct static (gauge), e.g. "{static_p}"
 "#,
         conv = s.convention.name(),
         up = dist(s.upstream_d),
         down = dist(s.downstream_d),
-        port = fmt_len(s.port_length_m, lu),
+        port = len(s.port_length_m),
+        flow = if epa_metric {
+            "[flow]\nepa_units = \"metric\"             # reduced in EPA Method 2's metric units\n\n"
+        } else {
+            ""
+        },
         method = l.method(),
         lines = l.lines(),
         ppl = l.points_per_line(),
@@ -131,10 +131,11 @@ static = ""                      # duct static (gauge), e.g. "-0.85 inH2O"
 
 /// The blank readings sheet: one row per point, in layout order.
 pub fn readings_text(s: &PlaneSetting, plane: &Plane) -> String {
-    let (dpu, tu, _, _) = units(s.convention);
     let yaw = !s.convention.is_hvac();
     let mut t = format!(
-        "line,point,dp[{dpu}],temperature[{tu}]{}\n",
+        "line,point,{},{}{}\n",
+        s.table.get(Kind::VelocityPressure).header("dp"),
+        s.table.get(Kind::Temperature).header("temperature"),
         if yaw { ",yaw[deg]" } else { "" }
     );
     for p in plane.layout.points() {

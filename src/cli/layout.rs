@@ -1,12 +1,13 @@
 //! `annulus layout`: point positions, probe marks, and the count the rule books ask for.
 
-use super::output::{csv_text, json_text, Ctx, Format, Table};
+use super::output::{csv_text, json_text, paragraph, Ctx, Format, Table};
 use super::plane_args::{PlaneArgs, PlaneSetting};
 use crate::diag::Error;
+use crate::display::{DisplayTable, Kind};
 use crate::geometry::Shape;
+use crate::layout::advisor::{Requirement, SiteRating};
 use crate::layout::{probe_marks, Point, ProbeMark};
 use crate::plane::{lay_out, Plane};
-use crate::units::{format_in, Dimension};
 use clap::Args;
 use serde::Serialize;
 use std::path::PathBuf;
@@ -41,6 +42,35 @@ struct JsonPoint<'a> {
     line_angle_deg: Option<f64>,
 }
 
+/// A rule book's minimum, its words in the job's units.
+#[derive(Serialize)]
+struct JsonRequirement {
+    framework: &'static str,
+    minimum_points: Option<usize>,
+    site: SiteRating,
+    confirmed: bool,
+    basis: String,
+}
+
+impl JsonRequirement {
+    fn new(r: &Requirement, table: &DisplayTable) -> JsonRequirement {
+        JsonRequirement {
+            framework: r.framework,
+            minimum_points: r.minimum_points,
+            site: r.site,
+            confirmed: r.confirmed,
+            basis: r.basis.render(table),
+        }
+    }
+}
+
+#[derive(Serialize)]
+struct JsonAdvice {
+    epa_method_1: JsonRequirement,
+    en_15259: JsonRequirement,
+    hvac: JsonRequirement,
+}
+
 #[derive(Serialize)]
 struct JsonLayout<'a> {
     area_m2: f64,
@@ -51,7 +81,7 @@ struct JsonLayout<'a> {
     points_per_line: usize,
     required_points: Option<usize>,
     wall_rule: Option<String>,
-    advice: &'a crate::layout::Advice,
+    advice: JsonAdvice,
     points: Vec<JsonPoint<'a>>,
 }
 
@@ -93,7 +123,7 @@ pub fn run(args: LayoutArgs, ctx: &Ctx) -> Result<i32, Error> {
     let marks = probe_marks(&plane.layout, setting.port_length_m, setting.mark_step);
     let text = match args.format {
         Format::Json => json_text(&json(&setting, &plane, &marks)),
-        Format::Csv => csv(&plane, &marks),
+        Format::Csv => csv(&plane, &marks, &setting.table),
         Format::Table => table(&setting, &plane, &marks, ctx),
     };
     super::emit(&text)?;
@@ -119,7 +149,16 @@ fn json<'a>(s: &'a PlaneSetting, plane: &'a Plane, marks: &'a [ProbeMark]) -> Js
         wall_rule: l
             .wall_rule()
             .map(|(r, m)| format!("{} ({:.4} m from the wall)", r.citation(), m)),
-        advice: &plane.advice,
+        advice: {
+            // numbers in the keys stay SI; the sentences are in the job's units
+            let job = s.job;
+            let a = &plane.advice;
+            JsonAdvice {
+                epa_method_1: JsonRequirement::new(&a.epa_method_1, &job),
+                en_15259: JsonRequirement::new(&a.en_15259, &job),
+                hvac: JsonRequirement::new(&a.hvac, &job),
+            }
+        },
         points: l
             .points()
             .iter()
@@ -140,7 +179,9 @@ fn json<'a>(s: &'a PlaneSetting, plane: &'a Plane, marks: &'a [ProbeMark]) -> Js
     }
 }
 
-fn csv(plane: &Plane, marks: &[ProbeMark]) -> String {
+/// The points as CSV, lengths in the screen's units (the unit in each header).
+fn csv(plane: &Plane, marks: &[ProbeMark], table: &DisplayTable) -> String {
+    let pos = table.get(Kind::Position);
     let rows: Vec<Vec<String>> = plane
         .layout
         .points()
@@ -150,10 +191,10 @@ fn csv(plane: &Plane, marks: &[ProbeMark]) -> String {
             vec![
                 p.line.clone(),
                 p.point.to_string(),
-                format!("{:.6}", p.position_m),
+                pos.csv(p.position_m),
                 format!("{:.6}", p.fraction),
-                format!("{:.6}", m.insertion_m),
-                format!("{:.6}", m.mark_m),
+                pos.csv(m.insertion_m),
+                pos.csv(m.mark_m),
                 format!("{}", p.weight),
                 p.adjusted.to_string(),
             ]
@@ -163,10 +204,10 @@ fn csv(plane: &Plane, marks: &[ProbeMark]) -> String {
         &[
             "line",
             "point",
-            "position[m]",
+            &pos.header("position"),
             "fraction",
-            "insertion[m]",
-            "mark[m]",
+            &pos.header("insertion"),
+            &pos.header("mark"),
             "weight",
             "adjusted",
         ],
@@ -176,40 +217,36 @@ fn csv(plane: &Plane, marks: &[ProbeMark]) -> String {
 
 fn table(s: &PlaneSetting, plane: &Plane, marks: &[ProbeMark], ctx: &Ctx) -> String {
     let l = &plane.layout;
-    let sys = s.convention.unit_system();
-    let len_unit = sys.unit_for(Dimension::Length);
-    let dec = if len_unit == "in" { 2 } else { 0 };
+    let t = &s.table;
+    let length = |m: f64| t.format(Kind::Length, m);
     let mut out = String::new();
     let shape = match l.duct().shape() {
-        Shape::Round { diameter_m } => format!(
-            "round, {} inside diameter",
-            format_in(diameter_m, len_unit, dec)
-        ),
+        Shape::Round { diameter_m } => format!("round, {} inside diameter", length(diameter_m)),
         Shape::Rectangular { width_m, height_m } => format!(
             "rectangular, {} wide (port side) × {} high",
-            format_in(width_m, len_unit, dec),
-            format_in(height_m, len_unit, dec)
+            length(width_m),
+            length(height_m)
         ),
     };
     out += &format!("plane      {shape}\n");
-    out += &format!(
-        "area       {:.4} m² ({:.3} ft²)\n",
-        l.duct().area_m2(),
-        l.duct().area_m2() / (0.3048 * 0.3048)
-    );
-    out += &format!(
-        "method     {} — {} lines × {} points = {} ({})\n",
-        l.method(),
-        l.lines(),
-        l.points_per_line(),
-        l.total_points(),
-        l.source()
+    out += &format!("area       {}\n", t.format(Kind::Area, l.duct().area_m2()));
+    out += &paragraph(
+        "method     ",
+        &format!(
+            "{} — {} lines × {} points = {} ({})",
+            l.method(),
+            l.lines(),
+            l.points_per_line(),
+            l.total_points(),
+            l.source()
+        ),
+        ctx.width,
     );
     if let Some((rule, min)) = l.wall_rule() {
         out += &format!(
             "wall rule  {}: no point nearer the wall than {}\n",
             rule.citation(),
-            format_in(min, len_unit, if len_unit == "in" { 2 } else { 1 })
+            t.quote(Kind::Length, min)
         );
     }
     let req = match plane.required_points {
@@ -223,7 +260,11 @@ fn table(s: &PlaneSetting, plane: &Plane, marks: &[ProbeMark], ctx: &Ctx) -> Str
             &plane.advice.en_15259,
             &plane.advice.hvac,
         ] {
-            out += &format!("  {:<20} {}\n", r.framework, r.basis);
+            out += &paragraph(
+                &format!("  {:<20} ", r.framework),
+                &r.basis.render(t),
+                ctx.width,
+            );
         }
     }
     if let Some(n) = plane.required_points {
@@ -236,25 +277,24 @@ fn table(s: &PlaneSetting, plane: &Plane, marks: &[ProbeMark], ctx: &Ctx) -> Str
         }
     }
     out.push('\n');
-    let mut t = Table::new(&[
+    let pos = t.get(Kind::Position);
+    let mut table = Table::new(&[
         "line",
         "point",
         "% of line",
-        &format!("from wall [{len_unit}]"),
-        &format!("mark [{len_unit}]"),
+        &format!("from wall [{}]", pos.symbol),
+        &format!("mark [{}]", pos.symbol),
         "note",
     ])
-    .right(&[1, 2, 3, 4]);
+    .right(&[1, 2, 3, 4])
+    .wrap(&[5]);
     for (p, m) in l.points().iter().zip(marks) {
-        let conv = |v: f64| crate::units::to_unit(v, len_unit);
-        let ldec = if len_unit == "in" { 3 } else { 1 };
-        let mdec = if len_unit == "in" { 3 } else { 0 };
-        t.row(vec![
+        table.row(vec![
             p.line.clone(),
             p.point.to_string(),
-            format!("{:.1}", p.fraction * 100.0),
-            format!("{:.ldec$}", conv(p.position_m)),
-            format!("{:.mdec$}", conv(m.mark_m)),
+            crate::display::fixed(p.fraction * 100.0, 1),
+            pos.number(p.position_m),
+            pos.number(m.mark_m),
             if p.adjusted {
                 "adjusted to the wall limit".into()
             } else {
@@ -262,7 +302,7 @@ fn table(s: &PlaneSetting, plane: &Plane, marks: &[ProbeMark], ctx: &Ctx) -> Str
             },
         ]);
     }
-    out += &t.render();
+    out += &table.fit(ctx.width);
     if !ctx.quiet {
         out += "\nMarks add the port length; measure from the outer end of the port nipple.\n";
     }

@@ -63,7 +63,7 @@ pub enum Command {
     Init(init::InitArgs),
     /// Velocities, density and flows for each run and their average.
     #[command(
-        after_help = "Examples:\n  annulus compute sample-data/stack/survey.toml\n  annulus compute sample-data/hvac/survey.toml --format json"
+        after_help = "Examples:\n  annulus compute sample-data/stack/survey.toml\n  annulus compute sample-data/stack/survey.toml --points --si\n  annulus compute sample-data/hvac/survey.toml --format json"
     )]
     Compute(compute::ComputeArgs),
     /// Acceptance checks, data-quality findings and the uncertainty budget; exit 3 if any check fails.
@@ -129,6 +129,7 @@ where
     let ctx = output::Ctx {
         quiet: cli.quiet,
         color,
+        width: output::terminal_width(),
     };
     let result = match cli.command {
         Command::Layout(a) => layout::run(a, &ctx),

@@ -1,7 +1,9 @@
 //! Arguments that describe a plane (shared by `layout` and `init`) and their validation.
 
 use super::choices::one_of;
+use super::output::UnitsArgs;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
+use crate::display::{DisplayTable, UnitSystem};
 use crate::geometry::Duct;
 use crate::layout::{MarkStep, Method};
 use crate::survey::{ConventionId, LayoutRequest};
@@ -42,9 +44,11 @@ pub struct PlaneArgs {
     /// Straight run from the plane to the next disturbance or the exit, e.g. `3D`.
     #[arg(long, value_name = "DISTANCE")]
     pub downstream: Option<String>,
-    /// Rounding of insertion marks: `1/8in`, `1mm`, `none` (default by the convention's units).
+    /// Rounding of insertion marks: `1/8in`, `1mm`, `none` (default by the units shown).
     #[arg(long, value_name = "STEP")]
     pub mark_step: Option<String>,
+    #[command(flatten)]
+    pub units: UnitsArgs,
 }
 
 /// A validated plane description.
@@ -58,6 +62,10 @@ pub struct PlaneSetting {
     pub port_length_m: f64,
     pub mark_step: MarkStep,
     pub survey_path: Option<PathBuf>,
+    /// The job's own units: the convention's, EPA metric when the survey reduces in metric.
+    pub job: DisplayTable,
+    /// The units the plane is shown in: the job's, or what `--si` / `--units` asked for.
+    pub table: DisplayTable,
 }
 
 fn flag_err(flag: &str, raw: &str, e: impl std::fmt::Display, hint: String) -> Diagnostic {
@@ -213,6 +221,10 @@ impl PlaneArgs {
             Some(raw) => quantity(&mut d, "port-length", raw, Dimension::Length).unwrap_or(0.0),
             None => base.map(|s| s.port_length_m).unwrap_or(0.0),
         };
+        let epa_metric =
+            convention == ConventionId::EpaMethod2 && base.is_some_and(|s| s.epa_metric);
+        let job = DisplayTable::new(convention, UnitSystem::of(convention, epa_metric));
+        let table = self.units.table(job);
         let mark_step = match self.mark_step.as_deref() {
             Some("none") => MarkStep::None,
             Some(raw) => match quantity(&mut d, "mark-step", raw, Dimension::Length) {
@@ -228,10 +240,8 @@ impl PlaneArgs {
                 }
                 None => MarkStep::None,
             },
-            None => match convention.unit_system() {
-                crate::units::UnitSystem::Us => MarkStep::EIGHTH_INCH,
-                crate::units::UnitSystem::Si => MarkStep::MILLIMETRE,
-            },
+            None if table.system.is_inch_pound() => MarkStep::EIGHTH_INCH,
+            None => MarkStep::MILLIMETRE,
         };
         let survey_path = survey.map(|(p, _)| p);
         match duct {
@@ -244,6 +254,8 @@ impl PlaneArgs {
                 port_length_m,
                 mark_step,
                 survey_path,
+                job,
+                table,
             }),
             _ => Err(Error::Input(d)),
         }

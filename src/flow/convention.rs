@@ -152,13 +152,48 @@ impl Convention {
         }
     }
 
-    /// Lines that say how the numbers were made, printed with every result.
+    /// Lines that say how the numbers were made, printed with every result: the formulas, then
+    /// the reference conditions in SI (screens print those in their own units, see
+    /// [`Convention::formulas`] and [`Convention::basis_words`]).
     pub fn describe(&self) -> Vec<String> {
         let mut v = self.formulas();
         v.push(format!(
-            "reference {:.2} K, {:.1} Pa, {} basis{}",
+            "reference {:.2} K, {:.1} Pa, {}",
             self.reference_temperature_k,
             self.reference_pressure_pa,
+            self.basis_words()
+        ));
+        v
+    }
+
+    /// The job's own display table: the convention's unit system (EPA Method 2's metric units
+    /// when the survey reduces in metric), and whether the survey set the reference conditions.
+    pub fn display_table(&self) -> crate::display::DisplayTable {
+        use crate::display::{DisplayTable, UnitSystem};
+        let metric = self.epa_form == EpaForm::Metric;
+        DisplayTable::new(self.id, UnitSystem::of(self.id, metric))
+            .with_reference_overridden(self.overridden)
+    }
+
+    /// The standard conditions as the method itself writes them, in its own units (`528 °R,
+    /// 29.92 inHg` for EPA Method 2 English; `293 K, 760 mmHg` metric), where the method fixes
+    /// them and the survey did not set its own. EPA Method 2 converts with 460 and 273, so these
+    /// are 68 °F and 20 °C in the method's arithmetic.
+    pub fn reference_as_written(&self) -> Option<&'static str> {
+        match (self.id, self.epa_form, self.overridden) {
+            (ConventionId::EpaMethod2, EpaForm::English, false) => {
+                Some("528 °R (68 °F), 29.92 inHg")
+            }
+            (ConventionId::EpaMethod2, EpaForm::Metric, false) => Some("293 K (20 °C), 760 mmHg"),
+            _ => None,
+        }
+    }
+
+    /// The basis of the standard flows in words (`dry basis`, or `wet (by density) basis` and
+    /// whether the survey set the reference conditions).
+    pub fn basis_words(&self) -> String {
+        format!(
+            "{} basis{}",
             if self.dry_basis {
                 "dry"
             } else {
@@ -169,8 +204,7 @@ impl Convention {
             } else {
                 ""
             }
-        ));
-        v
+        )
     }
 
     /// The equations the convention computes with, in the form's own units (the report prints

@@ -174,9 +174,11 @@ fn parse_override(def: &'static checks::CheckDef, t: &Table, entry: &Field) -> O
 
 fn limit_value(f: &Field, kind: LimitKind) -> Option<f64> {
     match kind {
-        LimitKind::Quantity(dim) => match f.value {
-            toml::de::DeValue::String(_) => f.quantity(dim),
-            _ => {
+        LimitKind::Quantity(kind) => match (kind.dimension(), &f.value) {
+            // a kind without a unit (molar mass) is a plain number
+            (None, _) => f.number(),
+            (Some(dim), toml::de::DeValue::String(_)) => f.quantity(dim),
+            (Some(dim), _) => {
                 f.error(
                     format!(
                         "`{}` must be a quantity string with a unit, found `{}`",

@@ -9,6 +9,8 @@
 
 use super::rect::{tab_spacing_counts, TABLE_1_1};
 use crate::geometry::Duct;
+use crate::text;
+use crate::wording::{q, Kind, Text};
 
 const IN: f64 = 0.0254;
 
@@ -115,23 +117,28 @@ pub enum SiteRating {
 }
 
 /// The minimum under one rule book.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Requirement {
     pub framework: &'static str,
     pub minimum_points: Option<usize>,
     pub site: SiteRating,
     /// False when any step used is from memory.
     pub confirmed: bool,
-    /// The rule in words, printed on the layout and the report.
-    pub basis: String,
+    /// The rule in words, printed on the layout and the report in the job's units.
+    pub basis: Text,
 }
 
 /// Advice from all three rule books.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Advice {
     pub epa_method_1: Requirement,
     pub en_15259: Requirement,
     pub hvac: Requirement,
+}
+
+/// A straight run as the advice quotes it (`8.5 D`).
+fn diameters(d: f64) -> crate::wording::Arg {
+    q(Kind::Diameters, d)
 }
 
 /// Gives the minimum point counts for a duct and its straight runs.
@@ -166,9 +173,14 @@ fn epa(duct: &Duct, up: Option<f64>, down: Option<f64>, kind: TraverseKind) -> R
             minimum_points: None,
             site: SiteRating::NotApplicable,
             confirmed: true,
-            basis: "Method 1 does not apply below 12 in (0.30 m) diameter or 113 in² (0.071 m²): \
-                    use Method 1A (4 to 12 in, standard pitot, velocity site apart from sampling)"
-                .into(),
+            basis: text!(
+                "Method 1 does not apply below {} diameter or {}: use Method 1A ({} to {}, \
+                 standard pitot, velocity site apart from sampling)",
+                q(Kind::Length, EPA_MIN_DIAMETER_M),
+                q(Kind::Area, EPA_MIN_AREA_M2),
+                q(Kind::Length, 4.0 * IN),
+                q(Kind::Length, EPA_MIN_DIAMETER_M)
+            ),
         };
     }
     let large = d > EPA_LARGE_M;
@@ -191,13 +203,20 @@ fn epa(duct: &Duct, up: Option<f64>, down: Option<f64>, kind: TraverseKind) -> R
             minimum_points: Some(top),
             site: SiteRating::Preferred,
             confirmed: true,
-            basis: format!(
-                "{b:.1} D after the disturbance and {a:.1} D before the next meet 8 D / 2 D: \
-                 {top} points ({}) per Method 1 §11.2.1",
+            basis: text!(
+                "{} after the disturbance and {} before the next meet 8 D / 2 D: {} points \
+                 ({}) per Method 1 §11.2.1",
+                diameters(b),
+                diameters(a),
+                top,
                 if large {
-                    "diameter over 24 in"
+                    text!("diameter over {}", q(Kind::Length, EPA_LARGE_M))
                 } else {
-                    "diameter 12 to 24 in"
+                    text!(
+                        "diameter {} to {}",
+                        q(Kind::Length, EPA_MIN_DIAMETER_M),
+                        q(Kind::Length, EPA_LARGE_M)
+                    )
                 }
             ),
         };
@@ -222,18 +241,24 @@ fn epa(duct: &Duct, up: Option<f64>, down: Option<f64>, kind: TraverseKind) -> R
                 minimum_points: Some(n),
                 site: SiteRating::Acceptable,
                 confirmed: su.confirmed && sd.confirmed,
-                basis: format!(
-                    "{b:.1} D after / {a:.1} D before disturbances: {fig} gives {pu} and {pd}; the \
-                     larger, rounded to {}, is {n}{}",
+                basis: text!(
+                    "{} after / {} before disturbances: {} gives {} and {}; the larger, rounded \
+                     to {}, is {}{}",
+                    diameters(b),
+                    diameters(a),
+                    fig,
+                    pu,
+                    pd,
                     if duct.is_round() {
                         "a multiple of 4"
                     } else {
                         "a Table 1-1 count"
                     },
+                    n,
                     if su.confirmed && sd.confirmed {
-                        String::new()
+                        ""
                     } else {
-                        " (figure step from memory, not yet confirmed)".to_string()
+                        " (figure step from memory, not yet confirmed)"
                     }
                 ),
             }
@@ -243,9 +268,11 @@ fn epa(duct: &Duct, up: Option<f64>, down: Option<f64>, kind: TraverseKind) -> R
             minimum_points: None,
             site: SiteRating::BelowMinimum,
             confirmed: true,
-            basis: format!(
-                "{b:.1} D after / {a:.1} D before disturbances is below Method 1's minimum of 2 D / \
-                 0.5 D: use the alternative (directional probe) site procedure or move the plane"
+            basis: text!(
+                "{} after / {} before disturbances is below Method 1's minimum of 2 D / 0.5 D: use \
+                 the alternative (directional probe) site procedure or move the plane",
+                diameters(b),
+                diameters(a)
             ),
         },
     }
@@ -254,13 +281,17 @@ fn epa(duct: &Duct, up: Option<f64>, down: Option<f64>, kind: TraverseKind) -> R
 /// EN 15259 minimum by plane area (methods.md §1.4 [M]). Keyed on area; the rounding rule is printed.
 fn en_15259(duct: &Duct, up: Option<f64>, down: Option<f64>) -> Requirement {
     let a = duct.area_m2();
+    let area = |m2: f64| q(Kind::Area, m2);
     let (n, rule) = if a < 0.1 {
-        (1, "under 0.1 m²: 1 point".to_string())
+        (1, text!("under {}: 1 point", area(0.1)))
     } else if a <= 1.0 {
-        (4, "0.1 to 1.0 m²: 4 points".to_string())
+        (4, text!("{} to {}: 4 points", area(0.1), area(1.0)))
     } else if a <= 2.0 {
         let n = if duct.is_round() { 8 } else { 9 };
-        (n, format!("over 1.0 to 2.0 m²: {n} points"))
+        (
+            n,
+            text!("over {} to {}: {} points", area(1.0), area(2.0), n),
+        )
     } else {
         let raw = ((4.0 * a) - 1e-9).ceil().max(12.0) as usize;
         let n = if duct.is_round() {
@@ -270,14 +301,19 @@ fn en_15259(duct: &Duct, up: Option<f64>, down: Option<f64>) -> Requirement {
         };
         (
             n,
-            format!(
-                "over 2.0 m²: at least 12 and 4 per m² = max(12, ⌈4 × {a:.3}⌉) = {raw}, rounded up \
-                 to a symmetric layout ({}) = {n}",
+            text!(
+                "over {}: at least 12 and 4 per {} of plane area ({}) = {}, rounded up to a \
+                 symmetric layout ({}) = {}",
+                area(2.0),
+                area(1.0),
+                area(a),
+                raw,
                 if duct.is_round() {
                     "2 diameters, even count per diameter"
                 } else {
                     "a Table 1-1 grid"
-                }
+                },
+                n
             ),
         )
     };
@@ -291,9 +327,10 @@ fn en_15259(duct: &Duct, up: Option<f64>, down: Option<f64>) -> Requirement {
         minimum_points: Some(n),
         site,
         confirmed: false,
-        basis: format!(
-            "{rule} (EN 15259 area bands from memory, not yet confirmed); plane criteria usually met \
-             with 5 hydraulic diameters upstream and 2 downstream"
+        basis: text!(
+            "{} (EN 15259 area bands from memory, not yet confirmed); plane criteria usually met \
+             with 5 hydraulic diameters upstream and 2 downstream",
+            rule
         ),
     }
 }
@@ -304,14 +341,23 @@ fn hvac(duct: &Duct, up: Option<f64>, down: Option<f64>) -> Requirement {
             let per = if diameter_m <= 10.0 * IN { 6 } else { 8 };
             (
                 2 * per,
-                format!("round: 2 diameters (3 at 60° preferred) of {per} points (6 up to 10 in, 8 to 10 above)"),
+                text!(
+                    "round: 2 diameters (3 at 60° preferred) of {} points (6 up to {}, 8 to 10 above)",
+                    per,
+                    q(Kind::Length, 10.0 * IN)
+                ),
             )
         }
         crate::geometry::Shape::Rectangular { width_m, height_m } => {
             let (w, h) = tab_spacing_counts(width_m, height_m);
             (
                 w * h,
-                format!("rectangular: readings no more than 6 in apart, 16 to 64 in all ({w} × {h}); log-Tchebycheff at least 25"),
+                text!(
+                    "rectangular: readings no more than {} apart, 16 to 64 readings in all ({} × {}); log-Tchebycheff at least 25",
+                    q(Kind::Length, 6.0 * IN),
+                    w,
+                    h
+                ),
             )
         }
     };
@@ -326,8 +372,9 @@ fn hvac(duct: &Duct, up: Option<f64>, down: Option<f64>) -> Requirement {
         minimum_points: Some(n),
         site,
         confirmed: true,
-        basis: format!(
-            "{rule}; plane 7.5 D after and 3 D before disturbances preferred, 2 D / 1 D with reduced accuracy"
+        basis: text!(
+            "{}; plane 7.5 D after and 3 D before disturbances preferred, 2 D / 1 D with reduced accuracy",
+            rule
         ),
     }
 }
@@ -335,6 +382,13 @@ fn hvac(duct: &Duct, up: Option<f64>, down: Option<f64>) -> Requirement {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn ip() -> crate::display::DisplayTable {
+        crate::display::DisplayTable::new(
+            crate::survey::ConventionId::EpaMethod2,
+            crate::display::UnitSystem::InchPound,
+        )
+    }
 
     #[test]
     fn preferred_site_counts() {
@@ -367,7 +421,11 @@ mod tests {
         let a = advise(&d, Some(5.5), Some(1.6), TraverseKind::Particulate);
         assert_eq!(a.epa_method_1.minimum_points, Some(20));
         assert!(!a.epa_method_1.confirmed);
-        assert!(a.epa_method_1.basis.contains("not yet confirmed"));
+        assert!(a
+            .epa_method_1
+            .basis
+            .render(&ip())
+            .contains("not yet confirmed"));
         // Figure 1-2 top step is 16 points (methods.md §3)
         let a = advise(&d, Some(2.5), Some(3.0), TraverseKind::Velocity);
         assert_eq!(a.epa_method_1.minimum_points, Some(16));
@@ -386,7 +444,7 @@ mod tests {
         let tiny = Duct::round(10.0 * IN).unwrap();
         let a = advise(&tiny, Some(10.0), Some(3.0), TraverseKind::Velocity);
         assert_eq!(a.epa_method_1.site, SiteRating::NotApplicable);
-        assert!(a.epa_method_1.basis.contains("Method 1A"));
+        assert!(a.epa_method_1.basis.render(&ip()).contains("Method 1A"));
     }
 
     #[test]

@@ -20,7 +20,7 @@ pub(super) fn section(job: &Job) -> ChecksSection {
             id: id_text(f),
             status: status(f.status),
             measured: measured(job, f),
-            limit: f.limit.clone(),
+            limit: f.limit.to_string(),
             source: f.source.clone(),
             message: message(f),
         })
@@ -70,12 +70,14 @@ fn id_text(f: &Finding) -> String {
 /// The finding in words without the survey's setting (printed once, under Deviations).
 fn message(f: &Finding) -> String {
     match &f.setting {
-        Some(s) if s.starts_with("disabled") => "disabled by the survey (see Deviations)".into(),
+        Some(s) if s.to_string().starts_with("disabled") => {
+            "disabled by the survey (see Deviations)".into()
+        }
         Some(_) => format!(
             "{} (limit set by the survey, see Deviations)",
             f.message_without_setting()
         ),
-        None => f.message.clone(),
+        None => f.message.to_string(),
     }
 }
 
@@ -116,7 +118,7 @@ fn matrix_rows(job: &Job) -> (Vec<MatrixRow>, Vec<String>) {
         rows.push(MatrixRow {
             group: group_name(first.group).into(),
             id: id.to_string(),
-            limit: first.limit.clone(),
+            limit: first.limit.to_string(),
             source: first.source.clone(),
             cells: found
                 .iter()
@@ -259,9 +261,9 @@ mod tests {
             .chain(c.remarks.clone())
             .collect();
         for f in a.findings().filter(|f| f.setting.is_some()) {
-            let set = f.setting.as_deref().unwrap();
+            let set = f.setting.as_ref().unwrap().to_string();
             assert!(
-                all.iter().all(|m| !m.contains(set)),
+                all.iter().all(|m| !m.contains(&set)),
                 "the setting `{set}` is printed in the checks; it belongs under Deviations"
             );
         }

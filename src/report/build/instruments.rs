@@ -156,7 +156,7 @@ mod tests {
             .find(|f| f.id == "probe-calibration")
             .unwrap();
         assert!(
-            f.message.contains("valid until 2027-08-20"),
+            f.message.to_string().contains("valid until 2027-08-20"),
             "{}",
             f.message
         );

@@ -63,7 +63,8 @@ pub(super) fn deviations(job: &Job) -> Vec<String> {
             out.push(format!(
                 "The {} point-count step used is quoted from memory and not yet confirmed \
                  against the published text: {}",
-                r.framework, r.basis
+                r.framework,
+                r.basis.render(&job.table)
             ));
         }
     }

@@ -34,7 +34,7 @@ pub(super) fn section(job: &Job) -> Plane {
     ));
     let findings: Vec<&Finding> = job.a.checks.iter().collect();
     if let Some(f) = findings.iter().find(|f| f.id == "point-count") {
-        plane.points_required = f.limit.clone();
+        plane.points_required = f.limit.to_string();
         plane.point_count_status = status(f.status);
     }
     plane.straight_runs = findings
@@ -43,7 +43,7 @@ pub(super) fn section(job: &Job) -> Plane {
         .map(|f| StraightRun {
             label: "Upstream / downstream".into(),
             value: straight_runs(s.upstream_d, s.downstream_d),
-            requirement: f.limit.clone(),
+            requirement: f.limit.to_string(),
             status: status(f.status),
         })
         .collect();
