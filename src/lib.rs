@@ -27,6 +27,7 @@ pub mod assess;
 pub mod calibration;
 pub mod checks;
 pub mod cli;
+pub mod config;
 pub mod diag;
 pub mod digest;
 pub mod display;

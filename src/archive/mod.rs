@@ -9,8 +9,12 @@
 pub mod bundle;
 pub mod forensics;
 pub mod keys;
+pub mod make;
 pub mod manifest;
+pub mod pdf;
 pub mod review;
+pub mod seal;
+pub mod trust;
 pub mod verify;
 
 /// Digests live in `crate::digest` (the report's attachments use them too).

@@ -10,12 +10,14 @@
 
 pub mod assess_config;
 pub mod calibration_file;
+pub mod config_file;
 pub mod header;
 pub mod rata_file;
 pub mod readings;
 pub mod survey;
 pub mod text;
 pub mod toml_doc;
+pub mod trust_file;
 
 use crate::checks::config::AssessConfig;
 use crate::diag::{Diagnostic, Error, Location};
