@@ -1193,3 +1193,407 @@ fn certificates_and_rata_summaries_verify_and_an_edit_is_named() {
     assert!(out.contains("embedded file `ts-0417.csv`"), "{out}");
     assert!(out.contains("leg_a_mean: embedded"), "{out}");
 }
+
+// ---- review ----
+
+/// Run 1 velocity of the stack sample as reported with the static pressure added without the ÷13.6
+/// inH2O→inHg conversion: EPA Method 2 eq. 2-9 gives v ∝ 1/√Ps, Ps = Pbar + Pg/13.6 (derived).
+fn static_mistake_velocity_ft_s(dir: &Path) -> f64 {
+    let (code, json, err) = annulus_in(dir, &["compute", "good/survey.toml", "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let correct_ft_s = v["runs"][0]["mean_velocity_m_s"].as_f64().unwrap() / 0.3048;
+    // sample-data/stack/survey.toml: barometric 29.62 inHg, static −0.85 inH2O
+    let right: f64 = 29.62 - 0.85 / 13.6;
+    let wrong = 29.62 - 0.85;
+    correct_ft_s * (right / wrong).sqrt()
+}
+
+/// An archive mixing every case a reviewer meets; returns its parent folder.
+fn review_archive() -> tempfile::TempDir {
+    let f = fixture();
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("archive");
+    let stack = root().join("sample-data/stack");
+    // the calibration record the stack surveys name (a TOML file that is not a survey: skipped)
+    copy_dir(
+        &root().join("sample-data/calibration"),
+        &a.join("calibration"),
+    );
+    // clean: the survey and the signed report made from it, side by side
+    copy_dir(&stack, &a.join("good"));
+    std::fs::write(a.join("good/report.pdf"), &f.signed).unwrap();
+    copy_dir(&root().join("sample-data/hvac"), &a.join("hvac"));
+    // a forged page
+    std::fs::create_dir_all(a.join("forged")).unwrap();
+    std::fs::write(a.join("forged/report.pdf"), edit_page_text(&f.signed, 1)).unwrap();
+    // signed by a key outside the trust list
+    std::fs::create_dir_all(a.join("unknown")).unwrap();
+    std::fs::write(a.join("unknown/report.pdf"), &f.other).unwrap();
+    // fabricated data: run 2's line B copied from line A (and retitled, so it is not the report's)
+    copy_dir(&stack, &a.join("fabricated"));
+    let survey = std::fs::read_to_string(a.join("fabricated/survey.toml")).unwrap();
+    std::fs::write(
+        a.join("fabricated/survey.toml"),
+        survey.replace("Boiler 2 stack", "Boiler 3 stack"),
+    )
+    .unwrap();
+    let csv = std::fs::read_to_string(a.join("fabricated/run2.csv")).unwrap();
+    let line_a: Vec<&str> = csv.lines().filter(|l| l.starts_with("A,")).collect();
+    let mut k = 0;
+    let copied: Vec<String> = csv
+        .lines()
+        .map(|l| {
+            if l.starts_with("B,") && k < line_a.len() {
+                k += 1;
+                line_a[k - 1].replacen("A,", "B,", 1)
+            } else {
+                l.to_string()
+            }
+        })
+        .collect();
+    std::fs::write(a.join("fabricated/run2.csv"), copied.join("\n") + "\n").unwrap();
+    // damaged: a truncated report
+    std::fs::create_dir_all(a.join("damaged")).unwrap();
+    std::fs::write(
+        a.join("damaged/report.pdf"),
+        &f.signed[..f.signed.len() / 3],
+    )
+    .unwrap();
+    // mismatched: the report's own survey, with a reading changed after the report was made
+    copy_dir(&stack, &a.join("changed"));
+    let csv = std::fs::read(a.join("changed/run2.csv")).unwrap();
+    std::fs::write(
+        a.join("changed/run2.csv"),
+        edit_text(&csv, "A,2,0.490,", "A,2,0.500,"),
+    )
+    .unwrap();
+    // bad input: a typo in a readings cell
+    copy_dir(&stack, &a.join("bad"));
+    let csv = std::fs::read(a.join("bad/run2.csv")).unwrap();
+    std::fs::write(
+        a.join("bad/run2.csv"),
+        edit_text(&csv, "A,2,0.490,", "A,2,0.49O,"),
+    )
+    .unwrap();
+    // an emptied survey file, garbled TOML, and other TOML (skipped)
+    std::fs::create_dir_all(a.join("junk")).unwrap();
+    std::fs::write(a.join("junk/survey.toml"), "").unwrap();
+    std::fs::write(a.join("junk/garbled.toml"), [0xff, 0xfe, 0x00, 0x5b]).unwrap();
+    std::fs::write(
+        a.join("junk/probe-cal.toml"),
+        "[calibration]\nserial = \"TS-0417\"\n",
+    )
+    .unwrap();
+    // a reported figure that carries a known mistake
+    copy_dir(&stack, &a.join("doctored"));
+    let wrong = static_mistake_velocity_ft_s(&a);
+    let survey = std::fs::read_to_string(a.join("doctored/survey.toml")).unwrap();
+    std::fs::write(
+        a.join("doctored/survey.toml"),
+        format!(
+            "{}\n[reported.run.1]\nvelocity = \"{wrong:.2} ft/s\"\n",
+            survey.replace("Boiler 2 stack", "Boiler 2 stack (doctored copy)")
+        ),
+    )
+    .unwrap();
+    std::fs::copy(
+        f.path().join("dana-ferrow.pub"),
+        dir.path().join("dana-ferrow.pub"),
+    )
+    .unwrap();
+    dir
+}
+
+#[test]
+fn review_gives_every_file_its_status_identity_and_findings() {
+    let dir = review_archive();
+    let (code, json, err) = annulus_in(
+        dir.path(),
+        &[
+            "review",
+            "archive",
+            "--key",
+            "dana-ferrow.pub",
+            "--format",
+            "json",
+        ],
+    );
+    assert_eq!(code, 3, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let files = v["files"].as_array().unwrap();
+    let get = |p: &str| {
+        files
+            .iter()
+            .find(|f| f["file"] == p)
+            .unwrap_or_else(|| panic!("{p} not reviewed: {json}"))
+    };
+    let status = |p: &str| get(p)["status"].as_str().unwrap().to_string();
+    let kinds = |p: &str| -> Vec<String> {
+        get(p)["findings"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|n| n["kind"].as_str().unwrap().to_string())
+            .collect()
+    };
+    let expected = [
+        ("archive/good/report.pdf", "pass"),
+        ("archive/forged/report.pdf", "fail"),
+        ("archive/unknown/report.pdf", "fail"),
+        ("archive/fabricated/survey.toml", "suspect"),
+        ("archive/damaged/report.pdf", "error"),
+        ("archive/changed/survey.toml", "suspect"),
+        ("archive/bad/survey.toml", "error"),
+        ("archive/junk/survey.toml", "error"),
+        ("archive/junk/garbled.toml", "error"),
+        ("archive/doctored/survey.toml", "suspect"),
+    ];
+    for (p, s) in expected {
+        assert_eq!(status(p), s, "{p}: {}", get(p));
+    }
+    assert!(
+        status("archive/good/survey.toml") == "pass"
+            || status("archive/good/survey.toml") == "warn"
+    );
+    assert!(!status("archive/hvac/survey.toml").starts_with("fail"));
+
+    // identity columns of a clean report
+    let good = get("archive/good/report.pdf");
+    assert_eq!(good["kind"], "report");
+    assert!(good["report_id"].as_str().unwrap().starts_with("AN-"));
+    assert_eq!(good["title"], "Boiler 2 stack, annual flow test");
+    assert_eq!(good["site"], "Tessaly Board Mill (fictional)");
+    assert_eq!(good["date"], "2026-10-14");
+    assert_eq!(good["tested_by"], "Dana Ferrow");
+    assert_eq!(good["signer"], "dana-ferrow");
+    assert_eq!(good["convention"], "epa-method-2");
+    assert_eq!(good["key_figure_unit"], "dscfm");
+    let figure = good["key_figure"].as_f64().unwrap();
+    assert!(figure > 10_000.0, "{figure}");
+    assert_eq!(good["verified"], true);
+    // the survey beside it is the one it was made from
+    let g = get("archive/good/survey.toml");
+    assert_eq!(g["key_figure"], good["key_figure"]);
+    assert!(kinds("archive/good/survey.toml").contains(&"matched".to_string()));
+    assert_eq!(g["signer"], serde_json::Value::Null);
+
+    // what each finding says
+    let forged = get("archive/forged/report.pdf");
+    assert_eq!(forged["content"], "altered");
+    assert!(forged["findings"].to_string().contains("page 1 content"));
+    assert_eq!(get("archive/unknown/report.pdf")["signer"], "unknown key");
+    assert!(kinds("archive/fabricated/survey.toml").contains(&"integrity".to_string()));
+    assert!(get("archive/fabricated/survey.toml")["findings"]
+        .to_string()
+        .contains("identical-sequences"));
+    assert_eq!(kinds("archive/damaged/report.pdf"), ["damaged"]);
+    let changed = get("archive/changed/survey.toml");
+    assert!(kinds("archive/changed/survey.toml").contains(&"mismatch".to_string()));
+    assert!(
+        changed["findings"]
+            .to_string()
+            .contains("`run2.csv` here differs"),
+        "{changed}"
+    );
+    let bad = get("archive/bad/survey.toml")["findings"][0].clone();
+    assert_eq!(bad["kind"], "bad-input");
+    let msg = bad["message"].as_str().unwrap();
+    assert!(
+        msg.contains("`0.49O`") && msg.contains("archive/bad/run2.csv:3:3"),
+        "{msg}"
+    );
+    assert!(get("archive/junk/survey.toml")["findings"]
+        .to_string()
+        .contains("no [survey] table"));
+    let d = get("archive/doctored/survey.toml")["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|n| n["kind"] == "discrepancy")
+        .cloned()
+        .unwrap();
+    assert_eq!(d["scope"], "run 1");
+    assert_eq!(d["mistake"]["id"], "static-without-13.6", "{d}");
+    let skipped: Vec<&str> = v["skipped"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s["file"].as_str().unwrap())
+        .collect();
+    assert_eq!(
+        skipped,
+        [
+            "archive/calibration/ts-0417.toml",
+            "archive/junk/probe-cal.toml"
+        ]
+    );
+    assert_eq!(v["summary"]["suspect"], 3);
+    assert_eq!(v["summary"]["error"], 4);
+
+    // CSV: the identity columns, one row per file; the table names the mistake in words
+    let (code, csv, _) = annulus_in(
+        dir.path(),
+        &[
+            "review",
+            "archive",
+            "--key",
+            "dana-ferrow.pub",
+            "--format",
+            "csv",
+            "--rerender",
+            "never",
+        ],
+    );
+    assert_eq!(code, 3);
+    assert!(csv.starts_with(
+        "file,kind,status,report_id,title,site,date,tested_by,signer,convention,key_figure,key_figure_unit,findings,"
+    ), "{csv}");
+    assert_eq!(csv.lines().count(), 1 + files.len());
+    let row = csv
+        .lines()
+        .find(|l| l.starts_with("archive/good/report.pdf,"))
+        .unwrap();
+    assert!(
+        row.contains(",report,pass,AN-") && row.contains(",dana-ferrow,epa-method-2,"),
+        "{row}"
+    );
+    let (_, table, _) = annulus_in(
+        dir.path(),
+        &[
+            "review",
+            "archive",
+            "--key",
+            "dana-ferrow.pub",
+            "--rerender",
+            "never",
+        ],
+    );
+    assert!(
+        table.contains("static pressure added without the ÷13.6"),
+        "{table}"
+    );
+    assert!(table.contains("3 suspect"), "{table}");
+}
+
+#[test]
+fn review_streams_ndjson_and_fail_on_chooses_the_exit_code() {
+    let f = fixture();
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("archive");
+    copy_dir(
+        &root().join("sample-data/calibration"),
+        &a.join("calibration"),
+    );
+    let stack = root().join("sample-data/stack");
+    for i in 0..4 {
+        copy_dir(&stack, &a.join(format!("s{i}")));
+    }
+    // one suspect survey: a reported figure the data do not reproduce
+    let s = std::fs::read_to_string(a.join("s0/survey.toml")).unwrap();
+    std::fs::write(
+        a.join("s0/survey.toml"),
+        format!("{s}\n[reported]\naverage = {{ dscfm = \"12345 cfm\" }}\n"),
+    )
+    .unwrap();
+    std::fs::write(a.join("s1/report.pdf"), &f.signed).unwrap();
+    let (code, out, err) = annulus_in(dir.path(), &["review", "archive", "--format", "ndjson"]);
+    assert_eq!(
+        code, 0,
+        "suspect is not in the default --fail-on: {out}{err}"
+    );
+    let lines: Vec<serde_json::Value> = out
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap_or_else(|e| panic!("{e}: {l}")))
+        .collect();
+    // 4 surveys, 1 report, 1 skipped calibration record: one line each
+    assert_eq!(lines.len(), 6, "{out}");
+    // reports are reviewed before surveys, so a report's line comes first
+    assert_eq!(lines[0]["kind"], "report");
+    assert!(lines.iter().any(|l| l["skipped"].is_string()));
+    let s0 = lines
+        .iter()
+        .find(|l| l["file"] == "archive/s0/survey.toml")
+        .unwrap();
+    assert_eq!(s0["status"], "suspect");
+    assert!(err.contains("1 suspect"), "{err}");
+    let (code, _, _) = annulus_in(
+        dir.path(),
+        &[
+            "review",
+            "archive",
+            "--format",
+            "ndjson",
+            "--fail-on",
+            "suspect,fail,error",
+        ],
+    );
+    assert_eq!(code, 3);
+    let (code, _, err) = annulus_in(dir.path(), &["review", "archive", "--fail-on", "bogus"]);
+    assert_eq!(code, 1, "{err}");
+}
+
+#[test]
+fn review_budgets_turn_a_hostile_file_into_an_error_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("archive");
+    copy_dir(
+        &root().join("sample-data/calibration"),
+        &a.join("calibration"),
+    );
+    copy_dir(&root().join("sample-data/stack"), &a.join("ok"));
+    std::fs::create_dir_all(a.join("big")).unwrap();
+    // a survey larger than the size budget
+    std::fs::write(
+        a.join("big/survey.toml"),
+        format!("[survey]\n# {}\n", "x".repeat(2 << 20)),
+    )
+    .unwrap();
+    let (code, json, err) = annulus_in(
+        dir.path(),
+        &[
+            "review",
+            "archive",
+            "--format",
+            "json",
+            "--file-size-limit",
+            "1",
+        ],
+    );
+    assert_eq!(code, 3, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let big = v["files"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["file"] == "archive/big/survey.toml")
+        .unwrap();
+    assert_eq!(big["status"], "error");
+    assert_eq!(big["findings"][0]["kind"], "over-budget");
+    assert!(big["findings"][0]["message"]
+        .as_str()
+        .unwrap()
+        .contains("size budget of 1 MiB (--file-size-limit)"));
+    let ok = v["files"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["file"] == "archive/ok/survey.toml")
+        .unwrap();
+    assert_ne!(ok["status"], "error");
+    // a readings file that is a pipe is an error row at once, never a wait
+    #[cfg(unix)]
+    {
+        let fifo = a.join("ok/run2.csv");
+        std::fs::remove_file(&fifo).unwrap();
+        let status = Command::new("mkfifo").arg(&fifo).status();
+        if status.is_ok_and(|s| s.success()) {
+            let t = std::time::Instant::now();
+            let (code, json, _) =
+                annulus_in(dir.path(), &["review", "archive", "--format", "json"]);
+            assert!(t.elapsed() < std::time::Duration::from_secs(60));
+            assert_eq!(code, 3);
+            assert!(json.contains("not a regular file"), "{json}");
+        }
+    }
+}

@@ -310,6 +310,19 @@ fn index(embedded: &[super::pdf::files::EmbeddedFile]) -> (HashMap<&str, &[u8]>,
     (by_name, duplicates)
 }
 
+/// Verifies untrusted bytes with no trust list, no re-render and the default reading caps: the
+/// whole reading path of `annulus verify` (cross-references, objects, streams, embedded files,
+/// digests, manifest, seal, signature, recomputation). The entry point of the `verify_pdf` fuzz
+/// target.
+pub fn verify_bytes(pdf: &[u8]) -> Result<Verification, NotAReport> {
+    let list = TrustList::new();
+    let options = VerifyOptions {
+        rerender: RerenderPolicy::Never,
+        ..VerifyOptions::open(&list)
+    };
+    verify(pdf, &options)
+}
+
 /// Verifies a document from its PDF bytes. `Err` only when the bytes are not a PDF, or a PDF that
 /// is not ours; a damaged file is a verdict (`content: damaged`).
 pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, NotAReport> {
@@ -509,7 +522,13 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
                 manifest.program
             ),
         },
-        _ => rerender::rerender(&manifest, &by_name, recomputed.as_deref(), &actual),
+        _ => rerender::rerender(
+            &manifest,
+            &by_name,
+            recomputed.as_deref(),
+            &actual,
+            rerender::RERENDER_TIME_LIMIT,
+        ),
     };
     if let Rerendering::Differs { changes: c } = &rerendering {
         for what in c {

@@ -63,6 +63,9 @@ impl Rerendering {
     }
 }
 
+/// Longest a re-render may take before it is abandoned (the sample takes a fraction of a second).
+pub const RERENDER_TIME_LIMIT: std::time::Duration = std::time::Duration::from_secs(120);
+
 /// One engine for every re-render of a process (fonts are loaded once).
 fn engine() -> &'static Engine {
     static ENGINE: OnceLock<Engine> = OnceLock::new();
@@ -76,6 +79,7 @@ pub fn rerender(
     by_name: &HashMap<&str, &[u8]>,
     recomputed: Option<&Recomputed>,
     actual: &DocumentParts,
+    time_limit: std::time::Duration,
 ) -> Rerendering {
     let impossible = |reason: String| Rerendering::Impossible { reason };
     if manifest.doc_kind() != DocKind::Report {
@@ -129,14 +133,32 @@ pub fn rerender(
             }
         },
     };
-    let settings = ReportSettings {
-        template: template.as_ref(),
-        document_date: date,
-        signer: manifest.signer.clone(),
-    };
-    let unsealed = match render_report(engine(), &r.evaluation, &r.assessment, &settings) {
-        Ok(u) => u,
-        Err(e) => return impossible(format!("the embedded inputs do not render: {e}")),
+    // The render runs the embedded template, which a forger may have written to never finish:
+    // it runs on its own thread and is abandoned after `time_limit`.
+    let (tx, rx) = std::sync::mpsc::channel();
+    let (r, signer) = (r.clone(), manifest.signer.clone());
+    std::thread::spawn(move || {
+        let settings = ReportSettings {
+            template: template.as_ref(),
+            document_date: date,
+            signer,
+        };
+        let _ = tx.send(render_report(
+            engine(),
+            &r.evaluation,
+            &r.assessment,
+            &settings,
+        ));
+    });
+    let unsealed = match rx.recv_timeout(time_limit) {
+        Ok(Ok(u)) => u,
+        Ok(Err(e)) => return impossible(format!("the embedded inputs do not render: {e}")),
+        Err(_) => {
+            return impossible(format!(
+                "the re-render did not finish within {} s (the embedded template may be built never to finish)",
+                time_limit.as_secs_f64()
+            ))
+        }
     };
     let parts = match digests(&unsealed.pdf) {
         Ok(p) => p,
