@@ -443,6 +443,42 @@ fn keygen_writes_named_keys_an_owner_only_secret_and_never_overwrites() {
     assert!(!dir.path().join("solo.key").exists());
 }
 
+#[test]
+fn a_bare_sign_option_takes_the_configured_key() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_dir(&root().join("sample-data/stack"), &dir.path().join("stack"));
+    // no configuration: a located refusal before anything is computed
+    let (code, _, err) = annulus_in(
+        dir.path(),
+        &["report", "stack/survey.toml", "-o", "r.pdf", "--sign"],
+    );
+    assert_eq!(code, 1, "{err}");
+    assert!(
+        err.contains("no configuration names a `signing_key`"),
+        "{err}"
+    );
+    assert!(!dir.path().join("r.pdf").exists());
+    // a configuration whose key file is missing: the path it resolved to is named
+    std::fs::write(
+        dir.path().join("config.toml"),
+        "signing_key = \"keys/me.key\"\n",
+    )
+    .unwrap();
+    let cfg = dir.path().join("config.toml");
+    let (code, _, err) = annulus_cfg(
+        dir.path(),
+        &["report", "stack/survey.toml", "-o", "r.pdf", "--sign"],
+        cfg.to_str().unwrap(),
+    );
+    assert_eq!(code, 1, "{err}");
+    assert!(err.contains("keys/me.key"), "{err}");
+    // a broken configuration is a located error
+    std::fs::write(&cfg, "signing_key = \"keys/me.key\"\ntrusts = \"x\"\n").unwrap();
+    let (code, _, err) = annulus_cfg(dir.path(), &["verify", "r.pdf"], cfg.to_str().unwrap());
+    assert_eq!(code, 1, "{err}");
+    assert!(err.contains("config.toml:2:1"), "{err}");
+}
+
 // ---- verify: untouched reports ----
 
 #[test]

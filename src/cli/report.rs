@@ -23,8 +23,9 @@ pub struct ReportArgs {
     pub template: Option<PathBuf>,
     /// Sign the report with this Ed25519 secret key (see `annulus keygen`); its name is printed
     /// in the sign-off block. `--sign` without a path uses `signing_key` of the configuration file.
-    #[arg(long, value_name = "KEY", num_args = 0..=1, default_missing_value = "")]
-    pub sign: Option<PathBuf>,
+    #[arg(long, value_name = "KEY", num_args = 0..=1)]
+    #[allow(clippy::option_option)]
+    pub sign: Option<Option<PathBuf>>,
 }
 
 /// The document date: `SOURCE_DATE_EPOCH` when set (reproducible builds), else the survey date.
@@ -51,15 +52,15 @@ pub(crate) fn document_date(survey_date: chrono::NaiveDate) -> Result<chrono::Na
     }
 }
 
-/// The key `--sign` names: the path given, or the configuration's `signing_key` for a bare
-/// `--sign`.
-fn signing_key(arg: &std::path::Path) -> Result<SecretKey, Error> {
-    if !arg.as_os_str().is_empty() {
-        return read_key(arg);
+/// The key `--sign` names and its file: the path given, or the configuration's `signing_key` for
+/// a bare `--sign`.
+fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
+    if let Some(p) = arg {
+        return Ok((read_key(p)?, p.clone()));
     }
     let config = crate::input::config_file::load_config()?;
     match config.as_ref().and_then(|c| c.signing_key.as_ref()) {
-        Some(p) => read_key(p),
+        Some(p) => Ok((read_key(p)?, p.clone())),
         None => Err(Error::input(
             Diagnostic::new("`--sign` was given without a key, and no configuration names a `signing_key`")
                 .hint("give the key file (`--sign dana-ferrow.key`), or set `signing_key` in the configuration file (see README, Configuration)"),
@@ -86,7 +87,8 @@ pub(crate) fn read_key(path: &std::path::Path) -> Result<SecretKey, Error> {
 }
 
 pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let key = args.sign.as_deref().map(signing_key).transpose()?;
+    let key_and_path = args.sign.as_ref().map(signing_key).transpose()?;
+    let key = key_and_path.as_ref().map(|(k, _)| k);
     let template = match &args.template {
         Some(p) => {
             let name = p.display().to_string();
@@ -101,8 +103,8 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
     let loaded = load(&args.survey)?;
     let (e, a) = evaluate_and_assess(loaded)?;
     // the key's name, else the key file's stem for keys made before keys had names
-    let signer = match (&key, &args.sign) {
-        (Some(k), Some(path)) => {
+    let signer = match &key_and_path {
+        Some((k, path)) => {
             let stem = path
                 .file_stem()
                 .map(|s| s.to_string_lossy().into_owned())
@@ -110,14 +112,14 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
                 .unwrap_or_else(|| "signing key".into());
             Some(SignerEntry::new(k.name().unwrap_or(&stem), &k.public()))
         }
-        _ => None,
+        None => None,
     };
     let settings = ReportSettings {
         template: template.as_ref(),
         document_date: document_date(e.loaded.survey.date)?,
         signer: signer.clone(),
     };
-    let made = make_report(&Engine::new(), &e, &a, &settings, key.as_ref()).map_err(|err| {
+    let made = make_report(&Engine::new(), &e, &a, &settings, key).map_err(|err| {
         match (&err, &template) {
             (MakeError::Render(r), Some(t)) => Error::input(
                 Diagnostic::new(format!("the template could not be laid out:\n{r}"))

@@ -40,6 +40,10 @@ pub struct Limits {
     pub max_stream: usize,
     /// Bytes all inflated streams of one file may add up to.
     pub max_inflated_total: usize,
+    /// Objects all part digests together may visit: shared resources are walked once per part
+    /// that uses them, so a file of thousands of pages sharing a huge resource tree would
+    /// otherwise cost pages × objects. A real report visits well under 100 000.
+    pub max_visits: usize,
 }
 
 impl Default for Limits {
@@ -49,6 +53,7 @@ impl Default for Limits {
             max_revisions: 100,
             max_stream: 64 << 20,
             max_inflated_total: 256 << 20,
+            max_visits: 10_000_000,
         }
     }
 }

@@ -278,6 +278,7 @@ struct Walk<'p, 'a> {
     pdf: &'p Pdf<'a>,
     tokens: &'p HashMap<Ref, Token>,
     streams: &'p RefCell<HashMap<Ref, [u8; 32]>>,
+    visits: std::cell::Cell<usize>,
 }
 
 impl Walk<'_, '_> {
@@ -293,6 +294,13 @@ impl Walk<'_, '_> {
             self.write(&mut st, r, walk_into, 0)?;
         }
         while let Some((r, idx)) = st.queue.pop_front() {
+            self.visits.set(self.visits.get() + 1);
+            let cap = self.pdf.limits().max_visits;
+            if self.visits.get() > cap {
+                return Err(PdfError::Limit(format!(
+                    "the document's parts reach more than {cap} objects in all (a file built to be slow)"
+                )));
+            }
             st.h.update(b"O");
             st.h.update((idx as u64).to_le_bytes());
             let ind = self.pdf.get(r)?;
@@ -654,6 +662,7 @@ pub fn document_parts(pdf: &Pdf, excluded: &str) -> Result<DocumentParts, PdfErr
         pdf,
         tokens: &tokens,
         streams: &streams,
+        visits: std::cell::Cell::new(0),
     };
     let mut parts = DocumentParts::default();
     for (p, (arr, refs)) in pages.iter().zip(&annots) {

@@ -344,6 +344,32 @@ fn damaged_and_hostile_files_end_in_errors() {
     );
     let e = Pdf::parse(&looped, Limits::default()).err().unwrap();
     assert!(e.to_string().contains("loop"), "{e}");
+    // many pages sharing one large resource tree: bounded by the visit cap, not pages × objects
+    let mut bodies = vec![
+        b"<</Type/Catalog/Pages 2 0 R>>".to_vec(),
+        Vec::new(), // the page tree, below
+        b"<</Shared[4 0 R 5 0 R 6 0 R 7 0 R 8 0 R 9 0 R]>>".to_vec(),
+    ];
+    for _ in 0..6 {
+        bodies.push(b"<</X 1>>".to_vec());
+    }
+    let first_page = bodies.len() + 1;
+    let pages = 200;
+    for _ in 0..pages {
+        bodies.push(b"<</Type/Page/Parent 2 0 R/Resources 3 0 R>>".to_vec());
+    }
+    let kids: Vec<String> = (0..pages)
+        .map(|i| format!("{} 0 R", first_page + i))
+        .collect();
+    bodies[1] = format!("<</Type/Pages/Count {pages}/Kids[{}]>>", kids.join(" ")).into_bytes();
+    let f = write_pdf(&bodies, "/Root 1 0 R");
+    assert_eq!(document_parts(&parse(&f), "x").unwrap().pages.len(), pages);
+    let tight = Limits {
+        max_visits: 500,
+        ..Limits::default()
+    };
+    let e = document_parts(&Pdf::parse(&f, tight).unwrap(), "x").unwrap_err();
+    assert!(e.to_string().contains("built to be slow"), "{e}");
     // a /Length that lies
     let lying = replace_bytes(&sample(), b"/Length 39>>", b"/Length 45>>");
     assert!(matches!(
