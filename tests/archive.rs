@@ -1633,3 +1633,62 @@ fn review_budgets_turn_a_hostile_file_into_an_error_row() {
         }
     }
 }
+
+#[test]
+fn a_report_laid_out_with_a_firms_template_embeds_it_and_re_renders_from_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    copy_dir(&root().join("sample-data/stack"), &d.join("stack"));
+    copy_dir(
+        &root().join("sample-data/calibration"),
+        &d.join("calibration"),
+    );
+    std::fs::write(
+        d.join("firm.typ"),
+        "#let data = json(\"/data.json\")\n#set text(font: \"DejaVu Sans\")\n= #data.header.title\nReport #data.header.report_id\n",
+    )
+    .unwrap();
+    let (code, _, err) = annulus_in(
+        d,
+        &[
+            "report",
+            "stack/survey.toml",
+            "-o",
+            "r.pdf",
+            "--template",
+            "firm.typ",
+        ],
+    );
+    assert_eq!(code, 0, "{err}");
+    let pdf = std::fs::read(d.join("r.pdf")).unwrap();
+    assert_eq!(
+        attachment(&pdf, "firm.typ"),
+        std::fs::read(d.join("firm.typ")).unwrap()
+    );
+    let (code, out, err) = annulus_in(d, &["verify", "r.pdf", "--format", "json"]);
+    assert_eq!(code, 0, "{out}{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["rerendering"]["state"], "matches", "{v}");
+    // an edited embedded template is named (the pages no longer follow from it)
+    let t = String::from_utf8(attachment(&pdf, "firm.typ")).unwrap();
+    let edited = with_attachment(
+        &pdf,
+        "firm.typ",
+        t.replace("Report", "Rapport").into_bytes(),
+    );
+    std::fs::write(d.join("e.pdf"), edited).unwrap();
+    let (code, out, _) = annulus_in(d, &["verify", "e.pdf", "--format", "json"]);
+    assert_eq!(code, 3);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let named = changes(&v);
+    assert!(
+        named.iter().any(|c| c.contains("embedded file `firm.typ`")),
+        "{named:?}"
+    );
+    assert!(
+        named
+            .iter()
+            .any(|c| c.contains("page 1 content (differs from what the embedded inputs render to)")),
+        "{named:?}"
+    );
+}
