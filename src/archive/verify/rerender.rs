@@ -179,3 +179,41 @@ pub fn rerender(
         Rerendering::Differs { changes }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::archive::manifest::Manifest;
+
+    #[test]
+    fn another_version_is_said_to_be_another_version_not_altered() {
+        let mut m = Manifest::new("annulus 0.0.9", "epa-method-2", "2026-10-14", vec![]);
+        m.kind = Some(DocKind::Report);
+        m.renderer = Some("annulus 0.0.9 (built-in report template 0123456789ab)".into());
+        let r = rerender(
+            &m,
+            &HashMap::new(),
+            None,
+            &DocumentParts::default(),
+            RERENDER_TIME_LIMIT,
+        );
+        let Rerendering::Impossible { reason } = r else {
+            panic!("{r:?}")
+        };
+        assert!(reason.contains("another annulus version"), "{reason}");
+        assert!(
+            reason.contains("says nothing about whether it was altered"),
+            "{reason}"
+        );
+        // a certificate is not re-rendered
+        m.kind = Some(DocKind::Calibration);
+        let r = rerender(
+            &m,
+            &HashMap::new(),
+            None,
+            &DocumentParts::default(),
+            RERENDER_TIME_LIMIT,
+        );
+        assert!(matches!(r, Rerendering::Impossible { .. }), "{r:?}");
+    }
+}
