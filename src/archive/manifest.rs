@@ -106,7 +106,8 @@ pub struct Manifest {
 }
 
 impl Manifest {
-    /// A first-format manifest (attachments only); see [`Manifest::document`] for the current one.
+    /// A manifest of the current format listing `files`; the caller fills in the document's kind,
+    /// renderer, document date and signer (see `archive::make`).
     pub fn new(program: &str, convention: &str, survey_date: &str, files: Vec<FileEntry>) -> Self {
         Manifest {
             format: FORMAT.to_string(),
