@@ -1533,7 +1533,17 @@ fn review_streams_ndjson_and_fail_on_chooses_the_exit_code() {
     )
     .unwrap();
     std::fs::write(a.join("s1/report.pdf"), &f.signed).unwrap();
-    let (code, out, err) = annulus_in(dir.path(), &["review", "archive", "--format", "ndjson"]);
+    let (code, out, err) = annulus_in(
+        dir.path(),
+        &[
+            "review",
+            "archive",
+            "--format",
+            "ndjson",
+            "--rerender",
+            "never",
+        ],
+    );
     assert_eq!(
         code, 0,
         "suspect is not in the default --fail-on: {out}{err}"
