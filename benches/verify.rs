@@ -23,12 +23,12 @@ static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 use annulus::archive::make::{make_report, ReportSettings};
 use annulus::archive::manifest::SignerEntry;
-use annulus::archive::pdf::{files, parts::document_parts, Limits, Pdf};
 use annulus::archive::seal::SEAL_NAME;
 use annulus::archive::trust::TrustList;
 use annulus::archive::verify::{verify, RerenderPolicy, TrustPolicy, VerifyOptions};
 use annulus::archive::SecretKey;
 use annulus::input::{load_with, MemoryFiles};
+use annulus::pdf::{files, parts::document_parts, Limits, Pdf};
 use annulus::pipeline::evaluate_and_assess;
 use annulus::report::Engine;
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};

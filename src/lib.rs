@@ -37,6 +37,7 @@ pub mod gas;
 pub mod geometry;
 pub mod input;
 pub mod layout;
+pub mod pdf;
 pub mod pipeline;
 pub mod plane;
 pub mod rata;

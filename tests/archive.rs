@@ -8,9 +8,9 @@
 //! file), or by appending an incremental update byte by byte, or by cutting it short.
 
 use annulus::archive::manifest::{Manifest, MANIFEST_NAME};
-use annulus::archive::pdf::{Limits, Object as PObject, Pdf};
 use annulus::archive::seal::{Seal, SEAL_NAME};
 use annulus::archive::PublicKey;
+use annulus::pdf::{Limits, Object as PObject, Pdf};
 use lopdf::{dictionary, Document, Object, ObjectId, Stream};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -702,6 +702,7 @@ fn an_added_page_is_named() {
     let f = fixture();
     let mut doc = load(&f.signed);
     let pages = doc.get_pages();
+    let added = format!("an added page {}", pages.len() + 1);
     let first = doc
         .get_object(pages[&1])
         .unwrap()
@@ -725,8 +726,8 @@ fn an_added_page_is_named() {
     let count = tree.get(b"Count").unwrap().as_i64().unwrap();
     tree.set("Count", count + 1);
     let pdf = save(doc);
-    let v = assert_altered(&pdf, &TRUST, &["an added page 13"]);
-    assert_eq!(changes(&v), ["an added page 13"]);
+    let v = assert_altered(&pdf, &TRUST, &[&added]);
+    assert_eq!(changes(&v), [added]);
 }
 
 #[test]
@@ -1043,7 +1044,7 @@ fn an_unsigned_report_whose_page_and_seal_were_both_remade_is_caught_by_re_rende
     let f = fixture();
     let edited = edit_page_text(&f.unsigned, 1);
     let doc = Pdf::parse(&edited, Limits::default()).unwrap();
-    let parts = annulus::archive::pdf::parts::document_parts(&doc, SEAL_NAME).unwrap();
+    let parts = annulus::pdf::parts::document_parts(&doc, SEAL_NAME).unwrap();
     let mut seal = Seal::parse(&attachment(&f.unsigned, SEAL_NAME)).unwrap();
     seal.payload.document = parts;
     let forged = with_attachment(&edited, SEAL_NAME, seal.to_bytes());

@@ -1,6 +1,6 @@
 //! Fuzz target: `annulus verify`'s PDF reading on arbitrary bytes. Every input must end in a
 //! verdict or a refusal (not a PDF, not ours), never a panic, a hang or unbounded memory: the
-//! reader caps objects, revisions, nesting and inflated sizes (`archive::pdf::Limits`).
+//! reader caps objects, revisions, nesting and inflated sizes (`pdf::Limits`).
 //!
 //! Seed it with real reports so mutations start from our own structure, e.g.
 //! `annulus report sample-data/stack/survey.toml -o fuzz/corpus/verify_pdf/stack.pdf`, then

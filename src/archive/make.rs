@@ -14,8 +14,10 @@ use super::sha256_hex;
 use crate::assess::Assessment;
 use crate::pipeline::Evaluation;
 use crate::report::build::{report_data, Identity};
-use crate::report::documents::{CALIBRATION_TEMPLATE, RATA_TEMPLATE};
+use crate::report::certificate::Certificate;
+use crate::report::documents::Presentation;
 use crate::report::engine::REPORT_TEMPLATE;
+use crate::report::rata::RataSummary;
 use crate::report::{AttachmentError, Engine, RenderError, RenderOptions, UserTemplate};
 use crate::results::ResultsDoc;
 use std::fmt;
@@ -31,8 +33,8 @@ pub fn program() -> String {
 pub fn renderer_id(kind: DocKind) -> String {
     let template = match kind {
         DocKind::Report => REPORT_TEMPLATE,
-        DocKind::Calibration => CALIBRATION_TEMPLATE,
-        DocKind::Rata => RATA_TEMPLATE,
+        DocKind::Calibration => Certificate::TEMPLATE,
+        DocKind::Rata => RataSummary::TEMPLATE,
     };
     format!(
         "{} (built-in {} template {})",
@@ -217,10 +219,10 @@ pub fn seal_document(
         )
         .map_err(MakeError::Attachment)?,
     );
-    let mut m = Manifest::new(&program(), "", &doc.date.to_string(), files);
+    let mut m = Manifest::new(&program(), "", &doc.meta.date.to_string(), files);
     m.kind = Some(kind);
     m.renderer = Some(renderer_id(kind));
-    m.document_date = Some(doc.date.to_string());
+    m.document_date = Some(doc.meta.date.to_string());
     doc.attachments.push(
         Attachment::new(
             MANIFEST_NAME,
@@ -234,6 +236,28 @@ pub fn seal_document(
         .push(placeholder().map_err(MakeError::Attachment)?);
     let rendered = engine.render_document(&doc).map_err(MakeError::Render)?;
     seal_pdf(&rendered.pdf, &m.fingerprint(), None).map_err(MakeError::Seal)
+}
+
+/// [`seal_document`] for a typed presentation model laid out with its built-in template (the
+/// calibration certificate, the RATA summary).
+pub fn seal_presentation<P: Presentation>(
+    engine: &Engine,
+    model: &P,
+    attachments: Vec<crate::report::Attachment>,
+    kind: DocKind,
+    inputs: &[InputRole],
+    results: Vec<u8>,
+) -> Result<Vec<u8>, MakeError> {
+    let data = serde_json::to_vec(model)
+        .map_err(|e| MakeError::Render(RenderError::Internal(e.to_string())))?;
+    let doc = crate::report::documents::Document {
+        template: P::TEMPLATE.to_string(),
+        template_name: P::TEMPLATE_NAME.to_string(),
+        data,
+        meta: model.meta(),
+        attachments,
+    };
+    seal_document(engine, doc, kind, inputs, results)
 }
 
 /// The inputs and results a calibration certificate embeds.
@@ -255,14 +279,14 @@ pub fn calibration_inputs(
             readings_path,
         ),
     ];
-    let summary = super::verify::documents::CalibrationSummary::of(c);
+    let summary = super::verify::documents::CalibrationResults::of(c);
     (inputs, super::verify::documents::results_bytes(&summary))
 }
 
 /// The inputs and results a RATA summary embeds (its attachments other than the RATA file are
 /// the survey files it references).
-pub fn rata_inputs(r: &crate::input::rata_file::LoadedRata) -> (Vec<InputRole>, Vec<u8>) {
+pub fn rata_inputs(r: &crate::pipeline::rata::RataEvaluation) -> (Vec<InputRole>, Vec<u8>) {
     let inputs = vec![(r.file.name.clone(), "rata", r.file.name.clone())];
-    let summary = super::verify::documents::RataSummary::of_loaded(r);
+    let summary = super::verify::documents::RataResults::of_evaluation(r);
     (inputs, super::verify::documents::results_bytes(&summary))
 }

@@ -5,11 +5,11 @@
 //! firm's own was used) and the results JSON ([`bundle`]). The [`manifest`] lists the SHA-256 of
 //! each, the program, the renderer, the document date and the signer; its own SHA-256 is the
 //! report's content fingerprint, printed on every page. The [`seal`] records a digest of every part
-//! of the finished PDF a reader sees ([`pdf::parts`]) and is what an Ed25519 signature
+//! of the finished PDF a reader sees ([`crate::pdf::parts`]) and is what an Ed25519 signature
 //! (`ed25519-dalek`, [`keys`]) covers; [`make`] renders and seals. [`verify`] judges a PDF's
 //! content, signature (against a [`trust`] list), results and, where needed, re-renders it;
 //! [`review`] does that for every file of a folder, with [`forensics`] naming known mistakes. The
-//! PDF reading is [`pdf`], bounded against hostile files. No file reading here except through the
+//! PDF reading is [`crate::pdf`], bounded against hostile files. No file reading here except through the
 //! caller's bytes.
 
 pub mod bundle;
@@ -17,7 +17,6 @@ pub mod forensics;
 pub mod keys;
 pub mod make;
 pub mod manifest;
-pub mod pdf;
 pub mod review;
 pub mod seal;
 pub mod trust;

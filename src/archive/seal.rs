@@ -4,21 +4,21 @@
 //!
 //! Owns the seal's format ([`Seal`], [`SealPayload`]), making it ([`seal_pdf`]: the engine renders
 //! the document with a placeholder seal, the digests are taken, and the placeholder's data is
-//! replaced in place by [`super::pdf::splice`], so the file stays one revision and byte-
+//! replaced in place by [`crate::pdf::splice`], so the file stays one revision and byte-
 //! reproducible) and checking its signature ([`Seal::signature_state`]). Must not read files,
 //! print or look at the clock.
 //!
 //! What the signature covers: the payload, which names the manifest's SHA-256 (hence every
 //! embedded file, the signer's name and key, the document date) and holds the digest of each page
 //! (content and annotations), each document information entry, the XMP metadata, each embedded
-//! file and each other catalog entry ([`super::pdf::parts`]). A signed report therefore binds
+//! file and each other catalog entry ([`crate::pdf::parts`]). A signed report therefore binds
 //! what is printed to what is embedded; an unsigned one carries the same digests, which catch an
 //! edit but can be recomputed by anyone (verification then re-renders, see `archive::verify`).
 
 use super::keys::{PublicKey, SecretKey};
-use super::pdf::parts::{document_parts, DocumentParts};
-use super::pdf::{files, Limits, Object, Pdf, PdfError};
 use super::{hex, unhex};
+use crate::pdf::parts::{document_parts, DocumentParts};
+use crate::pdf::{files, Limits, Object, Pdf, PdfError};
 use crate::report::{Attachment, AttachmentError};
 use serde::{Deserialize, Serialize};
 use std::fmt;
@@ -188,13 +188,13 @@ pub fn seal_pdf(
             }
         }
     }
-    Ok(super::pdf::splice::replace_stream(&doc, r.num, &d, &data)?)
+    Ok(crate::pdf::splice::replace_stream(&doc, r.num, &d, &data)?)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::archive::pdf::tests::sample_with_seal;
+    use crate::pdf::tests::sample_with_seal;
 
     #[test]
     fn a_sealed_file_keeps_its_digests_and_its_signature_verifies() {

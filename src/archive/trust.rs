@@ -11,7 +11,7 @@
 //! public_key = "<64 hex digits>"
 //! ```
 //!
-//! Reading folders and files is `input::trust_file`'s job; this module only judges text.
+//! Reading folders and files is the command line's job (`cli::trust`); this module only judges text.
 
 use super::keys::{check_name, KeyError, NamedKey, PublicKey};
 use std::fmt;

@@ -108,7 +108,7 @@ fn read_capped(path: &Path, cap: u64) -> std::io::Result<Vec<u8>> {
             std::io::ErrorKind::FileTooLarge,
             format!(
                 "not reviewed: larger than the per-file size budget of {} (--file-size-limit)",
-                crate::archive::pdf::bytes_text(cap as usize)
+                crate::pdf::bytes_text(cap as usize)
             ),
         )
     };

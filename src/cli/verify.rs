@@ -71,7 +71,7 @@ pub(crate) fn trust_from(keys: &[PathBuf], trust: &[PathBuf]) -> Result<(TrustLi
         None
     };
     Ok(
-        match crate::input::trust_file::load_trust(keys, trust, config.as_ref())? {
+        match super::trust::load_trust(keys, trust, config.as_ref())? {
             Some(list) => (list, true),
             None => (TrustList::new(), false),
         },
@@ -101,7 +101,7 @@ pub(crate) fn read_bounded(path: &Path, cap: u64, what: &str) -> Result<Vec<u8>,
     if bytes.len() as u64 > cap {
         return Err(fail(format!(
             "`{name}` is larger than {}, more than any {what} holds",
-            crate::archive::pdf::bytes_text(cap as usize)
+            crate::pdf::bytes_text(cap as usize)
         )));
     }
     Ok(bytes)

@@ -17,7 +17,6 @@ pub mod readings;
 pub mod survey;
 pub mod text;
 pub mod toml_doc;
-pub mod trust_file;
 
 use crate::checks::config::AssessConfig;
 use crate::diag::{Diagnostic, Error, Location};

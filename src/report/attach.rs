@@ -8,7 +8,7 @@
 //! The engine embeds each attachment with Typst's `pdf.attach` (relationship `data`), which under
 //! PDF/A-3b (ISO 19005-3) also lists it in the catalog's `/AF` array. Extraction walks the
 //! `/EmbeddedFiles` name tree of the catalog (ISO 32000-1 §7.11.4 file specifications, §7.9.6 name
-//! trees) with the bounded reader of `archive::pdf`.
+//! trees) with the bounded reader of `crate::pdf`.
 
 use std::collections::BTreeSet;
 use std::fmt;
@@ -152,7 +152,7 @@ pub fn check_unique(attachments: &[Attachment]) -> Result<(), AttachmentError> {
     Ok(())
 }
 
-pub use crate::archive::pdf::files::EmbeddedFile;
+pub use crate::pdf::files::EmbeddedFile;
 
 /// Why embedded files could not be read from a PDF.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -175,9 +175,9 @@ impl fmt::Display for ExtractError {
 impl std::error::Error for ExtractError {}
 
 /// Every embedded file in the PDF, in name-tree order (sorted by name, as the tree requires),
-/// read with the bounded reader of [`crate::archive::pdf`] and its default caps.
+/// read with the bounded reader of [`crate::pdf`] and its default caps.
 pub fn embedded_files(pdf: &[u8]) -> Result<Vec<EmbeddedFile>, ExtractError> {
-    use crate::archive::pdf::{files, Limits, Pdf, PdfError};
+    use crate::pdf::{files, Limits, Pdf, PdfError};
     let convert = |e: PdfError| match e {
         PdfError::NotPdf => ExtractError::NotPdf {
             detail: e.to_string(),

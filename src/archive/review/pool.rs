@@ -15,9 +15,9 @@ use super::matching::ReportIndex;
 use super::{
     extension, review_path, review_report, FileContext, Kind, Note, Outcome, Review, Reviewed,
 };
-use crate::archive::pdf::Limits;
 use crate::archive::trust::TrustList;
 use crate::archive::verify::{RerenderPolicy, TrustPolicy, VerifyOptions};
+use crate::pdf::Limits;
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
 use std::sync::mpsc;

@@ -1,15 +1,16 @@
 //! Calibration certificates and RATA summaries: the results they embed, re-derived from their
 //! embedded inputs on verification; and the identity of a document for reviews.
 //!
-//! A certificate embeds the calibration file, its readings and a [`CalibrationSummary`]; a RATA
-//! summary embeds the RATA file, any survey files it references and a [`RataSummary`]. Verifying
+//! A certificate embeds the calibration file, its readings and a [`CalibrationResults`]; a RATA
+//! summary embeds the RATA file, any survey files it references and a [`RataResults`]. Verifying
 //! reloads the inputs from the attachments (by their manifest paths, in a virtual folder), computes
 //! the summary again and compares it value by value with the embedded one.
 
 use super::recompute::{compare_values, first_problem, Recomputation};
 use crate::archive::manifest::{DocKind, Manifest};
 use crate::input::calibration_file::LoadedCalibration;
-use crate::input::rata_file::{parse_rata, LoadedRata, ReferenceSpec};
+use crate::input::rata_file::{parse_rata, ReferenceSpec};
+use crate::pipeline::rata::RataEvaluation;
 use crate::rata::{evaluate_rata, RataResult, RataRun, PART_75_FLOW_LIMITS};
 use crate::survey::Survey;
 use serde::{Deserialize, Serialize};
@@ -38,7 +39,7 @@ impl Identity {
 
 /// What a calibration certificate states, as it embeds it (`results.json`).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct CalibrationSummary {
+pub struct CalibrationResults {
     pub probe: String,
     pub serial: Option<String>,
     pub date: String,
@@ -53,10 +54,10 @@ pub struct CalibrationSummary {
     pub assigned_coefficient: Option<f64>,
 }
 
-impl CalibrationSummary {
-    pub fn of(c: &LoadedCalibration) -> CalibrationSummary {
+impl CalibrationResults {
+    pub fn of(c: &LoadedCalibration) -> CalibrationResults {
         let cal = &c.calibration;
-        CalibrationSummary {
+        CalibrationResults {
             probe: c.meta.probe.clone(),
             serial: c.meta.serial.clone(),
             date: c.meta.date.to_string(),
@@ -74,7 +75,7 @@ impl CalibrationSummary {
 
 /// What a RATA summary states, as it embeds it (`results.json`), SI.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct RataSummary {
+pub struct RataResults {
     pub monitor_id: String,
     pub date: String,
     pub used_runs: usize,
@@ -89,9 +90,9 @@ pub struct RataSummary {
     pub bias_adjustment_factor: f64,
 }
 
-impl RataSummary {
-    pub fn of(monitor_id: &str, date: &str, r: &RataResult) -> RataSummary {
-        RataSummary {
+impl RataResults {
+    pub fn of(monitor_id: &str, date: &str, r: &RataResult) -> RataResults {
+        RataResults {
             monitor_id: monitor_id.to_string(),
             date: date.to_string(),
             used_runs: r.used_runs,
@@ -107,9 +108,9 @@ impl RataSummary {
         }
     }
 
-    pub fn of_loaded(r: &LoadedRata) -> RataSummary {
+    pub fn of_evaluation(r: &RataEvaluation) -> RataResults {
         let m = &r.spec.meta;
-        RataSummary::of(&m.monitor_id, &m.date.to_string(), &r.result)
+        RataResults::of(&m.monitor_id, &m.date.to_string(), &r.result)
     }
 }
 
@@ -167,7 +168,7 @@ pub fn recompute(
                 }
             }
             match crate::input::calibration_file::load_with(&path, &|p| files.read(p)) {
-                Ok(c) => serde_json::to_value(CalibrationSummary::of(&c)),
+                Ok(c) => serde_json::to_value(CalibrationResults::of(&c)),
                 Err(e) => {
                     return impossible(format!(
                         "the embedded calibration does not load: {}",
@@ -206,7 +207,7 @@ pub fn recompute(
                 }
             }
             match evaluate_rata(runs, spec.quantity, PART_75_FLOW_LIMITS) {
-                Ok(r) => serde_json::to_value(RataSummary::of(
+                Ok(r) => serde_json::to_value(RataResults::of(
                     &spec.meta.monitor_id,
                     &spec.meta.date.to_string(),
                     &r,

@@ -2,9 +2,9 @@
 //! and size, nothing embedded that the manifest does not list.
 
 use crate::archive::manifest::{Manifest, MANIFEST_NAME, SIGNATURE_NAME};
-use crate::archive::pdf::files::EmbeddedFile;
 use crate::archive::seal::SEAL_NAME;
 use crate::archive::sha256_hex;
+use crate::pdf::files::EmbeddedFile;
 use serde::Serialize;
 use std::collections::HashMap;
 

@@ -21,7 +21,7 @@
 //! signature counts under the trust policy (with a trust list in force: trusted only).
 //!
 //! Must not read files, print or look at the clock: the caller hands in the PDF bytes, the trust
-//! list and the policy. Reading is bounded ([`crate::archive::pdf::Limits`]): a hostile file ends
+//! list and the policy. Reading is bounded ([`crate::pdf::Limits`]): a hostile file ends
 //! as `damaged` with the cap it hit.
 
 pub mod documents;
@@ -38,12 +38,12 @@ pub use signer::{SignatureReport, SignatureStatus, TrustPolicy};
 use super::manifest::{
     DocKind, Manifest, Signature, FORMAT, FORMAT_V1, MANIFEST_NAME, SIGNATURE_NAME,
 };
-use super::pdf::parts::{compare, document_parts, DocumentParts};
-use super::pdf::{files::embedded, looks_like_pdf, Limits, Pdf, PdfError};
 use super::seal::{Seal, SealSignatureState, SEAL_FORMAT, SEAL_NAME};
 use super::sha256_hex;
 use super::trust::TrustList;
 use crate::assess::Verdict;
+use crate::pdf::parts::{compare, document_parts, DocumentParts};
+use crate::pdf::{files::embedded, looks_like_pdf, Limits, Pdf, PdfError};
 use serde::Serialize;
 use std::collections::HashMap;
 use std::fmt;
@@ -290,7 +290,7 @@ impl Verification {
 }
 
 /// The first occurrence of each attachment name, and later ones as duplicates.
-fn index(embedded: &[super::pdf::files::EmbeddedFile]) -> (HashMap<&str, &[u8]>, Vec<FileCheck>) {
+fn index(embedded: &[crate::pdf::files::EmbeddedFile]) -> (HashMap<&str, &[u8]>, Vec<FileCheck>) {
     let mut by_name: HashMap<&str, &[u8]> = HashMap::new();
     let mut duplicates = Vec::new();
     for f in embedded {
@@ -607,7 +607,7 @@ mod tests {
         };
         assert!(d.to_string().contains("no `annulus-manifest.json`"));
         // a truncated PDF is a damaged document, not "not a PDF"
-        let b = crate::archive::pdf::tests::sample();
+        let b = crate::pdf::tests::sample();
         let v = verify(&b[..b.len() / 2], &o).unwrap();
         assert_eq!(v.content, ContentState::Damaged);
         assert!(!v.verified);

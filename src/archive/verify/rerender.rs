@@ -10,8 +10,8 @@
 use super::recompute::Recomputed;
 use crate::archive::make::{program, render_report, renderer_id, ReportSettings};
 use crate::archive::manifest::{DocKind, Manifest};
-use crate::archive::pdf::parts::{compare, DocumentParts};
 use crate::archive::seal::digests;
+use crate::pdf::parts::{compare, DocumentParts};
 use crate::report::{Engine, UserTemplate};
 use serde::Serialize;
 use std::collections::HashMap;

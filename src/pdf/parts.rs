@@ -322,7 +322,7 @@ impl Walk<'_, '_> {
                 }
             }
         }
-        Ok(crate::archive::hex(&st.h.finalize()))
+        Ok(crate::digest::hex(&st.h.finalize()))
     }
 
     fn write(
@@ -698,7 +698,7 @@ pub fn document_parts(pdf: &Pdf, excluded: &str) -> Result<DocumentParts, PdfErr
         let d = w.digest(std::slice::from_ref(spec), &walk_into)?;
         // a name given twice: both copies count
         match parts.attachments.get_mut(name) {
-            Some(prev) => *prev = crate::archive::sha256_hex(format!("{prev}{d}").as_bytes()),
+            Some(prev) => *prev = crate::digest::sha256_hex(format!("{prev}{d}").as_bytes()),
             None => {
                 parts.attachments.insert(name.clone(), d);
             }

@@ -1,5 +1,6 @@
-//! Reading trust lists: `.pub` files, trust list files and folders of `.pub` files (see
-//! [`crate::archive::trust`] for the formats).
+//! Reading trust lists for `verify` and `review`: `.pub` files, trust list files and folders of
+//! `.pub` files (see [`crate::archive::trust`] for the formats). Reading keys is the command
+//! line's job, like reading the report to verify.
 
 use crate::archive::trust::TrustList;
 use crate::diag::{Diagnostic, Error, Location};
@@ -46,7 +47,7 @@ fn add_file(list: &mut TrustList, path: &Path) -> Result<(), Error> {
             "pass a .pub file or a trust list file",
         ));
     }
-    let (_, text) = super::read_text(path, &name)?;
+    let (_, text) = crate::input::read_text(path, &name)?;
     let stem = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())

@@ -1,4 +1,5 @@
-//! A small, bounded PDF reader: what `annulus verify` needs to read a report and nothing more.
+//! A small, bounded PDF reader: what `annulus verify` needs to read a report and nothing more
+//! (and what the report's own attachment reading uses).
 //!
 //! Owns the cross-reference sections (classic tables and cross-reference streams, followed through
 //! `/Prev` as a viewer would, ISO 32000-1 §7.5), indirect objects (also inside object streams,
