@@ -1,6 +1,6 @@
 //! Latency of one survey through `compute` (load from memory, evaluate, checks and budgets, the
-//! results JSON) and of one `report` render (report model, bundle and manifest, signature, Typst
-//! layout and PDF export with the files embedded), on the invented sample-data/stack survey.
+//! results JSON) and of one `report` render (report model, bundle and manifest, Typst layout and
+//! PDF export with the files embedded, then the document seal and its signature), on the invented sample-data/stack survey.
 //!
 //! Run (release build; the first build takes a while):
 //!
@@ -15,14 +15,14 @@
 #[global_allocator]
 static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
-use annulus::archive::bundle::pack;
-use annulus::archive::{SecretKey, Signature};
+use annulus::archive::make::{make_report, ReportSettings};
+use annulus::archive::manifest::SignerEntry;
+use annulus::archive::SecretKey;
 use annulus::assess::assess;
 use annulus::input::assess_config::load_assess_config;
 use annulus::input::load_with;
 use annulus::pipeline::{evaluate, evaluate_and_assess};
-use annulus::report::build::{report_data, Identity};
-use annulus::report::{Engine, RenderOptions};
+use annulus::report::Engine;
 use annulus::results::ResultsDoc;
 use criterion::{criterion_group, criterion_main, Criterion};
 use std::collections::HashMap;
@@ -107,21 +107,13 @@ fn bench_latency(c: &mut Criterion) {
         b.iter(|| {
             let loaded = load_with(survey, &source).expect("sample survey loads");
             let (e, a) = evaluate_and_assess(loaded).expect("sample survey evaluates");
-            let doc = ResultsDoc::new(&e, &a);
-            let json = serde_json::to_vec_pretty(&doc).expect("serialises");
-            let bundle = pack(&e.loaded, json, "annulus bench");
-            let signature = Signature::sign(&bundle.manifest, &key);
-            let identity = Identity {
-                report_id: bundle.manifest.report_id(),
-                content_sha256: bundle.manifest.fingerprint(),
-                signer_key_fingerprint: Some(signature.fingerprint.clone()),
+            // bundle and manifest, Typst layout and PDF export, then the seal and its signature
+            let settings = ReportSettings {
+                template: None,
+                document_date: e.loaded.survey.date,
+                signer: Some(SignerEntry::new("bench", &key.public())),
             };
-            let data = report_data(&e, &a, &identity);
-            let options = RenderOptions {
-                date: e.loaded.survey.date,
-                attachments: bundle.attachments(Some(&signature)).expect("attachments"),
-            };
-            black_box(engine.render_report(&data, &options).expect("renders"))
+            black_box(make_report(&engine, &e, &a, &settings, Some(&key)).expect("renders"))
         })
     });
     g.finish();

@@ -1,6 +1,6 @@
 //! Throughput of `annulus review`'s per-file work: recompute + checks over a generated archive of
 //! 10 000 surveys (2 lines × 12 points, 3 runs each), held in memory so the figure is the
-//! program's, not the disk's. Measured twice over the same paths: in parallel (rayon, as the CLI
+//! program's, not the disk's. Measured twice over the same paths: in parallel (worker threads, as the CLI
 //! runs it) and single-threaded (a plain iterator), so the speed-up is measured, not assumed.
 //!
 //! Run (release build; the first build takes a while):
@@ -17,11 +17,16 @@
 #[global_allocator]
 static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
-use annulus::archive::review::{review_all, review_path, Review};
+use annulus::archive::review::{
+    review_all, review_path, FileContext, Review, ReviewSettings, SharedSource,
+};
+use annulus::archive::trust::TrustList;
+use annulus::archive::verify::VerifyOptions;
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::collections::HashMap;
 use std::hint::black_box;
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 use std::time::Duration;
 
 const DEFAULT_SURVEYS: usize = 10_000;
@@ -128,14 +133,24 @@ fn bench_review(c: &mut Criterion) {
         .and_then(|v| v.parse().ok())
         .unwrap_or(DEFAULT_SURVEYS);
     let (paths, files) = archive(n);
-    let source = |p: &Path| {
-        files
-            .get(p)
-            .cloned()
-            .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
+    let files = Arc::new(files);
+    let shared: SharedSource = {
+        let files = files.clone();
+        Arc::new(move |p: &Path| {
+            files
+                .get(p)
+                .cloned()
+                .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
+        })
     };
+    let source = |p: &Path| shared(p);
+    let settings = Arc::new(ReviewSettings::default());
     // every generated survey must load: a benchmark of error paths would measure nothing useful
-    let check = review_all(&paths[..n.min(20)], &source, None, &|| {});
+    let check = review_all(
+        paths[..n.min(20)].to_vec(),
+        shared.clone(),
+        settings.clone(),
+    );
     assert!(
         check
             .files
@@ -152,12 +167,17 @@ fn bench_review(c: &mut Criterion) {
     g.warm_up_time(Duration::from_secs(1));
     g.measurement_time(Duration::from_secs(30));
     g.bench_function(format!("parallel/{n}-surveys"), |b| {
-        b.iter(|| black_box(review_all(&paths, &source, None, &|| {})))
+        b.iter(|| black_box(review_all(paths.clone(), shared.clone(), settings.clone())))
     });
+    let list = TrustList::new();
+    let cx = FileContext {
+        verify: VerifyOptions::open(&list),
+        reports: None,
+    };
     g.bench_function(format!("single-thread/{n}-surveys"), |b| {
         b.iter(|| {
             black_box(Review::collect(
-                paths.iter().map(|p| review_path(p, &source, None)),
+                paths.iter().map(|p| review_path(p, &source, &cx)),
             ))
         })
     });

@@ -287,7 +287,17 @@ fn calibrate_certificate_pdf_carries_the_numbers_and_the_files() {
     let files = annulus::report::embedded_files(&bytes).expect("attachments readable");
     let mut names: Vec<&str> = files.iter().map(|f| f.name.as_str()).collect();
     names.sort_unstable();
-    assert_eq!(names, ["ts-0417.csv", "ts-0417.toml"]);
+    // the inputs, plus what makes the certificate verifiable: results, manifest and seal
+    assert_eq!(
+        names,
+        [
+            "annulus-manifest.json",
+            "annulus-seal.json",
+            "results.json",
+            "ts-0417.csv",
+            "ts-0417.toml"
+        ]
+    );
     let get = |name: &str| files.iter().find(|f| f.name == name).expect("embedded");
     assert_eq!(
         get("ts-0417.toml").bytes,
@@ -584,8 +594,8 @@ fn rata_summary_pdf_carries_the_numbers_and_the_files() {
     );
     assert_eq!(
         files.len(),
-        7,
-        "the RATA file and three surveys with their readings"
+        10,
+        "the RATA file and three surveys with their readings, then results, manifest and seal"
     );
 
     let pdf = dir.path().join("bias.pdf");

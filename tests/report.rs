@@ -151,9 +151,11 @@ fn attachments_are_the_inputs_byte_for_byte() {
         );
         assert_eq!(by(&name).mime.as_deref(), Some("text/csv"));
     }
-    // the manifest lists every other attachment with its SHA-256
+    // the manifest lists every other attachment with its SHA-256 (all but itself and the seal,
+    // which records the manifest's own SHA-256)
     let m = annulus::archive::Manifest::parse(&by("annulus-manifest.json").bytes).unwrap();
-    assert_eq!(m.files.len(), files.len() - 1);
+    assert_eq!(m.files.len(), files.len() - 2);
+    assert!(by("annulus-seal.json").bytes.starts_with(b"{"));
     for e in &m.files {
         assert_eq!(
             e.sha256,

@@ -30,6 +30,7 @@ fn model(name: &str) -> ReportData {
         report_id: bundle.manifest.report_id(),
         content_sha256: bundle.manifest.fingerprint(),
         signer_key_fingerprint: None,
+        signer_name: None,
     };
     report_data(&e, &a, &id)
 }

@@ -1,7 +1,8 @@
-//! What a report carries: the survey and readings byte-exact, the results JSON, the manifest and
-//! (when signed) the signature, as PDF attachments with their names and roles.
+//! What a report carries: the survey and readings byte-exact, the calibration record it names,
+//! the results JSON, the template when a firm's own was used, and the manifest, as PDF
+//! attachments with their names and roles. (The document seal is added by `archive::make`.)
 
-use super::manifest::{Manifest, Signature, MANIFEST_NAME, RESULTS_NAME, SIGNATURE_NAME};
+use super::manifest::{Manifest, MANIFEST_NAME, RESULTS_NAME};
 use crate::input::Loaded;
 use crate::report::{Attachment, AttachmentError};
 
@@ -78,11 +79,33 @@ pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
 }
 
 impl Bundle {
-    /// The PDF attachments: every file, the manifest, and the signature when given.
-    pub fn attachments(
-        &self,
-        signature: Option<&Signature>,
-    ) -> Result<Vec<Attachment>, AttachmentError> {
+    /// Adds a file after the others (before the results), recording it in the manifest; the
+    /// name is made unique with `prefix` when taken.
+    pub fn add(
+        &mut self,
+        name: &str,
+        path: &str,
+        role: &'static str,
+        bytes: Vec<u8>,
+        prefix: &str,
+    ) {
+        let mut name = file_name(name);
+        if self.files.iter().any(|(n, _, _, _)| *n == name) {
+            name = format!("{prefix}-{name}");
+        }
+        let at = self
+            .files
+            .iter()
+            .position(|(_, _, r, _)| *r == "results")
+            .unwrap_or(self.files.len());
+        self.manifest
+            .files
+            .insert(at, Manifest::entry(&name, path, role, &bytes));
+        self.files.insert(at, (name, path.to_string(), role, bytes));
+    }
+
+    /// The PDF attachments: every file, then the manifest.
+    pub fn attachments(&self) -> Result<Vec<Attachment>, AttachmentError> {
         let mut v = Vec::new();
         for (name, path, role, bytes) in &self.files {
             let (mime, what) = match *role {
@@ -95,6 +118,15 @@ impl Bundle {
                 "calibration-readings" => (
                     "text/csv",
                     format!("pitot calibration readings `{path}` as read"),
+                ),
+                "template" => (
+                    "text/plain",
+                    format!("report template `{path}` the pages were laid out with, as read"),
+                ),
+                "rata" => ("application/toml", format!("RATA file `{path}` as read")),
+                "rata-input" => (
+                    "application/octet-stream",
+                    format!("RATA input `{path}` as read"),
                 ),
                 _ => (
                     "application/json",
@@ -109,14 +141,6 @@ impl Bundle {
             "application/json",
             "manifest: SHA-256 of every embedded file; its own SHA-256 is the content fingerprint",
         )?);
-        if let Some(sig) = signature {
-            v.push(Attachment::new(
-                SIGNATURE_NAME,
-                sig.to_bytes(),
-                "application/json",
-                "Ed25519 signature of the manifest",
-            )?);
-        }
         Ok(v)
     }
 }

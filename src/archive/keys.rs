@@ -2,11 +2,15 @@
 //!
 //! ```text
 //! annulus ed25519 secret key
+//! name: dana-ferrow
 //! <64 hex digits: the 32-byte seed>
 //! ```
 //!
-//! and `annulus ed25519 public key` with the 32-byte public key. The key fingerprint printed on
-//! reports is the first 16 hex digits of SHA-256 of the public key bytes, grouped by four.
+//! and `annulus ed25519 public key` with the key's name and the 32-byte public key. The name is
+//! the one given to `annulus keygen NAME`; a signed report prints it in its sign-off block, and a
+//! trust list made of `.pub` files knows each key by it. Files written before keys had names (no
+//! `name:` line) are still read; their name is `None`. The key fingerprint printed on reports is
+//! the first 16 hex digits of SHA-256 of the public key bytes, grouped by four.
 
 use super::{hex, sha256_hex, unhex};
 use ed25519_dalek::{Signer, SigningKey, Verifier, VerifyingKey};
@@ -39,8 +43,14 @@ impl fmt::Display for KeyError {
 
 impl std::error::Error for KeyError {}
 
-/// A signing key.
-pub struct SecretKey(SigningKey);
+/// Longest key name accepted.
+pub const MAX_NAME_CHARS: usize = 100;
+
+/// A signing key and the name it was made with.
+pub struct SecretKey {
+    key: SigningKey,
+    name: Option<String>,
+}
 
 /// A verifying key.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -51,46 +61,128 @@ impl SecretKey {
     pub fn generate() -> Result<SecretKey, KeyError> {
         let mut seed = [0u8; 32];
         getrandom::getrandom(&mut seed).map_err(|e| KeyError::NoRandomness(e.to_string()))?;
-        Ok(SecretKey(SigningKey::from_bytes(&seed)))
-    }
-
-    pub fn from_seed(seed: [u8; 32]) -> SecretKey {
-        SecretKey(SigningKey::from_bytes(&seed))
-    }
-
-    pub fn to_text(&self) -> String {
-        format!("{SECRET_HEADER}\n{}\n", hex(&self.0.to_bytes()))
-    }
-
-    pub fn parse(text: &str) -> Result<SecretKey, KeyError> {
-        let bytes = body(text, SECRET_HEADER)?;
-        let seed: [u8; 32] = bytes
-            .try_into()
-            .map_err(|_| KeyError::BadKey("a secret key is 32 bytes".into()))?;
         Ok(SecretKey::from_seed(seed))
     }
 
+    pub fn from_seed(seed: [u8; 32]) -> SecretKey {
+        SecretKey {
+            key: SigningKey::from_bytes(&seed),
+            name: None,
+        }
+    }
+
+    /// The same key under `name` (refused when empty, too long or holding a control character).
+    pub fn named(self, name: &str) -> Result<SecretKey, KeyError> {
+        Ok(SecretKey {
+            name: Some(check_name(name)?),
+            ..self
+        })
+    }
+
+    /// The name the key was made with, if its file records one.
+    pub fn name(&self) -> Option<&str> {
+        self.name.as_deref()
+    }
+
+    pub fn to_text(&self) -> String {
+        format!(
+            "{SECRET_HEADER}\n{}{}\n",
+            name_line(self.name.as_deref()),
+            hex(&self.key.to_bytes())
+        )
+    }
+
+    pub fn parse(text: &str) -> Result<SecretKey, KeyError> {
+        let (name, bytes) = body(text, SECRET_HEADER)?;
+        let seed: [u8; 32] = bytes
+            .try_into()
+            .map_err(|_| KeyError::BadKey("a secret key is 32 bytes".into()))?;
+        Ok(SecretKey {
+            key: SigningKey::from_bytes(&seed),
+            name,
+        })
+    }
+
     pub fn public(&self) -> PublicKey {
-        PublicKey(self.0.verifying_key())
+        PublicKey(self.key.verifying_key())
     }
 
     pub fn sign(&self, message: &[u8]) -> Vec<u8> {
-        self.0.sign(message).to_bytes().to_vec()
+        self.key.sign(message).to_bytes().to_vec()
     }
 }
 
-fn body(text: &str, header: &'static str) -> Result<Vec<u8>, KeyError> {
+/// A usable key name: trimmed, not empty, at most [`MAX_NAME_CHARS`], no control characters.
+pub fn check_name(name: &str) -> Result<String, KeyError> {
+    let n = name.trim();
+    if n.is_empty() {
+        return Err(KeyError::BadKey("the key name is empty".into()));
+    }
+    if n.chars().count() > MAX_NAME_CHARS {
+        return Err(KeyError::BadKey(format!(
+            "the key name is longer than {MAX_NAME_CHARS} characters"
+        )));
+    }
+    if n.chars().any(char::is_control) {
+        return Err(KeyError::BadKey(
+            "the key name holds a control character".into(),
+        ));
+    }
+    Ok(n.to_string())
+}
+
+fn name_line(name: Option<&str>) -> String {
+    name.map(|n| format!("name: {n}\n")).unwrap_or_default()
+}
+
+/// The optional `name:` line and the key bytes after `header`.
+fn body(text: &str, header: &'static str) -> Result<(Option<String>, Vec<u8>), KeyError> {
     let mut lines = text.lines().map(str::trim).filter(|l| !l.is_empty());
     if lines.next() != Some(header) {
         return Err(KeyError::NotAKeyFile { expected: header });
     }
-    let hexline = lines
+    let mut line = lines
         .next()
         .ok_or_else(|| KeyError::BadKey("the key line is missing".into()))?;
-    unhex(hexline).ok_or_else(|| KeyError::BadKey("the key line is not hex".into()))
+    let mut name = None;
+    if let Some(n) = line.strip_prefix("name:") {
+        name = Some(check_name(n)?);
+        line = lines
+            .next()
+            .ok_or_else(|| KeyError::BadKey("the key line is missing".into()))?;
+    }
+    let bytes = unhex(line).ok_or_else(|| KeyError::BadKey("the key line is not hex".into()))?;
+    Ok((name, bytes))
+}
+
+/// A public key and the name its file gives it.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct NamedKey {
+    pub name: Option<String>,
+    pub key: PublicKey,
+}
+
+impl NamedKey {
+    /// Reads a `.pub` file's text.
+    pub fn parse(text: &str) -> Result<NamedKey, KeyError> {
+        let (name, bytes) = body(text, PUBLIC_HEADER)?;
+        Ok(NamedKey {
+            name,
+            key: PublicKey::from_hex(&hex(&bytes))?,
+        })
+    }
+
+    pub fn to_text(&self) -> String {
+        format!(
+            "{PUBLIC_HEADER}\n{}{}\n",
+            name_line(self.name.as_deref()),
+            self.key.to_hex()
+        )
+    }
 }
 
 impl PublicKey {
+    /// The `.pub` file text without a name (see [`NamedKey::to_text`]).
     pub fn to_text(&self) -> String {
         format!("{PUBLIC_HEADER}\n{}\n", self.to_hex())
     }
@@ -109,9 +201,9 @@ impl PublicKey {
             .map_err(|e| KeyError::BadKey(e.to_string()))
     }
 
+    /// Reads a `.pub` file's text (its name, if any, is dropped: see [`NamedKey::parse`]).
     pub fn parse(text: &str) -> Result<PublicKey, KeyError> {
-        let bytes = body(text, PUBLIC_HEADER)?;
-        PublicKey::from_hex(&hex(&bytes))
+        NamedKey::parse(text).map(|k| k.key)
     }
 
     /// Short fingerprint printed on reports, e.g. `3f2a 9c01 77be 4d10`.
@@ -172,5 +264,28 @@ mod tests {
         ));
         assert!(SecretKey::parse("annulus ed25519 secret key\nabcd\n").is_err());
         assert_eq!(k.public().fingerprint().len(), 19);
+    }
+
+    #[test]
+    fn names_are_kept_validated_and_optional() {
+        let k = SecretKey::from_seed([3; 32]).named("dana-ferrow").unwrap();
+        let text = k.to_text();
+        assert!(text.starts_with("annulus ed25519 secret key\nname: dana-ferrow\n"));
+        let back = SecretKey::parse(&text).unwrap();
+        assert_eq!(back.name(), Some("dana-ferrow"));
+        assert_eq!(back.public(), k.public());
+        let public = NamedKey {
+            name: Some("dana-ferrow".into()),
+            key: k.public(),
+        };
+        assert_eq!(NamedKey::parse(&public.to_text()).unwrap(), public);
+        // a file from before names were recorded
+        let old = format!("annulus ed25519 public key\n{}\n", k.public().to_hex());
+        assert_eq!(NamedKey::parse(&old).unwrap().name, None);
+        assert!(SecretKey::from_seed([3; 32]).named(" ").is_err());
+        assert!(SecretKey::from_seed([3; 32]).named("a\u{7}").is_err());
+        assert!(SecretKey::from_seed([3; 32])
+            .named(&"x".repeat(MAX_NAME_CHARS + 1))
+            .is_err());
     }
 }

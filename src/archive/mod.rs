@@ -1,16 +1,25 @@
-//! Archive side of a report: the manifest of what it holds, Ed25519 signing, verification and
+//! Archive side of a report: what it holds, how it is sealed and signed, how it is verified, and the
 //! review of whole folders.
 //!
-//! A report embeds its inputs byte-exact (survey, readings) and the results JSON. The manifest lists
-//! the SHA-256 of each, the program version and the convention; its own SHA-256 is the report's content
-//! fingerprint, printed in the sign-off block. A signature (Ed25519, `ed25519-dalek`) over the manifest
-//! shows who signed what. No file reading here except through the caller's bytes.
+//! A report embeds its inputs byte-exact (survey, readings, calibration record, the template when a
+//! firm's own was used) and the results JSON ([`bundle`]). The [`manifest`] lists the SHA-256 of
+//! each, the program, the renderer, the document date and the signer; its own SHA-256 is the
+//! report's content fingerprint, printed on every page. The [`seal`] records a digest of every part
+//! of the finished PDF a reader sees ([`crate::pdf::parts`]) and is what an Ed25519 signature
+//! (`ed25519-dalek`, [`keys`]) covers; [`make`] renders and seals. [`verify`] judges a PDF's
+//! content, signature (against a [`trust`] list), results and, where needed, re-renders it;
+//! [`review`] does that for every file of a folder, with [`forensics`] naming known mistakes. The
+//! PDF reading is [`crate::pdf`], bounded against hostile files. No file reading here except through the
+//! caller's bytes.
 
 pub mod bundle;
 pub mod forensics;
 pub mod keys;
+pub mod make;
 pub mod manifest;
 pub mod review;
+pub mod seal;
+pub mod trust;
 pub mod verify;
 
 /// Digests live in `crate::digest` (the report's attachments use them too).

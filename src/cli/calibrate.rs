@@ -280,8 +280,16 @@ fn readings_csv(c: &LoadedCalibration) -> String {
 fn write_certificate(c: &LoadedCalibration, out: &std::path::Path) -> Result<(), Error> {
     let files = attachments(c)
         .map_err(|e| Error::Environment(format!("cannot embed the calibration files: {e}")))?;
-    let rendered = Engine::new()
-        .render(&certificate(c), files)
-        .map_err(|e| Error::Environment(e.to_string()))?;
-    write_atomic(out, &rendered.pdf).map_err(|e| Error::Environment(e.to_string()))
+    // sealed with its inputs, results and manifest, so `annulus verify` checks it like a report
+    let (inputs, results) = crate::archive::make::calibration_inputs(c);
+    let pdf = crate::archive::make::seal_presentation(
+        &Engine::new(),
+        &certificate(c),
+        files,
+        crate::archive::manifest::DocKind::Calibration,
+        &inputs,
+        results,
+    )
+    .map_err(|e| Error::Environment(e.to_string()))?;
+    write_atomic(out, &pdf).map_err(|e| Error::Environment(e.to_string()))
 }

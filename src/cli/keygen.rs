@@ -1,11 +1,14 @@
-//! `annulus keygen NAME`: writes a new Ed25519 key pair, `NAME.key` (secret) and `NAME.pub`, and
-//! prints the key fingerprint reports show.
+//! `annulus keygen NAME`: writes a new Ed25519 key pair, `NAME.key` (secret) and `NAME.pub`, both
+//! recording the key's name (NAME's last component: what signed reports print in their sign-off
+//! block and what a trust folder of `.pub` files knows the key by), and prints the key fingerprint
+//! reports show.
 //!
 //! The secret file is created with owner-only permissions (0600 on Unix) in the same call that
 //! creates it, so it is never readable by others, not even for an instant; neither file is ever
 //! overwritten (`create_new`).
 
 use super::output::Ctx;
+use crate::archive::keys::NamedKey;
 use crate::archive::SecretKey;
 use crate::diag::{Diagnostic, Error, Location};
 use clap::Args;
@@ -56,8 +59,27 @@ pub fn run(args: KeygenArgs, ctx: &Ctx) -> Result<i32, Error> {
             ));
         }
     }
-    let key = SecretKey::generate().map_err(|e| Error::Environment(e.to_string()))?;
+    let key_name = args
+        .name
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let key = SecretKey::generate()
+        .map_err(|e| Error::Environment(e.to_string()))?
+        .named(&key_name)
+        .map_err(|e| {
+            let n = args.name.display().to_string();
+            Error::input(
+                Diagnostic::new(format!("`{n}` cannot name a key: {e}"))
+                    .at(Location::file(&n))
+                    .hint("give a name such as `dana-ferrow`; the key files are NAME.key and NAME.pub"),
+            )
+        })?;
     let public = key.public();
+    let named = NamedKey {
+        name: key.name().map(str::to_string),
+        key: public.clone(),
+    };
     let failed = |p: &Path, e: std::io::Error| {
         let n = p.display().to_string();
         if e.kind() == std::io::ErrorKind::AlreadyExists {
@@ -72,7 +94,7 @@ pub fn run(args: KeygenArgs, ctx: &Ctx) -> Result<i32, Error> {
         }
     };
     create(&secret_path, &key.to_text(), true).map_err(|e| failed(&secret_path, e))?;
-    if let Err(e) = create(&public_path, &public.to_text(), false) {
+    if let Err(e) = create(&public_path, &named.to_text(), false) {
         // Leave no half pair behind: the secret file is the one this call just created.
         let _ = std::fs::remove_file(&secret_path);
         return Err(failed(&public_path, e));

@@ -18,6 +18,7 @@ mod plane_args;
 mod rata;
 mod report;
 mod review;
+mod trust;
 mod verify;
 
 use crate::diag::Error;

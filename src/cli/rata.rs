@@ -402,8 +402,16 @@ fn write_summary(r: &RataEvaluation, out: &std::path::Path) -> Result<(), Error>
     let files = attachments(r)
         .map_err(|e| Error::Environment(format!("cannot embed the RATA files: {e}")))?;
     let model = summary(r, &files);
-    let rendered = Engine::new()
-        .render(&model, files)
-        .map_err(|e| Error::Environment(e.to_string()))?;
-    write_atomic(out, &rendered.pdf).map_err(|e| Error::Environment(e.to_string()))
+    // sealed with its inputs, results and manifest, so `annulus verify` checks it like a report
+    let (inputs, results) = crate::archive::make::rata_inputs(r);
+    let pdf = crate::archive::make::seal_presentation(
+        &Engine::new(),
+        &model,
+        files,
+        crate::archive::manifest::DocKind::Rata,
+        &inputs,
+        results,
+    )
+    .map_err(|e| Error::Environment(e.to_string()))?;
+    write_atomic(out, &pdf).map_err(|e| Error::Environment(e.to_string()))
 }

@@ -1,14 +1,13 @@
 //! `annulus report`: compute, check and write the signed-off PDF test report.
 
-use super::output::{json_text, Ctx};
-use crate::archive::bundle::pack;
-use crate::archive::{SecretKey, Signature};
+use super::output::Ctx;
+use crate::archive::make::{make_report, MakeError, ReportSettings};
+use crate::archive::manifest::SignerEntry;
+use crate::archive::SecretKey;
 use crate::diag::{Diagnostic, Error, Location};
 use crate::input::load;
 use crate::pipeline::evaluate_and_assess;
-use crate::report::build::{report_data, Identity};
-use crate::report::{write_atomic, Engine, RenderOptions, UserTemplate};
-use crate::results::ResultsDoc;
+use crate::report::{write_atomic, Engine, UserTemplate};
 use clap::Args;
 use std::path::PathBuf;
 
@@ -22,9 +21,11 @@ pub struct ReportArgs {
     /// A firm's own Typst template, laid out against the same data as the built-in one.
     #[arg(long, value_name = "PATH")]
     pub template: Option<PathBuf>,
-    /// Sign the report's manifest with this Ed25519 secret key (see `annulus keygen`).
-    #[arg(long, value_name = "KEY")]
-    pub sign: Option<PathBuf>,
+    /// Sign the report with this Ed25519 secret key (see `annulus keygen`); its name is printed
+    /// in the sign-off block. `--sign` without a path uses `signing_key` of the configuration file.
+    #[arg(long, value_name = "KEY", num_args = 0..=1)]
+    #[allow(clippy::option_option)]
+    pub sign: Option<Option<PathBuf>>,
 }
 
 /// The document date: `SOURCE_DATE_EPOCH` when set (reproducible builds), else the survey date.
@@ -51,6 +52,22 @@ pub(crate) fn document_date(survey_date: chrono::NaiveDate) -> Result<chrono::Na
     }
 }
 
+/// The key `--sign` names and its file: the path given, or the configuration's `signing_key` for
+/// a bare `--sign`.
+fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
+    if let Some(p) = arg {
+        return Ok((read_key(p)?, p.clone()));
+    }
+    let config = crate::input::config_file::load_config()?;
+    match config.as_ref().and_then(|c| c.signing_key.as_ref()) {
+        Some(p) => Ok((read_key(p)?, p.clone())),
+        None => Err(Error::input(
+            Diagnostic::new("`--sign` was given without a key, and no configuration names a `signing_key`")
+                .hint("give the key file (`--sign dana-ferrow.key`), or set `signing_key` in the configuration file (see README, Configuration)"),
+        )),
+    }
+}
+
 pub(crate) fn read_key(path: &std::path::Path) -> Result<SecretKey, Error> {
     let name = path.display().to_string();
     let text = std::fs::read_to_string(path).map_err(|e| {
@@ -70,7 +87,8 @@ pub(crate) fn read_key(path: &std::path::Path) -> Result<SecretKey, Error> {
 }
 
 pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let key = args.sign.as_deref().map(read_key).transpose()?;
+    let key_and_path = args.sign.as_ref().map(signing_key).transpose()?;
+    let key = key_and_path.as_ref().map(|(k, _)| k);
     let template = match &args.template {
         Some(p) => {
             let name = p.display().to_string();
@@ -84,50 +102,51 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
     };
     let loaded = load(&args.survey)?;
     let (e, a) = evaluate_and_assess(loaded)?;
-    let doc = ResultsDoc::new(&e, &a);
-    let program = format!("annulus {}", env!("CARGO_PKG_VERSION"));
-    let bundle = pack(&e.loaded, json_text(&doc).into_bytes(), &program);
-    let signature = key.as_ref().map(|k| Signature::sign(&bundle.manifest, k));
-    let identity = Identity {
-        report_id: bundle.manifest.report_id(),
-        content_sha256: bundle.manifest.fingerprint(),
-        signer_key_fingerprint: signature.as_ref().map(|s| s.fingerprint.clone()),
+    // the key's name, else the key file's stem for keys made before keys had names
+    let signer = match &key_and_path {
+        Some((k, path)) => {
+            let stem = path
+                .file_stem()
+                .map(|s| s.to_string_lossy().into_owned())
+                .filter(|s| !s.is_empty())
+                .unwrap_or_else(|| "signing key".into());
+            Some(SignerEntry::new(k.name().unwrap_or(&stem), &k.public()))
+        }
+        None => None,
     };
-    let data = report_data(&e, &a, &identity);
-    let attachments = bundle
-        .attachments(signature.as_ref())
-        .map_err(|err| Error::Environment(format!("cannot embed the data files: {err}")))?;
-    let options = RenderOptions {
-        date: document_date(e.loaded.survey.date)?,
-        attachments,
+    let settings = ReportSettings {
+        template: template.as_ref(),
+        document_date: document_date(e.loaded.survey.date)?,
+        signer: signer.clone(),
     };
-    let engine = Engine::new();
-    let rendered = match &template {
-        Some(t) => engine.render_report_with_template(t, &data, &options),
-        None => engine.render_report(&data, &options),
-    }
-    .map_err(|err| match &template {
-        Some(t) => Error::input(
-            Diagnostic::new(format!("the template could not be laid out:\n{err}"))
-                .at(Location::file(&t.display_name))
-                .hint("the data a template receives is documented in src/report/model.rs (ReportData)"),
-        ),
-        None => Error::Environment(format!("the built-in report template failed: {err}")),
+    let made = make_report(&Engine::new(), &e, &a, &settings, key).map_err(|err| {
+        match (&err, &template) {
+            (MakeError::Render(r), Some(t)) => Error::input(
+                Diagnostic::new(format!("the template could not be laid out:\n{r}"))
+                    .at(Location::file(&t.display_name))
+                    .hint("the data a template receives is documented in src/report/model.rs (ReportData)"),
+            ),
+            (MakeError::Render(r), None) => {
+                Error::Environment(format!("the built-in report template failed: {r}"))
+            }
+            _ => Error::Environment(err.to_string()),
+        }
     })?;
-    write_atomic(&args.output, &rendered.pdf).map_err(|err| {
+    write_atomic(&args.output, &made.pdf).map_err(|err| {
         Error::Environment(format!("cannot write `{}`: {err}", args.output.display()))
     })?;
     if !ctx.quiet {
-        for w in &rendered.warnings {
+        for w in &made.warnings {
             eprintln!("warning: {w}");
         }
         eprintln!(
             "wrote {} — report {}{}; checks: {}",
             args.output.display(),
-            identity.report_id,
-            match &identity.signer_key_fingerprint {
-                Some(f) => format!(", signed by key {f}"),
-                None => ", unsigned".into(),
+            made.manifest.report_id(),
+            match (&signer, &key) {
+                (Some(s), Some(k)) =>
+                    format!(", signed by {} (key {})", s.name, k.public().fingerprint()),
+                _ => ", unsigned".into(),
             },
             match a.verdict {
                 crate::assess::Verdict::Pass => "pass",

@@ -1,32 +1,128 @@
-//! `annulus review DIR`: walks a folder tree, then recomputes and checks every survey and verifies
-//! every report in parallel (the per-file work is `archive::review`). Prints a summary table, CSV
-//! or JSON; a progress bar goes to stderr on long runs when stderr is a terminal.
+//! `annulus review DIR`: walks a folder tree, then verifies every report (and calibration
+//! certificate, and RATA summary) and recomputes and checks every survey in parallel, matching
+//! each survey with the reports made from it (the per-file work is `archive::review`). Prints a
+//! summary table, CSV or JSON at the end, or streams one JSON object per file as each is done
+//! (`--format ndjson`); a progress bar goes to stderr on long runs when stderr is a terminal.
 //!
-//! Exit codes: 0 everything passes (warnings allowed); 3 anything fails (a failed check, a report
-//! that does not verify, a wrong reported figure, a file that could not be reviewed); 1 the folder
-//! or key cannot be read at all.
+//! Exit codes: 0 no file has a status named by `--fail-on` (default `fail,error`); 3 some file
+//! has; 1 the folder, a key or the trust list cannot be read at all.
 
-use super::output::{csv_text, json_text, status, Ctx, Format, Table};
-use crate::archive::review::{is_candidate, review_all, Kind, Review, ReviewStatus, Reviewed};
+use super::output::{csv_text, json_text, status, Ctx, Table};
+use super::verify::{trust_from, RerenderArg};
+use crate::archive::review::{
+    is_candidate, review_stream, Kind, Outcome, Review, ReviewSettings, ReviewStatus, Reviewed,
+    SharedSource, Skipped,
+};
 use crate::diag::{Diagnostic, Error, Location};
-use clap::Args;
-use std::io::IsTerminal;
+use clap::{Args, ValueEnum};
+use std::io::{IsTerminal, Read, Write};
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::time::Duration;
 
 /// Below this many files a progress bar would only flicker.
 const PROGRESS_MIN_FILES: usize = 50;
+
+/// How the review is printed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ReviewFormat {
+    /// A summary table, then details of every file that is suspect, fails or could not be reviewed.
+    Table,
+    /// One object: the summary, every file, every skipped file.
+    Json,
+    /// One row per file with the identity columns.
+    Csv,
+    /// One JSON object per line, per file, written as soon as the file is reviewed.
+    Ndjson,
+}
+
+/// A review status, as `--fail-on` takes it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum StatusArg {
+    Pass,
+    Warn,
+    Suspect,
+    Fail,
+    Error,
+}
+
+impl StatusArg {
+    fn status(self) -> ReviewStatus {
+        match self {
+            StatusArg::Pass => ReviewStatus::Pass,
+            StatusArg::Warn => ReviewStatus::Warn,
+            StatusArg::Suspect => ReviewStatus::Suspect,
+            StatusArg::Fail => ReviewStatus::Fail,
+            StatusArg::Error => ReviewStatus::Error,
+        }
+    }
+}
 
 #[derive(Debug, Args)]
 pub struct ReviewArgs {
     /// The folder to review (searched recursively for *.toml surveys and *.pdf reports; folders
     /// whose names start with `.` are skipped). A single file is reviewed on its own.
     pub dir: PathBuf,
-    /// Require every report to carry a valid signature by this public key.
+    /// Trust signatures by this public key (a .pub file); may repeat. Any --key or --trust
+    /// replaces the configuration's trust list; with a trust list, other signers fail.
     #[arg(long, value_name = "PUB")]
-    pub key: Option<PathBuf>,
-    /// Output format: a summary table with details, one CSV row per file, or the full JSON.
-    #[arg(long, value_enum, default_value_t = Format::Table)]
-    pub format: Format,
+    pub key: Vec<PathBuf>,
+    /// Trust the keys of this folder of .pub files or trust list file; may repeat.
+    #[arg(long, value_name = "PATH")]
+    pub trust: Vec<PathBuf>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = ReviewFormat::Table)]
+    pub format: ReviewFormat,
+    /// Which statuses make the exit code 3, comma-separated.
+    #[arg(
+        long,
+        value_enum,
+        value_delimiter = ',',
+        value_name = "STATUS,…",
+        default_value = "fail,error"
+    )]
+    pub fail_on: Vec<StatusArg>,
+    /// When to re-render reports from their embedded inputs (see `annulus verify --help`).
+    #[arg(long, value_enum, default_value_t = RerenderArg::Auto)]
+    pub rerender: RerenderArg,
+    /// Per-file time budget in seconds: a file still under review after it is an error row.
+    #[arg(long, value_name = "SECONDS", default_value_t = 60.0)]
+    pub file_time_limit: f64,
+    /// Per-file size budget in MiB: a larger file (survey, readings or PDF) is an error row.
+    #[arg(long, value_name = "MiB", default_value_t = 256)]
+    pub file_size_limit: u64,
+}
+
+/// Reads a regular file of at most `cap` bytes; larger files give `FileTooLarge`, anything that
+/// is not a regular file (a FIFO, a device, a folder) an error, never a wait.
+fn read_capped(path: &Path, cap: u64) -> std::io::Result<Vec<u8>> {
+    let meta = std::fs::metadata(path)?;
+    if !meta.is_file() {
+        return Err(std::io::Error::new(
+            std::io::ErrorKind::InvalidInput,
+            "not a regular file (a folder, device or pipe)",
+        ));
+    }
+    let too_large = || {
+        std::io::Error::new(
+            std::io::ErrorKind::FileTooLarge,
+            format!(
+                "not reviewed: larger than the per-file size budget of {} (--file-size-limit)",
+                crate::pdf::bytes_text(cap as usize)
+            ),
+        )
+    };
+    if meta.len() > cap {
+        return Err(too_large());
+    }
+    let mut bytes = Vec::with_capacity(meta.len() as usize);
+    std::fs::File::open(path)?
+        .take(cap + 1)
+        .read_to_end(&mut bytes)?;
+    if bytes.len() as u64 > cap {
+        return Err(too_large());
+    }
+    Ok(bytes)
 }
 
 /// Every candidate file under `dir`, and the folders that could not be listed (as findings).
@@ -79,11 +175,7 @@ fn walk(dir: &Path) -> (Vec<PathBuf>, Vec<Reviewed>) {
 }
 
 pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let key = args
-        .key
-        .as_deref()
-        .map(super::verify::read_public_key)
-        .transpose()?;
+    let (list, required) = trust_from(&args.key, &args.trust)?;
     let name = args.dir.display().to_string();
     let meta = std::fs::metadata(&args.dir).map_err(|e| {
         Error::input(
@@ -92,11 +184,83 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
                 .hint("give the folder that holds the surveys and reports"),
         )
     })?;
+    if !(args.file_time_limit > 0.0 && args.file_time_limit.is_finite()) {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "--file-time-limit must be a positive number of seconds, found {}",
+                args.file_time_limit
+            ))
+            .hint("the default is 60"),
+        ));
+    }
+    if args.file_size_limit == 0 || args.file_size_limit > 1 << 20 {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "--file-size-limit must be from 1 to 1048576 MiB, found {}",
+                args.file_size_limit
+            ))
+            .hint("the default is 256"),
+        ));
+    }
     let (paths, bad) = if meta.is_dir() {
         walk(&args.dir)
     } else {
         (vec![args.dir.clone()], Vec::new())
     };
+    let settings = ReviewSettings {
+        trust: Arc::new(list),
+        trust_required: required,
+        rerender: args.rerender.policy(),
+        time_budget: Duration::from_secs_f64(args.file_time_limit),
+        ..ReviewSettings::default()
+    };
+    let cap = args.file_size_limit << 20;
+    let source: SharedSource = Arc::new(move |p: &Path| read_capped(p, cap));
+    let fail_on: Vec<ReviewStatus> = args.fail_on.iter().map(|s| s.status()).collect();
+    let failing = |r: &Reviewed| fail_on.contains(&r.status);
+
+    if args.format == ReviewFormat::Ndjson {
+        let mut counts = Counts::default();
+        let mut out = std::io::stdout().lock();
+        let mut failed = false;
+        let mut write_err = None;
+        let mut emit = |line: String| {
+            if write_err.is_none() {
+                if let Err(e) = writeln!(out, "{line}").and_then(|_| out.flush()) {
+                    write_err = Some(e);
+                }
+            }
+        };
+        for r in bad {
+            failed |= failing(&r);
+            counts.add(&Outcome::Reviewed(r.clone()));
+            emit(serde_json::to_string(&r).unwrap_or_default());
+        }
+        review_stream(paths, source, Arc::new(settings), &mut |o| {
+            counts.add(&o);
+            let line = match &o {
+                Outcome::Reviewed(r) => {
+                    failed |= failing(r);
+                    serde_json::to_string(r)
+                }
+                Outcome::Skipped(s) => serde_json::to_string(&SkippedLine::of(s)),
+            };
+            emit(line.unwrap_or_default());
+        });
+        match write_err {
+            Some(e) if e.kind() != std::io::ErrorKind::BrokenPipe => {
+                return Err(Error::Environment(format!(
+                    "cannot write to standard output: {e}"
+                )))
+            }
+            _ => {}
+        }
+        if !ctx.quiet {
+            eprintln!("{}", counts.line());
+        }
+        return Ok(if failed { 3 } else { 0 });
+    }
+
     let bar = (!ctx.quiet && paths.len() >= PROGRESS_MIN_FILES && std::io::stderr().is_terminal())
         .then(|| {
             let bar = indicatif::ProgressBar::new(paths.len() as u64);
@@ -107,27 +271,74 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
             }
             bar
         });
-    let tick = || {
+    let mut outcomes: Vec<Outcome> = bad.into_iter().map(Outcome::Reviewed).collect();
+    review_stream(paths, source, Arc::new(settings), &mut |o| {
         if let Some(b) = &bar {
             b.inc(1);
         }
-    };
-    let source = |p: &Path| std::fs::read(p);
-    let mut review = review_all(&paths, &source, key.as_ref(), &tick);
+        outcomes.push(o);
+    });
     if let Some(b) = &bar {
         b.finish_and_clear();
     }
-    if !bad.is_empty() {
-        review.files.extend(bad);
-        review.files.sort_by(|a, b| a.path.cmp(&b.path));
-    }
+    let review = Review::collect(outcomes);
     let text = match args.format {
-        Format::Json => json_text(&JsonReview::new(&review)),
-        Format::Csv => csv(&review),
-        Format::Table => table(&name, &review, ctx),
+        ReviewFormat::Json => json_text(&JsonReview::new(&review)),
+        ReviewFormat::Csv => csv(&review),
+        _ => table(&name, &review, ctx),
     };
     super::emit(&text)?;
-    Ok(if review.failed() { 3 } else { 0 })
+    Ok(if review.files.iter().any(failing) {
+        3
+    } else {
+        0
+    })
+}
+
+/// A skipped file as an NDJSON line.
+#[derive(serde::Serialize)]
+struct SkippedLine<'a> {
+    file: &'a str,
+    skipped: &'a str,
+}
+
+impl<'a> SkippedLine<'a> {
+    fn of(s: &'a Skipped) -> Self {
+        SkippedLine {
+            file: &s.file,
+            skipped: &s.reason,
+        }
+    }
+}
+
+/// Files per status, for the closing line of a streamed review.
+#[derive(Default)]
+struct Counts {
+    by_status: [usize; 5],
+    skipped: usize,
+}
+
+impl Counts {
+    fn add(&mut self, o: &Outcome) {
+        match o {
+            Outcome::Reviewed(r) => self.by_status[r.status as usize] += 1,
+            Outcome::Skipped(_) => self.skipped += 1,
+        }
+    }
+
+    fn line(&self) -> String {
+        let files: usize = self.by_status.iter().sum();
+        format!(
+            "{files} file{} reviewed: {} pass, {} warn, {} suspect, {} fail, {} could not be reviewed; {} skipped",
+            if files == 1 { "" } else { "s" },
+            self.by_status[0],
+            self.by_status[1],
+            self.by_status[2],
+            self.by_status[3],
+            self.by_status[4],
+            self.skipped
+        )
+    }
 }
 
 #[derive(serde::Serialize)]
@@ -135,6 +346,7 @@ struct Summary {
     files: usize,
     pass: usize,
     warn: usize,
+    suspect: usize,
     fail: usize,
     error: usize,
     skipped: usize,
@@ -161,6 +373,7 @@ fn summary(r: &Review) -> Summary {
         files: r.files.len(),
         pass: r.count(ReviewStatus::Pass),
         warn: r.count(ReviewStatus::Warn),
+        suspect: r.count(ReviewStatus::Suspect),
         fail: r.count(ReviewStatus::Fail),
         error: r.count(ReviewStatus::Error),
         skipped: r.skipped.len(),
@@ -168,12 +381,33 @@ fn summary(r: &Review) -> Summary {
 }
 
 fn findings_short(f: &Reviewed) -> String {
-    let shown: Vec<String> = f.findings.iter().map(|n| n.short()).collect();
+    let shown: Vec<String> = f
+        .findings
+        .iter()
+        .filter(|n| {
+            !matches!(
+                n,
+                crate::archive::review::Note::Signature { counts: true, .. }
+            )
+        })
+        .map(|n| n.short())
+        .collect();
     if shown.is_empty() {
         "-".to_string()
     } else {
         shown.join("; ")
     }
+}
+
+fn opt(v: &Option<String>) -> String {
+    v.clone().unwrap_or_default()
+}
+
+fn figure(f: &Reviewed) -> String {
+    f.key_figure_detail
+        .as_ref()
+        .map(|k| k.shown.clone())
+        .unwrap_or_default()
 }
 
 fn csv(r: &Review) -> String {
@@ -182,24 +416,28 @@ fn csv(r: &Review) -> String {
         .iter()
         .map(|f| {
             vec![
-                f.path.clone(),
+                f.file.clone(),
                 f.kind.name().to_string(),
                 f.status.name().to_string(),
-                f.convention.clone().unwrap_or_default(),
-                f.key_figure
-                    .as_ref()
-                    .map(|k| k.shown.clone())
-                    .unwrap_or_default(),
-                f.key_figure
-                    .as_ref()
-                    .map(|k| format!("{}", k.value_si))
-                    .unwrap_or_default(),
+                opt(&f.report_id),
+                opt(&f.title),
+                opt(&f.site),
+                opt(&f.date),
+                opt(&f.tested_by),
+                opt(&f.signer),
+                opt(&f.convention),
+                f.key_figure.map(|v| v.to_string()).unwrap_or_default(),
+                opt(&f.key_figure_unit),
                 f.findings
                     .iter()
                     .map(|n| n.long())
                     .collect::<Vec<_>>()
                     .join("; "),
                 f.mistakes().join(" "),
+                f.key_figure_detail
+                    .as_ref()
+                    .map(|k| format!("{}", k.value_si))
+                    .unwrap_or_default(),
             ]
         })
         .collect();
@@ -208,11 +446,18 @@ fn csv(r: &Review) -> String {
             "file",
             "kind",
             "status",
+            "report_id",
+            "title",
+            "site",
+            "date",
+            "tested_by",
+            "signer",
             "convention",
             "key_figure",
-            "key_figure_si",
+            "key_figure_unit",
             "findings",
             "mistakes",
+            "key_figure_si",
         ],
         &rows,
     )
@@ -223,20 +468,24 @@ fn table(name: &str, r: &Review, ctx: &Ctx) -> String {
         "file",
         "kind",
         "status",
-        "convention",
+        "report id",
+        "date",
+        "signer",
         "key figure",
         "findings",
     ])
-    .right(&[4]);
+    .right(&[6]);
+    let dash = |v: &Option<String>| v.clone().unwrap_or_else(|| "-".into());
     for f in &r.files {
         t.row(vec![
-            f.path.clone(),
+            f.file.clone(),
             f.kind.name().to_string(),
             status(f.status.name(), ctx.color),
-            f.convention.clone().unwrap_or_else(|| "-".into()),
-            f.key_figure
-                .as_ref()
-                .map(|k| k.shown.clone())
+            dash(&f.report_id),
+            dash(&f.date),
+            dash(&f.signer),
+            Some(figure(f))
+                .filter(|s| !s.is_empty())
                 .unwrap_or_else(|| "-".into()),
             findings_short(f),
         ]);
@@ -247,11 +496,15 @@ fn table(name: &str, r: &Review, ctx: &Ctx) -> String {
     } else {
         out += &t.render();
     }
-    let failing: Vec<&Reviewed> = r.files.iter().filter(|f| f.status.failed()).collect();
-    if !failing.is_empty() {
+    let flagged: Vec<&Reviewed> = r
+        .files
+        .iter()
+        .filter(|f| f.status >= ReviewStatus::Suspect)
+        .collect();
+    if !flagged.is_empty() {
         out += "\ndetails\n";
-        for f in failing {
-            out += &format!("{}\n", f.path);
+        for f in flagged {
+            out += &format!("{} ({})\n", f.file, f.status.name());
             for n in f.findings.iter().filter(|n| n.fails()) {
                 out += &format!("  - {}\n", n.long());
             }
@@ -260,16 +513,17 @@ fn table(name: &str, r: &Review, ctx: &Ctx) -> String {
     if !ctx.quiet && !r.skipped.is_empty() {
         out += "\nskipped\n";
         for s in &r.skipped {
-            out += &format!("  {}: {}\n", s.path, s.reason);
+            out += &format!("  {}: {}\n", s.file, s.reason);
         }
     }
     let s = summary(r);
     out += &format!(
-        "\n{} file{} reviewed: {} pass, {} warn, {} fail, {} could not be reviewed; {} skipped\n",
+        "\n{} file{} reviewed: {} pass, {} warn, {} suspect, {} fail, {} could not be reviewed; {} skipped\n",
         s.files,
         if s.files == 1 { "" } else { "s" },
         s.pass,
         s.warn,
+        s.suspect,
         s.fail,
         s.error,
         s.skipped

@@ -1,66 +1,129 @@
-//! `annulus verify`: re-derives a report's results from its embedded survey and readings and checks
-//! its hashes and signature. Reads the files and prints; the judgement is `archive::verify`.
+//! `annulus verify`: checks that a report (or calibration certificate, or RATA summary) is what was
+//! sealed, page by page; that its results follow from its embedded inputs; and who signed it.
+//! Reads the files and prints; the judgement is `archive::verify`.
 //!
-//! Exit codes: 0 everything verifies, 3 anything does not, 1 not a report of ours (or an
-//! unreadable key file), 2 the PDF cannot be read from disk.
+//! Exit codes: 0 verified; 3 not verified (content altered or damaged, results not reproduced, a
+//! signature that does not count); 1 not a document of ours (or an unreadable key or trust list);
+//! 2 the PDF cannot be read from disk.
 
 use super::output::{csv_text, json_text, status, Ctx, Format, Table};
-use crate::archive::verify::{verify, Recomputation, Verification};
-use crate::archive::PublicKey;
+use crate::archive::trust::TrustList;
+use crate::archive::verify::{
+    verify, ContentState, Recomputation, RerenderPolicy, SignatureStatus, TrustPolicy,
+    Verification, VerifyOptions,
+};
 use crate::diag::{Diagnostic, Error, Location};
-use clap::Args;
+use clap::{Args, ValueEnum};
 use std::path::{Path, PathBuf};
 
 /// At most this many differing values are listed in the table (JSON lists them all).
 const MAX_SHOWN_DIFFERENCES: usize = 25;
 
+/// Largest PDF `verify` reads (reports are a few megabytes; the reader's own caps bound the rest).
+pub const MAX_PDF_BYTES: u64 = 1 << 30;
+
+/// When to re-render (see README, Verify).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum RerenderArg {
+    /// When the seal alone cannot settle it: unsigned, unknown or invalid signature, no seal.
+    Auto,
+    /// Always, even for a report signed by a trusted key.
+    Always,
+    /// Never: check the seal only (fastest).
+    Never,
+}
+
+impl RerenderArg {
+    pub fn policy(self) -> RerenderPolicy {
+        match self {
+            RerenderArg::Auto => RerenderPolicy::Auto,
+            RerenderArg::Always => RerenderPolicy::Always,
+            RerenderArg::Never => RerenderPolicy::Never,
+        }
+    }
+}
+
 #[derive(Debug, Args)]
 pub struct VerifyArgs {
-    /// The report PDF.
+    /// The report PDF (or calibration certificate, or RATA summary).
     pub report: PathBuf,
-    /// Require a valid signature by this public key (the .pub file from `annulus keygen`).
+    /// Trust signatures by this public key (the .pub file from `annulus keygen`); may repeat.
+    /// Any --key or --trust replaces the configuration's trust list.
     #[arg(long, value_name = "PUB")]
-    pub key: Option<PathBuf>,
+    pub key: Vec<PathBuf>,
+    /// Trust the keys of this folder of .pub files or trust list file; may repeat.
+    #[arg(long, value_name = "PATH")]
+    pub trust: Vec<PathBuf>,
+    /// When to re-render the pages from the embedded inputs and compare them.
+    #[arg(long, value_enum, default_value_t = RerenderArg::Auto)]
+    pub rerender: RerenderArg,
     /// Output format: a table of what holds and what differs, a CSV row per part and per
     /// differing value, or the full record as JSON.
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
 }
 
-/// Reads a public key file, with a located diagnostic.
-pub(crate) fn read_public_key(path: &Path) -> Result<PublicKey, Error> {
+/// The trust list in force and whether one is: `--key`/`--trust`, else the configuration's.
+pub(crate) fn trust_from(keys: &[PathBuf], trust: &[PathBuf]) -> Result<(TrustList, bool), Error> {
+    let config = if keys.is_empty() && trust.is_empty() {
+        crate::input::config_file::load_config()?
+    } else {
+        None
+    };
+    Ok(
+        match super::trust::load_trust(keys, trust, config.as_ref())? {
+            Some(list) => (list, true),
+            None => (TrustList::new(), false),
+        },
+    )
+}
+
+/// Reads a whole file of at most `cap` bytes, with a located diagnostic.
+pub(crate) fn read_bounded(path: &Path, cap: u64, what: &str) -> Result<Vec<u8>, Error> {
+    use std::io::Read;
     let name = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|e| {
+    let fail = |m: String| {
         Error::input(
-            Diagnostic::new(format!("cannot read the public key `{name}`: {e}"))
+            Diagnostic::new(m)
                 .at(Location::file(&name))
-                .hint("pass the .pub file written by `annulus keygen NAME`"),
+                .hint(format!("check the path to the {what}")),
         )
-    })?;
-    PublicKey::parse(&text).map_err(|e| {
-        Error::input(
-            Diagnostic::new(format!("`{name}`: {e}"))
-                .at(Location::file(&name))
-                .hint("pass the .pub file (the public half), not the .key file"),
-        )
-    })
+    };
+    let meta = std::fs::metadata(path).map_err(|e| fail(format!("cannot read `{name}`: {e}")))?;
+    if !meta.is_file() {
+        return Err(fail(format!("`{name}` is not a regular file")));
+    }
+    let f = std::fs::File::open(path).map_err(|e| fail(format!("cannot read `{name}`: {e}")))?;
+    let mut bytes = Vec::with_capacity(meta.len().min(cap) as usize);
+    f.take(cap + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| fail(format!("cannot read `{name}`: {e}")))?;
+    if bytes.len() as u64 > cap {
+        return Err(fail(format!(
+            "`{name}` is larger than {}, more than any {what} holds",
+            crate::pdf::bytes_text(cap as usize)
+        )));
+    }
+    Ok(bytes)
 }
 
 pub fn run(args: VerifyArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let key = args.key.as_deref().map(read_public_key).transpose()?;
+    let (list, required) = trust_from(&args.key, &args.trust)?;
     let name = args.report.display().to_string();
-    let bytes = std::fs::read(&args.report).map_err(|e| {
-        Error::input(
-            Diagnostic::new(format!("cannot read `{name}`: {e}"))
-                .at(Location::file(&name))
-                .hint("check the path to the report PDF"),
-        )
-    })?;
-    let v = verify(&bytes, key.as_ref()).map_err(|e| {
+    let bytes = read_bounded(&args.report, MAX_PDF_BYTES, "report PDF")?;
+    let options = VerifyOptions {
+        trust: TrustPolicy {
+            list: &list,
+            required,
+        },
+        rerender: args.rerender.policy(),
+        limits: Default::default(),
+    };
+    let v = verify(&bytes, &options).map_err(|e| {
         Error::input(
             Diagnostic::new(format!("`{name}` is {e}"))
                 .at(Location::file(&name))
-                .hint("`annulus verify` checks PDFs written by `annulus report`"),
+                .hint("`annulus verify` checks PDFs written by `annulus report`, `calibrate -o` and `rata -o`"),
         )
     })?;
     let text = match args.format {
@@ -80,12 +143,49 @@ fn word(holds: bool) -> &'static str {
     }
 }
 
-/// One row per part checked, then one per differing value.
+fn signature_word(v: &Verification) -> &'static str {
+    match (v.signature.status, v.signature.accepted) {
+        (_, false) => "fail",
+        (SignatureStatus::Trusted, true) => "pass",
+        _ => "note",
+    }
+}
+
+fn recompute_words(r: &Recomputation) -> String {
+    match r {
+        Recomputation::Matches { compared } => format!(
+            "all {compared} values of the embedded results reproduced from the embedded inputs"
+        ),
+        Recomputation::Differs {
+            compared,
+            differences,
+        } => format!(
+            "{} of {compared} values of the embedded results not reproduced from the embedded inputs (listed below)",
+            differences.len()
+        ),
+        Recomputation::Impossible { reason } => format!("not possible: {reason}"),
+        Recomputation::NotDone { reason } => format!("not re-derived: {reason}"),
+    }
+}
+
+/// One row per part checked, then one per change and per differing value.
 fn csv(v: &Verification) -> String {
     let mut rows: Vec<Vec<String>> = Vec::new();
     let mut row = |part: &str, role: &str, holds: &str, finding: String| {
         rows.push(vec![part.into(), role.into(), holds.into(), finding]);
     };
+    row(
+        "content",
+        v.content.name(),
+        word(v.content == ContentState::Intact),
+        v.content_words(),
+    );
+    row(
+        "signature",
+        v.signature.status.name(),
+        signature_word(v),
+        v.signature.detail.clone(),
+    );
     if let Some(p) = &v.manifest_problem {
         row("manifest", "", "fail", p.clone());
     }
@@ -97,21 +197,16 @@ fn csv(v: &Verification) -> String {
             f.describe(),
         );
     }
-    let what = match &v.recomputation {
-        Recomputation::Matches { compared } => format!("{compared} values reproduced"),
-        Recomputation::Differs {
-            compared,
-            differences,
-        } => format!("{} of {compared} values differ", differences.len()),
-        Recomputation::Impossible { reason } => format!("not possible: {reason}"),
-    };
-    row("recomputation", "", word(v.recomputation.holds()), what);
     row(
-        "signature",
+        "recomputation",
         "",
-        word(v.signature.holds()),
-        v.signature.describe(),
+        word(v.recomputation.holds()),
+        recompute_words(&v.recomputation),
     );
+    row("re-rendering", "", "note", v.rerendering.describe());
+    for c in &v.changes {
+        row("change", c.found_by, "fail", c.what.clone());
+    }
     if let Recomputation::Differs { differences, .. } = &v.recomputation {
         for d in differences {
             row("difference", "", "fail", d.to_string());
@@ -121,8 +216,9 @@ fn csv(v: &Verification) -> String {
 }
 
 fn table(name: &str, v: &Verification, ctx: &Ctx) -> String {
+    let what = v.kind.map(|k| k.words()).unwrap_or("document");
     let mut out = format!(
-        "{name}: report {}\n",
+        "{name}: {what} {}\n",
         v.report_id.as_deref().unwrap_or("(no readable id)")
     );
     if !ctx.quiet {
@@ -136,6 +232,25 @@ fn table(name: &str, v: &Verification, ctx: &Ctx) -> String {
         );
     }
     let mut t = Table::new(&["result", "part", "finding"]);
+    let content = match v.content {
+        ContentState::Intact => v.content_words(),
+        ContentState::Altered => format!(
+            "altered: {} change{} (listed below)",
+            v.changes.len(),
+            if v.changes.len() == 1 { "" } else { "s" }
+        ),
+        ContentState::Damaged => v.content_words(),
+    };
+    t.row(vec![
+        status(word(v.content == ContentState::Intact), ctx.color),
+        "content".into(),
+        content,
+    ]);
+    t.row(vec![
+        status(signature_word(v), ctx.color),
+        "signature".into(),
+        format!("{}: {}", v.signature.status.name(), v.signature.detail),
+    ]);
     if let Some(p) = &v.manifest_problem {
         t.row(vec![
             status("fail", ctx.color),
@@ -153,37 +268,28 @@ fn table(name: &str, v: &Verification, ctx: &Ctx) -> String {
             f.describe(),
         ]);
     }
-    let recompute = match &v.recomputation {
-        Recomputation::Matches { compared } => format!(
-            "all {compared} values of results.json reproduced from the embedded survey and readings"
-        ),
-        Recomputation::Differs {
-            compared,
-            differences,
-        } => format!(
-            "{} of {compared} values of results.json not reproduced from the embedded survey and readings (listed below)",
-            differences.len()
-        ),
-        Recomputation::Impossible { reason } => format!("not possible: {reason}"),
-    };
-    t.row(vec![
-        status(word(v.recomputation.holds()), ctx.color),
-        "recomputation".into(),
-        recompute,
-    ]);
-    let sig_word = match v.signature {
-        crate::archive::verify::SignatureState::Unsigned => "note",
-        ref s => word(s.holds()),
-    };
-    t.row(vec![
-        status(sig_word, ctx.color),
-        "signature".into(),
-        v.signature.describe(),
-    ]);
+    if v.content != ContentState::Damaged {
+        t.row(vec![
+            status(word(v.recomputation.holds()), ctx.color),
+            "recomputation".into(),
+            recompute_words(&v.recomputation),
+        ]);
+        t.row(vec![
+            status("note", ctx.color),
+            "re-rendering".into(),
+            v.rerendering.describe(),
+        ]);
+    }
     out.push('\n');
     out += &t.render();
+    if !v.changes.is_empty() {
+        out += "\nwhat changed\n";
+        for c in &v.changes {
+            out += &format!("  - {} [{}]\n", c.what, c.found_by);
+        }
+    }
     if let Recomputation::Differs { differences, .. } = &v.recomputation {
-        out += "\ndifferences (embedded results.json vs recomputed; headline values first)\n";
+        out += "\ndifferences (embedded results vs recomputed; headline values first)\n";
         // shallow paths (flows, the average) before per-point and per-component values
         let mut shown: Vec<_> = differences.iter().collect();
         shown.sort_by_key(|d| d.path.matches(['.', '[']).count());
@@ -199,13 +305,19 @@ fn table(name: &str, v: &Verification, ctx: &Ctx) -> String {
     }
     let problems = v.problems().len();
     out += &format!(
-        "\n{}\n",
+        "\nverdict: {} — content {}, signature {}{}\n",
         if v.verified {
-            format!("verdict: {}", status("pass", ctx.color))
+            status("verified", ctx.color)
+        } else {
+            status("NOT verified", ctx.color)
+        },
+        v.content.name(),
+        v.signature.short(),
+        if v.verified {
+            String::new()
         } else {
             format!(
-                "verdict: {} ({problems} problem{} found)",
-                status("fail", ctx.color),
+                " ({problems} problem{} found)",
                 if problems == 1 { "" } else { "s" }
             )
         }

@@ -10,6 +10,7 @@
 
 pub mod assess_config;
 pub mod calibration_file;
+pub mod config_file;
 pub mod header;
 pub mod rata_file;
 pub mod readings;

@@ -23,6 +23,7 @@
 //!     report_id: "AN-0123456789AB".into(),
 //!     content_sha256: "0".repeat(64),
 //!     signer_key_fingerprint: None,
+//!     signer_name: None,
 //! };
 //! let options = RenderOptions {
 //!     date: e.loaded.survey.date,

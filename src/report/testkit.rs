@@ -62,6 +62,7 @@ pub(crate) fn identity() -> Identity {
         report_id: "AN-TEST00000000".into(),
         content_sha256: "0123456789abcdef".repeat(4),
         signer_key_fingerprint: None,
+        signer_name: None,
     }
 }
 

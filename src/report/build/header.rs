@@ -16,6 +16,7 @@ pub(super) fn section(job: &Job, id: &Identity) -> Header {
         report_id: id.report_id.clone(),
         content_sha256: id.content_sha256.clone(),
         signer_key_fingerprint: id.signer_key_fingerprint.clone(),
+        signer_name: id.signer_name.clone(),
         software: software(),
         paper: paper(job.table.system),
     }

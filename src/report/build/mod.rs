@@ -56,6 +56,8 @@ pub struct Identity {
     pub report_id: String,
     pub content_sha256: String,
     pub signer_key_fingerprint: Option<String>,
+    /// The signing key's name (`annulus keygen NAME`), printed in the sign-off block.
+    pub signer_name: Option<String>,
 }
 
 /// Builds the report model.

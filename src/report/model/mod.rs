@@ -69,6 +69,8 @@ pub struct Header {
     pub content_sha256: String,
     /// Fingerprint of the signing key, when the report is signed.
     pub signer_key_fingerprint: Option<String>,
+    /// Name of the signing key (`annulus keygen NAME`), when the report is signed.
+    pub signer_name: Option<String>,
     /// Program name and version, e.g. `annulus 0.1.0`.
     pub software: String,
     pub paper: Paper,
