@@ -4,7 +4,7 @@
 //! Formatting only: every number here was computed upstream; these files choose words, units and
 //! decimals. Units come from the job's display table ([`crate::display`]): a job read in inches of
 //! water is shown in inches of water, with SI beside it only where a section deliberately prints
-//! both (inch-pound jobs' key results, labelled `SI`). Words come from the trade ([`Trade`]): an
+//! both (inch-pound jobs' key results, labelled `SI`). Words come from the trade (`Trade`): an
 //! HVAC report speaks of air, velocity pressure and fpm; a stack report of gas, Δp and dscfm.
 //!
 //! | file | section |
