@@ -1,8 +1,8 @@
 //! The limits that keep annulus bounded on any input: how large a file it reads, how many runs,
 //! rows and pairs it accepts, how old a temporary file of ours must be before it is cleared.
 //!
-//! Owns the numbers and the reason for each, in one place; [`crate::input::fs`] and
-//! [`crate::write`] enforce them. Every value sits far above what a real job produces (a stack test
+//! Owns the numbers and the reason for each, in one place; [`crate::input::fs`],
+//! [`crate::write`] and the constructors they bound ([`crate::geometry::Duct`]) enforce them. Every value sits far above what a real job produces (a stack test
 //! has 3 runs of at most 48 points; the largest sample file is under 4 KiB), so a limit is reached
 //! only by a wrong path or a hostile file, and its message names the limit. The traverse counts
 //! a layout accepts (lines, points per line) are method rules, not safety limits; they live with
@@ -131,6 +131,12 @@ pub fn largest_limit() -> u64 {
     .max()
     .unwrap_or(HARD_SIZE_LIMIT)
 }
+
+/// The largest inside dimension (diameter, width or height) of a duct, in metres. The widest
+/// stack flues are about 15 m across; 100 m leaves a wide margin and keeps every count derived
+/// from the area (EN 15259: 4 points per m²) and every position finite: a `1e308 in` diameter
+/// made the area infinite and the point count overflow.
+pub const MAX_DUCT_SIZE_M: f64 = 100.0;
 
 /// Runs in one survey (and blank sheets `annulus init` writes). EPA Methods 2 and 4 ask for 3 runs,
 /// an HVAC traverse is usually 1, and a RATA's 9 to 12 runs are each their own survey; 50 allows
