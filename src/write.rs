@@ -291,7 +291,7 @@ fn check_target(target: &Path, shown: &Path, inputs: &[PathBuf]) -> Result<(), W
 }
 
 /// Checks that `dest` may be written by these rules, without writing: for a command to refuse
-/// before doing expensive work. [`write`] checks again.
+/// before doing expensive work. [`write()`] checks again.
 pub fn check(dest: &Destination, inputs: &[PathBuf]) -> Result<(), WriteError> {
     match dest {
         Destination::Stdout => check_stdout(),
