@@ -144,6 +144,17 @@ fn survey_reading(dir: &Path, readings: &str) -> PathBuf {
     p
 }
 
+/// Where the hostile survey names its readings file: `hostile.toml:LINE:12`.
+fn readings_at(dir: &Path) -> String {
+    let text = std::fs::read_to_string(dir.join("hostile.toml")).unwrap();
+    let line = text
+        .lines()
+        .position(|l| l.starts_with("readings = "))
+        .unwrap()
+        + 1;
+    format!("hostile.toml:{line}:12 (`run.readings`)")
+}
+
 // ---- outputs ------------------------------------------------------------------------------------
 
 #[test]
@@ -578,7 +589,10 @@ fn a_fifo_as_readings_is_an_error_not_a_hang() {
     assert!(r.took < Duration::from_secs(10), "{:?}", r.took);
     assert_eq!(
         r.err,
-        "error: cannot read `pipe.csv`: it is a FIFO (named pipe), not a regular file\n --> pipe.csv\n   = hint: give the path of a readings file saved on disk\n1 problem found; nothing was computed\n"
+        format!(
+            "error: cannot read the readings file `pipe.csv` (resolved to `pipe.csv`): it is a FIFO (named pipe), not a regular file\n --> {}\n   = hint: give the path of a readings file saved on disk\n1 problem found; nothing was computed\n",
+            readings_at(&hvac)
+        )
     );
     assert!(is_fifo(&hvac.join("pipe.csv")));
 }
@@ -623,7 +637,8 @@ fn devices_and_folders_as_readings_are_errors() {
         assert_eq!(r.code, 1, "{}", r.err);
         assert!(
             r.err.starts_with(&format!(
-                "error: cannot read `{path}`: it is {what}, not a regular file\n"
+                "error: cannot read the readings file `{path}` (resolved to `{path}`): it is {what}, not a regular file\n --> {}\n",
+                readings_at(&hvac)
             )),
             "{}",
             r.err
@@ -642,9 +657,10 @@ fn an_oversized_readings_file_is_refused_unread_and_the_limit_can_be_raised() {
     let r = annulus_in(&hvac, &["compute", "hostile.toml"], &[], QUICK);
     assert_eq!(r.code, 1, "{}", r.err);
     assert!(
-        r.err.starts_with(
-            "error: `huge.csv` is 2.0 GiB; a readings file may be at most 1.0 MiB\n --> huge.csv\n   = hint: check that the path names the right file; if it does, set ANNULUS_MAX_INPUT_MB"
-        ),
+        r.err.starts_with(&format!(
+            "error: cannot read the readings file `huge.csv` (resolved to `huge.csv`): it is 2.0 GiB; a readings file may be at most 1.0 MiB\n --> {}\n   = hint: check that the path names the right file; if it does, set ANNULUS_MAX_INPUT_MB",
+            readings_at(&hvac)
+        )),
         "{}",
         r.err
     );

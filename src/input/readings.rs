@@ -253,10 +253,7 @@ pub fn holds_readings(text: &str) -> bool {
 }
 
 /// The header record: its line in the file and its cells.
-fn header_record(
-    file: &str,
-    first: Option<CsvRow>,
-) -> Result<(usize, csv::StringRecord), Error> {
+fn header_record(file: &str, first: Option<CsvRow>) -> Result<(usize, csv::StringRecord), Error> {
     match first {
         Some((line, Ok(h))) => Ok((line, h)),
         Some((_, Err(e))) => Err(Error::input(
