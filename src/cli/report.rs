@@ -70,13 +70,14 @@ fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
 
 pub(crate) fn read_key(path: &std::path::Path) -> Result<SecretKey, Error> {
     let name = path.display().to_string();
-    let text = crate::input::fs::read_input_text(path, crate::limits::FileKind::Key).map_err(|e| {
-        Error::input(
-            Diagnostic::new(format!("cannot read the signing key `{name}`: {e}"))
-                .at(Location::file(&name))
-                .hint("make a key pair with `annulus keygen NAME`"),
-        )
-    })?;
+    let text =
+        crate::input::fs::read_input_text(path, crate::limits::FileKind::Key).map_err(|e| {
+            Error::input(
+                Diagnostic::new(format!("cannot read the signing key `{name}`: {e}"))
+                    .at(Location::file(&name))
+                    .hint("make a key pair with `annulus keygen NAME`"),
+            )
+        })?;
     SecretKey::parse(&text).map_err(|e| {
         Error::input(
             Diagnostic::new(format!("`{name}`: {e}"))

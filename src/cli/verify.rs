@@ -80,8 +80,13 @@ pub(crate) fn trust_from(keys: &[PathBuf], trust: &[PathBuf]) -> Result<(TrustLi
 /// limit), with a located diagnostic.
 pub(crate) fn read_report(path: &Path) -> Result<Vec<u8>, Error> {
     let kind = crate::limits::FileKind::Pdf;
-    crate::input::fs::read_input(path, kind)
-        .map_err(|e| Error::input(crate::input::fs::read_diagnostic(&path.display().to_string(), kind, &e)))
+    crate::input::fs::read_input(path, kind).map_err(|e| {
+        Error::input(crate::input::fs::read_diagnostic(
+            &path.display().to_string(),
+            kind,
+            &e,
+        ))
+    })
 }
 
 pub fn run(args: VerifyArgs, ctx: &Ctx) -> Result<i32, Error> {
