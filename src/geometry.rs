@@ -34,6 +34,11 @@ pub enum GeometryError {
         what: &'static str,
         value_m: f64,
     },
+    /// Larger than any duct or stack ([`crate::limits::MAX_DUCT_SIZE_M`]).
+    TooLarge {
+        what: &'static str,
+        value_m: f64,
+    },
     LinerTooThick {
         side: &'static str,
         side_m: f64,
@@ -50,6 +55,11 @@ impl fmt::Display for GeometryError {
             GeometryError::NotPositive { what, value_m } => {
                 write!(f, "the {what} must be a positive length, found {value_m} m")
             }
+            GeometryError::TooLarge { what, value_m } => write!(
+                f,
+                "the {what} must be at most {} m, found {value_m:e} m",
+                crate::limits::MAX_DUCT_SIZE_M
+            ),
             GeometryError::LinerTooThick {
                 side,
                 side_m,
@@ -71,10 +81,12 @@ impl fmt::Display for GeometryError {
 impl std::error::Error for GeometryError {}
 
 fn positive(what: &'static str, value_m: f64) -> Result<f64, GeometryError> {
-    if value_m.is_finite() && value_m > 0.0 {
-        Ok(value_m)
-    } else {
+    if !(value_m.is_finite() && value_m > 0.0) {
         Err(GeometryError::NotPositive { what, value_m })
+    } else if value_m > crate::limits::MAX_DUCT_SIZE_M {
+        Err(GeometryError::TooLarge { what, value_m })
+    } else {
+        Ok(value_m)
     }
 }
 

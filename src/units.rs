@@ -656,12 +656,17 @@ pub fn parse_quantity(text: &str, expected: Dimension) -> Result<f64, UnitError>
         unit: unit.to_string(),
         expected,
     })?;
-    convert_in(value, found, expected).map_err(|found_dim| UnitError::WrongDimension {
-        raw,
+    let si = convert_in(value, found, expected).map_err(|found_dim| UnitError::WrongDimension {
+        raw: raw.clone(),
         unit: unit.to_string(),
         found: found_dim,
         expected,
-    })
+    })?;
+    // `1e308 in` is a finite number that overflows in metres: no quantity downstream may be inf
+    if !si.is_finite() {
+        return Err(UnitError::NotFinite { raw });
+    }
+    Ok(si)
 }
 
 /// Converts a value in `unit` to SI for the expected dimension; a temperature unit read as a

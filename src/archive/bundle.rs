@@ -20,6 +20,16 @@ fn file_name(path: &str) -> String {
         .unwrap_or_else(|| path.to_string())
 }
 
+/// A path as the manifest records it: relative to the survey's folder, as written. An absolute
+/// path is never recorded (it would carry this machine's folder names into the report): only its
+/// file name is. `annulus report` refuses such surveys anyway ([`crate::input::fs::check_embeddable`]).
+fn manifest_path(written: &str) -> String {
+    match crate::input::fs::classify_reference(written) {
+        crate::input::fs::Place::Absolute => file_name(written),
+        _ => written.to_string(),
+    }
+}
+
 /// Packs the inputs and results of an evaluated survey. Attachment names are file names, made
 /// unique by prefixing the run id where two runs' files share a name.
 pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
@@ -35,7 +45,12 @@ pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
         if files.iter().any(|(n, _, _, _)| *n == name) {
             name = format!("run{}-{name}", spec.id);
         }
-        files.push((name, src.name.clone(), "readings", src.bytes.clone()));
+        files.push((
+            name,
+            manifest_path(&src.name),
+            "readings",
+            src.bytes.clone(),
+        ));
     }
     if let (Some((cal, cal_readings)), Some(pc)) = (&loaded.calibration, &s.probe.calibration) {
         // paths relative to the survey's folder, so the files can be laid out again from the PDF
@@ -48,9 +63,10 @@ pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
             .path
             .strip_prefix(dir)
             .map(|p| p.to_string_lossy().into_owned())
+            .map(|p| manifest_path(&p))
             .unwrap_or_else(|_| cal_readings.name.clone());
         for (src, path, role) in [
-            (cal, pc.file.clone(), "calibration"),
+            (cal, manifest_path(&pc.file), "calibration"),
             (cal_readings, readings_rel, "calibration-readings"),
         ] {
             let mut name = file_name(&src.name);

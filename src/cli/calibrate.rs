@@ -13,7 +13,7 @@ use crate::report::certificate::{
     attachments, calibrated_by, certificate, check_label, per_reading, standard_text, status_word,
     velocity_text, verdict_text, CP_DECIMALS,
 };
-use crate::report::{write_atomic, Engine};
+use crate::report::Engine;
 use clap::Args;
 use serde::Serialize;
 use std::path::PathBuf;
@@ -27,6 +27,8 @@ pub struct CalibrateArgs {
     pub format: Format,
     /// Also write the calibration certificate PDF, with the calibration file and readings
     /// embedded.
+    /// A folder gets the PDF named after the input file; `-` is standard output (the table is
+    /// then not printed).
     #[arg(short = 'o', long = "output", value_name = "OUT.pdf")]
     pub output: Option<PathBuf>,
 }
@@ -38,11 +40,21 @@ pub fn run(args: CalibrateArgs, ctx: &Ctx) -> Result<i32, Error> {
         Format::Csv => readings_csv(&c),
         Format::Table => table(&c, ctx),
     };
-    super::emit(&text)?;
-    if let Some(out) = &args.output {
-        write_certificate(&c, out)?;
+    // never written over: the files this command read
+    let protect: Vec<PathBuf> = vec![c.file.path.clone(), c.readings_file.path.clone()];
+    // results first, then the PDF (the write checks the output rules)
+    let out = args
+        .output
+        .as_deref()
+        .map(|o| super::files::named(o, &args.file));
+    // the PDF on standard output is the whole output
+    if !out.as_ref().is_some_and(|d| d.is_stdout()) {
+        super::emit(&text)?;
+    }
+    if let Some(out) = &out {
+        write_certificate(&c, out, &protect)?;
         if !ctx.quiet {
-            eprintln!("wrote calibration certificate {}", out.display());
+            eprintln!("wrote calibration certificate {out}");
         }
     }
     Ok(if c.calibration.accepted() { 0 } else { 3 })
@@ -277,7 +289,11 @@ fn readings_csv(c: &LoadedCalibration) -> String {
     )
 }
 
-fn write_certificate(c: &LoadedCalibration, out: &std::path::Path) -> Result<(), Error> {
+fn write_certificate(
+    c: &LoadedCalibration,
+    out: &crate::write::Destination,
+    protect: &[PathBuf],
+) -> Result<(), Error> {
     let files = attachments(c)
         .map_err(|e| Error::Environment(format!("cannot embed the calibration files: {e}")))?;
     // sealed with its inputs, results and manifest, so `annulus verify` checks it like a report
@@ -291,5 +307,5 @@ fn write_certificate(c: &LoadedCalibration, out: &std::path::Path) -> Result<(),
         results,
     )
     .map_err(|e| Error::Environment(e.to_string()))?;
-    write_atomic(out, &pdf).map_err(|e| Error::Environment(e.to_string()))
+    Ok(crate::write::write(out, &pdf, protect)?)
 }

@@ -6,7 +6,6 @@ use crate::assess::{Assessment, UncertaintyReport, Verdict};
 use crate::checks::{Finding, Group};
 use crate::diag::Error;
 use crate::display::DisplayTable;
-use crate::input::load;
 use crate::pipeline::evaluate_and_assess;
 use clap::Args;
 use std::path::PathBuf;
@@ -74,7 +73,7 @@ fn message(f: &Finding, units: &DisplayTable) -> String {
 }
 
 pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
+    let (e, a) = evaluate_and_assess(super::files::load_noted(&args.survey, ctx)?)?;
     let units = args.units.table(e.convention.display_table());
     let text = match args.format {
         Format::Json => json_text(&a),

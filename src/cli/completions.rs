@@ -50,17 +50,13 @@ pub fn man(args: ManArgs, ctx: &Ctx) -> Result<i32, Error> {
             let mut written = vec![];
             let top = render(cmd.clone())?;
             let path = dir.join("annulus.1");
-            crate::report::write_atomic(&path, &top).map_err(|e| {
-                Error::Environment(format!("cannot write `{}`: {e}", path.display()))
-            })?;
+            crate::write::write_atomic(&path, &top)?;
             written.push(path);
             for sub in cmd.get_subcommands() {
                 let name = format!("annulus-{}", sub.get_name());
                 let page = render(sub.clone().name(name.clone()))?;
                 let path = dir.join(format!("{name}.1"));
-                crate::report::write_atomic(&path, &page).map_err(|e| {
-                    Error::Environment(format!("cannot write `{}`: {e}", path.display()))
-                })?;
+                crate::write::write_atomic(&path, &page)?;
                 written.push(path);
             }
             if !ctx.quiet {

@@ -4,7 +4,6 @@ use super::output::{csv_text, json_text, paragraph, Ctx, Format, Table, UnitsArg
 use crate::diag::Error;
 use crate::display::{DisplayTable, Kind, UnitSystem};
 use crate::flow::EpaForm;
-use crate::input::load;
 use crate::pipeline::{evaluate_and_assess, run_is_valid, Evaluation};
 use crate::results::{PointDoc, ResultsDoc};
 use clap::Args;
@@ -25,7 +24,7 @@ pub struct ComputeArgs {
 }
 
 pub fn run(args: ComputeArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let (e, a) = evaluate_and_assess(load(&args.survey)?)?;
+    let (e, a) = evaluate_and_assess(super::files::load_noted(&args.survey, ctx)?)?;
     let doc = ResultsDoc::new(&e, &a);
     let units = args.units.table(e.convention.display_table());
     let text = match args.format {

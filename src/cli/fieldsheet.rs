@@ -7,8 +7,9 @@ use crate::input::survey::PlaneParts;
 use crate::layout::ProbeMark;
 use crate::plane::Plane;
 use crate::report::build::{field_sheet_data, SheetPlane};
-use crate::report::{write_atomic, Engine};
-use std::path::Path;
+use crate::report::Engine;
+use crate::write::Destination;
+use std::path::PathBuf;
 
 /// What the sheet takes from a survey file besides its plane: the names in its heading and the
 /// EPA unit form.
@@ -31,7 +32,8 @@ impl SheetNames {
 }
 
 pub fn write(
-    out: &Path,
+    out: &Destination,
+    inputs: &[PathBuf],
     s: &PlaneSetting,
     p: &Plane,
     marks: &[ProbeMark],
@@ -54,6 +56,5 @@ pub fn write(
     let rendered = Engine::new()
         .render_field_sheet(&data, date)
         .map_err(|e| Error::Environment(format!("the field sheet template failed: {e}")))?;
-    write_atomic(out, &rendered.pdf)
-        .map_err(|e| Error::Environment(format!("cannot write `{}`: {e}", out.display())))
+    Ok(crate::write::write(out, &rendered.pdf, inputs)?)
 }

@@ -28,7 +28,8 @@ pub struct InitArgs {
     /// Test date, YYYY-MM-DD (default: today).
     #[arg(long)]
     pub date: Option<String>,
-    /// Replace files that already exist.
+    /// Replace the survey and blank readings sheets that already exist (a sheet that holds
+    /// readings is never replaced).
     #[arg(long)]
     pub force: bool,
 }
@@ -144,20 +145,38 @@ pub fn readings_text(s: &PlaneSetting, plane: &Plane) -> String {
     t
 }
 
-fn write_new(path: &Path, text: &str, force: bool) -> Result<(), Error> {
-    if path.exists() && !force {
-        return Err(Error::input(
-            Diagnostic::new(format!("`{}` already exists", path.display()))
-                .at(Location::file(path.display().to_string()))
-                .hint("choose another folder, or pass --force to replace it"),
-        ));
+/// Existing files: refused without `--force`; with it, the survey and blank sheets may be
+/// replaced, but never a readings sheet that holds readings.
+fn refuse_existing(survey: &Path, sheets: &[PathBuf], force: bool) -> Result<(), Error> {
+    let exists = |p: &Path| std::fs::symlink_metadata(p).is_ok();
+    for p in std::iter::once(survey).chain(sheets.iter().map(PathBuf::as_path)) {
+        if exists(p) && !force {
+            return Err(Error::input(
+                Diagnostic::new(format!("`{}` already exists", p.display()))
+                    .at(Location::file(p.display().to_string()))
+                    .hint(
+                        "choose another folder, or pass --force to replace it (blank sheets only)",
+                    ),
+            ));
+        }
     }
-    crate::report::write::write_atomic(path, text.as_bytes())
-        .map_err(|e| Error::Environment(format!("cannot write `{}`: {e}", path.display())))
+    for p in sheets {
+        if exists(p) && crate::input::fs::sheet_holds_readings(p) {
+            return Err(Error::input(
+                Diagnostic::new(format!(
+                    "`{}` holds readings; --force replaces only blank sheets",
+                    p.display()
+                ))
+                .at(Location::file(p.display().to_string()))
+                .hint("move the filled-in sheet away first, or choose another folder"),
+            ));
+        }
+    }
+    Ok(())
 }
 
 pub fn run(args: InitArgs, ctx: &Ctx) -> Result<i32, Error> {
-    if args.runs == 0 || args.runs > 50 {
+    if args.runs == 0 || args.runs > crate::limits::MAX_RUNS {
         return Err(Error::input(
             Diagnostic::new(format!(
                 "--runs {} is not a usable number of runs",
@@ -181,28 +200,26 @@ pub fn run(args: InitArgs, ctx: &Ctx) -> Result<i32, Error> {
     let setting = args.plane.settle(None)?;
     let plane = plane_for(&setting)?;
     let title = args.title.clone().unwrap_or_else(|| "New traverse".into());
+    let survey_path = args.dir.join("survey.toml");
+    let sheets: Vec<PathBuf> = (1..=args.runs)
+        .map(|i| args.dir.join(format!("run{i}.csv")))
+        .collect();
+    refuse_existing(&survey_path, &sheets, args.force)?;
+    let made_dir = !args.dir.exists();
     std::fs::create_dir_all(&args.dir)
         .map_err(|e| Error::Environment(format!("cannot create `{}`: {e}", args.dir.display())))?;
-    let survey_path = args.dir.join("survey.toml");
-    let mut paths = vec![survey_path.clone()];
-    paths.extend((1..=args.runs).map(|i| args.dir.join(format!("run{i}.csv"))));
-    if !args.force {
-        if let Some(p) = paths.iter().find(|p| p.exists()) {
-            return Err(Error::input(
-                Diagnostic::new(format!("`{}` already exists", p.display()))
-                    .at(Location::file(p.display().to_string()))
-                    .hint("choose another folder, or pass --force to replace it"),
-            ));
+    let sheet = readings_text(&setting, &plane).into_bytes();
+    let mut files = vec![(
+        survey_path.clone(),
+        survey_text(&setting, &plane, args.runs, &title, &date).into_bytes(),
+    )];
+    files.extend(sheets.iter().map(|p| (p.clone(), sheet.clone())));
+    // all files or none: a failed or interrupted init leaves nothing a re-run would trip over
+    if let Err(e) = crate::write::write_all_or_none(&files, &[]) {
+        if made_dir {
+            let _ = std::fs::remove_dir(&args.dir);
         }
-    }
-    write_new(
-        &survey_path,
-        &survey_text(&setting, &plane, args.runs, &title, &date),
-        args.force,
-    )?;
-    let sheet = readings_text(&setting, &plane);
-    for p in &paths[1..] {
-        write_new(p, &sheet, args.force)?;
+        return Err(e.into());
     }
     if !ctx.quiet {
         eprintln!(

@@ -10,7 +10,7 @@ use crate::layout::{probe_marks, Point, ProbeMark};
 use crate::plane::{lay_out, Plane};
 use clap::Args;
 use serde::Serialize;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 #[derive(Debug, Args)]
 pub struct LayoutArgs {
@@ -21,7 +21,8 @@ pub struct LayoutArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
-    /// Also write the blank field data sheet as a PDF.
+    /// Also write the blank field data sheet as a PDF: a file, a folder (named after the
+    /// survey), or `-` for standard output (the table is then not printed).
     #[arg(long, value_name = "OUT.pdf")]
     pub pdf: Option<PathBuf>,
 }
@@ -90,7 +91,7 @@ pub(crate) fn survey_only(
     path: &std::path::Path,
 ) -> Result<crate::input::survey::PlaneParts, Error> {
     let name = path.display().to_string();
-    let (_, text) = crate::input::read_text(path, &name)?;
+    let (_, text) = crate::input::read_text(path, &name, crate::limits::FileKind::Survey)?;
     crate::input::survey::parse_plane(&name, &text)
 }
 
@@ -118,6 +119,14 @@ pub fn run(args: LayoutArgs, ctx: &Ctx) -> Result<i32, Error> {
     let names = survey
         .as_ref()
         .map(|(_, p)| super::fieldsheet::SheetNames::of(p));
+    let inputs: Vec<PathBuf> = args.survey.iter().cloned().collect();
+    let pdf = match &args.pdf {
+        Some(o) => {
+            let named_after = args.survey.as_deref().unwrap_or(Path::new("field-sheet"));
+            Some(super::files::destination(o, named_after, &inputs)?)
+        }
+        None => None,
+    };
     let setting = args.plane.settle(survey)?;
     let plane = plane_for(&setting)?;
     let marks = probe_marks(&plane.layout, setting.port_length_m, setting.mark_step);
@@ -126,11 +135,14 @@ pub fn run(args: LayoutArgs, ctx: &Ctx) -> Result<i32, Error> {
         Format::Csv => csv(&plane, &marks, &setting.table),
         Format::Table => table(&setting, &plane, &marks, ctx),
     };
-    super::emit(&text)?;
-    if let Some(out) = &args.pdf {
-        super::fieldsheet::write(out, &setting, &plane, &marks, names.as_ref())?;
+    // the PDF on standard output is the whole output
+    if !pdf.as_ref().is_some_and(|d| d.is_stdout()) {
+        super::emit(&text)?;
+    }
+    if let Some(out) = &pdf {
+        super::fieldsheet::write(out, &inputs, &setting, &plane, &marks, names.as_ref())?;
         if !ctx.quiet {
-            eprintln!("wrote field data sheet {}", out.display());
+            eprintln!("wrote field data sheet {out}");
         }
     }
     Ok(0)

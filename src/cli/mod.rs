@@ -10,6 +10,7 @@ mod choices;
 mod completions;
 mod compute;
 mod fieldsheet;
+mod files;
 mod init;
 mod keygen;
 mod layout;

@@ -15,7 +15,7 @@ use crate::report::rata::{
     attachments, bias_text, frequency, grade_word, low_velocity_text, monitor_text, quantity_text,
     source_text, summary, verdict_text, RataUnits, RA_DECIMALS,
 };
-use crate::report::{write_atomic, Engine};
+use crate::report::Engine;
 use crate::units::convert_out;
 use clap::Args;
 use serde::Serialize;
@@ -31,6 +31,8 @@ pub struct RataArgs {
     pub format: Format,
     /// Also write the RATA summary PDF, with the RATA file (and any referenced surveys and
     /// readings) embedded.
+    /// A folder gets the PDF named after the input file; `-` is standard output (the table is
+    /// then not printed).
     #[arg(short = 'o', long = "output", value_name = "OUT.pdf")]
     pub output: Option<PathBuf>,
 }
@@ -42,11 +44,23 @@ pub fn run(args: RataArgs, ctx: &Ctx) -> Result<i32, Error> {
         Format::Csv => runs_csv(&r),
         Format::Table => table(&r, ctx),
     };
-    super::emit(&text)?;
-    if let Some(out) = &args.output {
-        write_summary(&r, out)?;
+    // never written over: the files this command read
+    let protect: Vec<PathBuf> = std::iter::once(r.file.path.clone())
+        .chain(r.survey_files.iter().map(|(_, f)| f.path.clone()))
+        .collect();
+    // results first, then the PDF (the write checks the output rules)
+    let out = args
+        .output
+        .as_deref()
+        .map(|o| super::files::named(o, &args.file));
+    // the PDF on standard output is the whole output
+    if !out.as_ref().is_some_and(|d| d.is_stdout()) {
+        super::emit(&text)?;
+    }
+    if let Some(out) = &out {
+        write_summary(&r, out, &protect)?;
         if !ctx.quiet {
-            eprintln!("wrote RATA summary {}", out.display());
+            eprintln!("wrote RATA summary {out}");
         }
     }
     Ok(if r.result.grade() == RataGrade::Fail {
@@ -398,7 +412,11 @@ fn runs_csv(r: &RataEvaluation) -> String {
     csv_text(&h, &rows)
 }
 
-fn write_summary(r: &RataEvaluation, out: &std::path::Path) -> Result<(), Error> {
+fn write_summary(
+    r: &RataEvaluation,
+    out: &crate::write::Destination,
+    protect: &[PathBuf],
+) -> Result<(), Error> {
     let files = attachments(r)
         .map_err(|e| Error::Environment(format!("cannot embed the RATA files: {e}")))?;
     let model = summary(r, &files);
@@ -413,5 +431,5 @@ fn write_summary(r: &RataEvaluation, out: &std::path::Path) -> Result<(), Error>
         results,
     )
     .map_err(|e| Error::Environment(e.to_string()))?;
-    write_atomic(out, &pdf).map_err(|e| Error::Environment(e.to_string()))
+    Ok(crate::write::write(out, &pdf, protect)?)
 }

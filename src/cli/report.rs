@@ -5,9 +5,8 @@ use crate::archive::make::{make_report, MakeError, ReportSettings};
 use crate::archive::manifest::SignerEntry;
 use crate::archive::SecretKey;
 use crate::diag::{Diagnostic, Error, Location};
-use crate::input::load;
 use crate::pipeline::evaluate_and_assess;
-use crate::report::{write_atomic, Engine, UserTemplate};
+use crate::report::{Engine, UserTemplate};
 use clap::Args;
 use std::path::PathBuf;
 
@@ -15,7 +14,8 @@ use std::path::PathBuf;
 pub struct ReportArgs {
     /// The survey file.
     pub survey: PathBuf,
-    /// Where to write the PDF (written atomically: never half a file).
+    /// Where to write the PDF: a file (written whole or not at all, never over an input), a
+    /// folder (the PDF is named after the survey), or `-` for standard output.
     #[arg(short, long, value_name = "OUT.pdf")]
     pub output: PathBuf,
     /// A firm's own Typst template, laid out against the same data as the built-in one.
@@ -70,13 +70,14 @@ fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
 
 pub(crate) fn read_key(path: &std::path::Path) -> Result<SecretKey, Error> {
     let name = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        Error::input(
-            Diagnostic::new(format!("cannot read the signing key `{name}`: {e}"))
-                .at(Location::file(&name))
-                .hint("make a key pair with `annulus keygen NAME`"),
-        )
-    })?;
+    let text =
+        crate::input::fs::read_input_text(path, crate::limits::FileKind::Key).map_err(|e| {
+            Error::input(
+                Diagnostic::new(format!("cannot read the signing key `{name}`: {e}"))
+                    .at(Location::file(&name))
+                    .hint("make a key pair with `annulus keygen NAME`"),
+            )
+        })?;
     SecretKey::parse(&text).map_err(|e| {
         Error::input(
             Diagnostic::new(format!("`{name}`: {e}"))
@@ -92,7 +93,7 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
     let template = match &args.template {
         Some(p) => {
             let name = p.display().to_string();
-            let (_, text) = crate::input::read_text(p, &name)?;
+            let (_, text) = crate::input::read_text(p, &name, crate::limits::FileKind::Template)?;
             Some(UserTemplate {
                 display_name: name,
                 text,
@@ -100,7 +101,12 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
         }
         None => None,
     };
-    let loaded = load(&args.survey)?;
+    let loaded = super::files::load_noted(&args.survey, ctx)?;
+    crate::input::fs::check_embeddable(&loaded)?;
+    let mut inputs = crate::input::fs::input_paths(&loaded);
+    inputs.extend(args.template.iter().cloned());
+    inputs.extend(key_and_path.iter().map(|(_, p)| p.clone()));
+    let out = super::files::destination(&args.output, &args.survey, &inputs)?;
     let (e, a) = evaluate_and_assess(loaded)?;
     // the key's name, else the key file's stem for keys made before keys had names
     let signer = match &key_and_path {
@@ -132,16 +138,13 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
             _ => Error::Environment(err.to_string()),
         }
     })?;
-    write_atomic(&args.output, &made.pdf).map_err(|err| {
-        Error::Environment(format!("cannot write `{}`: {err}", args.output.display()))
-    })?;
+    crate::write::write(&out, &made.pdf, &inputs)?;
     if !ctx.quiet {
         for w in &made.warnings {
             eprintln!("warning: {w}");
         }
         eprintln!(
-            "wrote {} — report {}{}; checks: {}",
-            args.output.display(),
+            "wrote {out} — report {}{}; checks: {}",
             made.manifest.report_id(),
             match (&signer, &key) {
                 (Some(s), Some(k)) =>

@@ -15,7 +15,7 @@ use crate::archive::review::{
 };
 use crate::diag::{Diagnostic, Error, Location};
 use clap::{Args, ValueEnum};
-use std::io::{IsTerminal, Read, Write};
+use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::Duration;
@@ -96,33 +96,20 @@ pub struct ReviewArgs {
 /// Reads a regular file of at most `cap` bytes; larger files give `FileTooLarge`, anything that
 /// is not a regular file (a FIFO, a device, a folder) an error, never a wait.
 fn read_capped(path: &Path, cap: u64) -> std::io::Result<Vec<u8>> {
-    let meta = std::fs::metadata(path)?;
-    if !meta.is_file() {
-        return Err(std::io::Error::new(
-            std::io::ErrorKind::InvalidInput,
-            "not a regular file (a folder, device or pipe)",
-        ));
-    }
-    let too_large = || {
-        std::io::Error::new(
-            std::io::ErrorKind::FileTooLarge,
-            format!(
-                "not reviewed: larger than the per-file size budget of {} (--file-size-limit)",
-                crate::pdf::bytes_text(cap as usize)
-            ),
-        )
-    };
-    if meta.len() > cap {
-        return Err(too_large());
-    }
-    let mut bytes = Vec::with_capacity(meta.len() as usize);
-    std::fs::File::open(path)?
-        .take(cap + 1)
-        .read_to_end(&mut bytes)?;
-    if bytes.len() as u64 > cap {
-        return Err(too_large());
-    }
-    Ok(bytes)
+    // the input rules (regular files only, opened so a FIFO cannot block), with review's budget
+    crate::input::fs::read_limited(path, cap).map_err(|e| {
+        if e.kind() == std::io::ErrorKind::FileTooLarge {
+            std::io::Error::new(
+                std::io::ErrorKind::FileTooLarge,
+                format!(
+                    "not reviewed: larger than the per-file size budget of {} (--file-size-limit)",
+                    crate::pdf::bytes_text(cap as usize)
+                ),
+            )
+        } else {
+            e
+        }
+    })
 }
 
 /// Every candidate file under `dir`, and the folders that could not be listed (as findings).

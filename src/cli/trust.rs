@@ -47,7 +47,7 @@ fn add_file(list: &mut TrustList, path: &Path) -> Result<(), Error> {
             "pass a .pub file or a trust list file",
         ));
     }
-    let (_, text) = crate::input::read_text(path, &name)?;
+    let (_, text) = crate::input::read_text(path, &name, crate::limits::FileKind::Settings)?;
     let stem = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())

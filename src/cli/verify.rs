@@ -19,9 +19,6 @@ use std::path::{Path, PathBuf};
 /// At most this many differing values are listed in the table (JSON lists them all).
 const MAX_SHOWN_DIFFERENCES: usize = 25;
 
-/// Largest PDF `verify` reads (reports are a few megabytes; the reader's own caps bound the rest).
-pub const MAX_PDF_BYTES: u64 = 1 << 30;
-
 /// When to re-render (see README, Verify).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum RerenderArg {
@@ -45,7 +42,8 @@ impl RerenderArg {
 
 #[derive(Debug, Args)]
 pub struct VerifyArgs {
-    /// The report PDF (or calibration certificate, or RATA summary).
+    /// The report PDF (or calibration certificate, or RATA summary); `-` reads it from standard
+    /// input.
     pub report: PathBuf,
     /// Trust signatures by this public key (the .pub file from `annulus keygen`); may repeat.
     /// Any --key or --trust replaces the configuration's trust list.
@@ -78,39 +76,23 @@ pub(crate) fn trust_from(keys: &[PathBuf], trust: &[PathBuf]) -> Result<(TrustLi
     )
 }
 
-/// Reads a whole file of at most `cap` bytes, with a located diagnostic.
-pub(crate) fn read_bounded(path: &Path, cap: u64, what: &str) -> Result<Vec<u8>, Error> {
-    use std::io::Read;
-    let name = path.display().to_string();
-    let fail = |m: String| {
-        Error::input(
-            Diagnostic::new(m)
-                .at(Location::file(&name))
-                .hint(format!("check the path to the {what}")),
-        )
-    };
-    let meta = std::fs::metadata(path).map_err(|e| fail(format!("cannot read `{name}`: {e}")))?;
-    if !meta.is_file() {
-        return Err(fail(format!("`{name}` is not a regular file")));
-    }
-    let f = std::fs::File::open(path).map_err(|e| fail(format!("cannot read `{name}`: {e}")))?;
-    let mut bytes = Vec::with_capacity(meta.len().min(cap) as usize);
-    f.take(cap + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| fail(format!("cannot read `{name}`: {e}")))?;
-    if bytes.len() as u64 > cap {
-        return Err(fail(format!(
-            "`{name}` is larger than {}, more than any {what} holds",
-            crate::pdf::bytes_text(cap as usize)
-        )));
-    }
-    Ok(bytes)
+/// Reads the report (`-`: standard input) by the input rules (a regular file, within the PDF size
+/// limit), with a located diagnostic.
+pub(crate) fn read_report(path: &Path) -> Result<Vec<u8>, Error> {
+    let kind = crate::limits::FileKind::Pdf;
+    crate::input::fs::read_input(path, kind).map_err(|e| {
+        Error::input(crate::input::fs::read_diagnostic(
+            &path.display().to_string(),
+            kind,
+            &e,
+        ))
+    })
 }
 
 pub fn run(args: VerifyArgs, ctx: &Ctx) -> Result<i32, Error> {
     let (list, required) = trust_from(&args.key, &args.trust)?;
     let name = args.report.display().to_string();
-    let bytes = read_bounded(&args.report, MAX_PDF_BYTES, "report PDF")?;
+    let bytes = read_report(&args.report)?;
     let options = VerifyOptions {
         trust: TrustPolicy {
             list: &list,

@@ -179,7 +179,7 @@ impl LoadedCalibration {
 /// Reads a calibration file and its readings and computes the calibration; every input problem
 /// is reported, located, in one pass.
 pub fn load(path: &Path) -> Result<LoadedCalibration, Error> {
-    load_with(path, &|p| std::fs::read(p))
+    load_with(path, &|p| crate::input::fs::read_file(p))
 }
 
 /// [`load`] with the bytes of each file supplied by `source` (a survey loaded from memory).
@@ -188,7 +188,8 @@ pub fn load_with(
     source: crate::input::FileSource,
 ) -> Result<LoadedCalibration, Error> {
     let name = path.display().to_string();
-    let (bytes, text) = crate::input::read_text_with(path, &name, source)?;
+    let (bytes, text) =
+        crate::input::read_text_with(path, &name, crate::limits::FileKind::Calibration, source)?;
     load_text(path, bytes, &text, source)
 }
 
@@ -415,6 +416,16 @@ fn read_columns(
             ),
         }
     }
+    if cols.is_empty() {
+        // none of our columns: some other file (a wrong path), whose text is not ours to quote
+        return Err(Error::input(
+            Diagnostic::new(
+                "this is not a calibration readings file: its first line names none of its columns",
+            )
+            .at(Location::at(file, header_line, 1))
+            .hint(HINT_HEADER),
+        ));
+    }
     let find = |probe: Col| cols.iter().find(|(_, c)| c.same_kind(probe)).copied();
     let any_unit = &crate::units::UNITS[0];
     let leg_col = find(Col::Leg);
@@ -478,6 +489,17 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
     let mut rows = Vec::new();
     let mut counts = [0usize; 2];
     for rec in rdr.records() {
+        if rows.len() + diags.len() >= crate::limits::MAX_CALIBRATION_PAIRS {
+            let limit = crate::limits::MAX_CALIBRATION_PAIRS;
+            diags.push(
+                Diagnostic::new(format!(
+                    "the readings file has more than {limit} rows; annulus accepts at most {limit} pairs"
+                ))
+                .at(Location::file(file))
+                .hint("check that the path names the right file"),
+            );
+            break;
+        }
         let rec = match rec {
             Ok(r) => r,
             Err(e) => {

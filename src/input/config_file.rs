@@ -85,7 +85,7 @@ pub fn load_config() -> Result<Option<Config>, Error> {
             .at(Location::file(&name)),
         ));
     }
-    let (_, text) = super::read_text(&path, &name)?;
+    let (_, text) = super::read_text(&path, &name, crate::limits::FileKind::Settings)?;
     let home = var("HOME")
         .or_else(|| var("USERPROFILE"))
         .map(PathBuf::from);

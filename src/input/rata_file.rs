@@ -487,14 +487,15 @@ fn check_run_counts(root: &Table, runs: Vec<RunSpec>) -> Option<Vec<RunSpec>> {
 /// readings; every input problem, also those inside referenced surveys, is reported in one
 /// pass. Nothing is computed: [`crate::pipeline::rata::evaluate`] does that.
 pub fn load(path: &Path) -> Result<RataInput, Error> {
-    load_with(path, &|p| std::fs::read(p))
+    load_with(path, &|p| super::fs::read_file(p))
 }
 
 /// [`load`] with the bytes of each file supplied by `source`.
 pub fn load_with(path: &Path, source: FileSource) -> Result<RataInput, Error> {
     let name = path.display().to_string();
-    let (bytes, text) = read_text_with(path, &name, source)?;
+    let (bytes, text) = read_text_with(path, &name, crate::limits::FileKind::Rata, source)?;
     let spec = parse_rata(&name, &text)?;
+    super::fs::check_count(&name, "runs", spec.runs.len(), crate::limits::MAX_RATA_RUNS)?;
     let dir = path.parent().unwrap_or(Path::new("."));
     let mut diags = crate::diag::Diagnostics::new();
     let mut surveys = Vec::new();

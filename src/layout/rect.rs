@@ -41,7 +41,18 @@ pub fn log_tchebycheff_per_side(side_m: f64) -> usize {
 
 /// Points per side (width, height) from the TAB spacing rule.
 pub fn tab_spacing_counts(width_m: f64, height_m: f64) -> (usize, usize) {
-    let per = |l: f64| ((l / TAB_MAX_SPACING_M) - 1e-9).ceil().max(2.0) as usize;
+    // Each side gets at least 2 points, so neither can have more than TAB_MAX_READINGS / 2 once
+    // the cap is applied: starting there keeps the loops below a few steps long for any size
+    // (a 1e12 in side would otherwise count down from 1.7e11, and overflow the product first).
+    let most = (TAB_MAX_READINGS / 2) as f64;
+    let per = |l: f64| {
+        let n = ((l / TAB_MAX_SPACING_M) - 1e-9).ceil();
+        if n.is_nan() {
+            2
+        } else {
+            n.clamp(2.0, most) as usize
+        }
+    };
     let (mut kw, mut kh) = (per(width_m), per(height_m));
     while kw * kh < TAB_MIN_READINGS {
         if width_m / kw as f64 >= height_m / kh as f64 {
@@ -206,6 +217,52 @@ mod tests {
         // very large duct 120 × 96 in: capped at 64 readings
         let (w, h) = tab_spacing_counts(120.0 * IN, 96.0 * IN);
         assert!(w * h <= 64, "{w}×{h}");
+    }
+
+    #[test]
+    fn tab_spacing_rule_is_bounded_for_any_size() {
+        // the same counts as the rule without the starting cap for every duct up to 1000 in a
+        // side (the plain rule below, which counts down one step at a time) ...
+        let plain = |width_m: f64, height_m: f64| {
+            let per = |l: f64| ((l / TAB_MAX_SPACING_M) - 1e-9).ceil().max(2.0) as usize;
+            let (mut kw, mut kh) = (per(width_m), per(height_m));
+            while kw * kh < TAB_MIN_READINGS {
+                if width_m / kw as f64 >= height_m / kh as f64 {
+                    kw += 1;
+                } else {
+                    kh += 1;
+                }
+            }
+            while kw * kh > TAB_MAX_READINGS {
+                if (width_m / kw as f64 <= height_m / kh as f64 && kw > 2) || kh <= 2 {
+                    kw -= 1;
+                } else {
+                    kh -= 1;
+                }
+            }
+            (kw, kh)
+        };
+        for w in (1..=1000).step_by(7) {
+            for h in (1..=1000).step_by(11) {
+                let (w, h) = (w as f64 * IN, h as f64 * IN);
+                assert_eq!(tab_spacing_counts(w, h), plain(w, h), "{w} × {h} m");
+            }
+        }
+        // ... and a few steps for absurd ones (this used to count down from 1.7e11, or overflow)
+        let t = std::time::Instant::now();
+        for (w, h) in [
+            (1e12 * IN, 24.0 * IN),
+            (24.0 * IN, 1e12 * IN),
+            (1e300, 1e300),
+            (f64::MAX, 1e-300),
+        ] {
+            let (kw, kh) = tab_spacing_counts(w, h);
+            assert!(
+                kw >= 2 && kh >= 2 && kw * kh <= TAB_MAX_READINGS,
+                "{kw}×{kh}"
+            );
+        }
+        assert!(t.elapsed() < std::time::Duration::from_secs(1));
     }
 
     #[test]

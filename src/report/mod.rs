@@ -8,9 +8,9 @@
 //! [`rata`] are the typed models of the other documents ([`documents::Presentation`]; a new
 //! document, such as the system submittal, goes beside them); [`charts`] draws SVG from the
 //! model; [`engine`] compiles the templates in `templates/` with embedded fonts and exports PDF;
-//! [`attach`] carries the embedded files in and reads them back out; [`write`](mod@write) puts a
-//! file on disk atomically. Must not compute results, read input files or look at the clock: the
-//! caller passes the evaluation, the document date and the attachment bytes in.
+//! [`attach`] carries the embedded files in and reads them back out; [`crate::write`] puts a
+//! file on disk by the output rules. Must not compute results, read input files or look at the
+//! clock: the caller passes the evaluation, the document date and the attachment bytes in.
 //!
 //! Typical use:
 //!
@@ -43,13 +43,12 @@ pub mod documents;
 pub mod engine;
 pub mod model;
 pub mod rata;
-pub mod write;
 
+pub use crate::write::{write_atomic, WriteError};
 pub use attach::{embedded_files, Attachment, AttachmentError, EmbeddedFile, ExtractError};
 pub use documents::{DocumentMeta, Presentation};
 pub use engine::{Diagnostic, Engine, RenderError, RenderOptions, Rendered, UserTemplate};
 pub use model::{FieldSheetData, ReportData};
-pub use write::{write_atomic, WriteError};
 
 #[cfg(test)]
 mod testkit;
