@@ -40,6 +40,7 @@ pub mod layout;
 pub mod pdf;
 pub mod pipeline;
 pub mod plane;
+pub mod plausibility;
 pub mod rata;
 pub mod readings;
 pub mod report;

@@ -239,6 +239,8 @@ pub const UNITS: &[Unit] = &[
     u("ml", Dimension::Volume, 1e-6),
     u("mL", Dimension::Volume, 1e-6),
     u("ft3", Dimension::Volume, FT3_M3),
+    // dry cubic feet, as dry gas meters are read (a volume; "dry" names what is metered)
+    u("dcf", Dimension::Volume, FT3_M3),
     // angle
     u("deg", Dimension::Angle, 1.0),
     // area

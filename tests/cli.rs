@@ -560,7 +560,7 @@ fn check_passes_the_samples_and_fails_the_bad_plane() {
     ] {
         assert!(out.contains(id), "bad-plane: no `{id}` finding");
     }
-    assert!(out.contains("RUN 2 IS INVALID AND EXCLUDED FROM THE AVERAGE"));
+    assert!(out.contains("RUN 2 IS VOID AND EXCLUDED FROM THE AVERAGE"));
     let (code, json, _) = annulus(&[
         "check",
         "sample-data/bad-plane/survey.toml",

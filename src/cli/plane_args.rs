@@ -208,6 +208,7 @@ impl PlaneArgs {
             method,
             lines,
             points_per_line,
+            reach: base.map(|s| s.layout.reach).unwrap_or_default(),
         };
         let upstream_d = match &self.upstream {
             Some(raw) => distance(&mut d, "upstream", raw, duct.as_ref()),
