@@ -135,17 +135,12 @@ impl ResultsDoc {
         let s = &e.loaded.survey;
         let c = &e.convention;
         let mut notes = c.describe();
-        notes.extend(crate::flow::angle_notes(c, s.options.angles));
-        if let Some(r) = e.runs.first() {
-            notes.extend(crate::flow::wall_factor_note(
-                s,
-                r.wall_factor,
-                e.wall_effects.len(),
-            ));
-        }
-        if let Some(m4) = e.runs.iter().find_map(|r| r.gas.method4.as_ref()) {
-            notes.extend(m4.form.describe());
-        }
+        notes.extend(crate::flow::method_notes(
+            s,
+            c,
+            &e.runs,
+            e.wall_effects.len(),
+        ));
         ResultsDoc {
             program: format!("annulus {}", env!("CARGO_PKG_VERSION")),
             convention: c.id.name().to_string(),

@@ -115,6 +115,25 @@ pub fn wall_factor(survey: &Survey) -> f64 {
     }
 }
 
+/// The methods a survey's results rest on beyond the convention's own equations, in words: the
+/// 2F/2G per-point equations, the wall-effects factor with its clause, the Method 4 equations.
+/// `traverses` is the number of Method 2H wall-effects traverses behind a calculated factor.
+pub fn method_notes(
+    survey: &Survey,
+    convention: &Convention,
+    runs: &[RunResult],
+    traverses: usize,
+) -> Vec<String> {
+    let mut out = super::convention::angle_notes(convention, survey.options.angles);
+    if let Some(r) = runs.first() {
+        out.extend(wall_factor_note(survey, r.wall_factor, traverses));
+    }
+    if let Some(m4) = runs.iter().find_map(|r| r.gas.method4.as_ref()) {
+        out.extend(m4.form.describe());
+    }
+    out
+}
+
 /// The wall factor applied, in words with the clause behind it; `None` when there is none.
 /// `traverses` is the number of wall-effects traverses a calculated factor was derived from.
 pub fn wall_factor_note(survey: &Survey, applied: f64, traverses: usize) -> Option<String> {

@@ -162,7 +162,7 @@ mod tests {
             ]
         );
         // the average dry standard flow as `compute` prints it (tests/golden/compute-stack.txt)
-        assert_eq!(s.headline[0].value, "93,249 dscfm");
+        assert_eq!(s.headline[0].value, "93,147 dscfm");
         assert!(s.headline[0].si.ends_with(" m³/h"), "{}", s.headline[0].si);
         assert!(s.headline[2].value.ends_with(" ft/s"));
         assert_eq!(s.basis_text, "Average of runs 1, 2, 3");
