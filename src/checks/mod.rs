@@ -1062,4 +1062,23 @@ mod tests {
         );
         assert_eq!(limit(12.0, LimitKind::Months), "12 months");
     }
+
+    #[test]
+    fn the_readme_documents_every_check_and_its_limit_keys() {
+        let readme = include_str!("../../README.md");
+        for def in REGISTRY {
+            let row = readme
+                .lines()
+                .find(|l| l.starts_with(&format!("| `{}` |", def.id)))
+                .unwrap_or_else(|| panic!("README has no row for `{}`", def.id));
+            for l in def.limits {
+                assert!(
+                    row.contains(&format!("`{}`", l.key)),
+                    "{}: {}",
+                    def.id,
+                    l.key
+                );
+            }
+        }
+    }
 }
