@@ -658,12 +658,18 @@ pub fn parse_quantity(text: &str, expected: Dimension) -> Result<f64, UnitError>
         unit: unit.to_string(),
         expected,
     })?;
-    convert_in(value, found, expected).map_err(|found_dim| UnitError::WrongDimension {
-        raw,
+    let si = convert_in(value, found, expected).map_err(|found_dim| UnitError::WrongDimension {
+        raw: raw.clone(),
         unit: unit.to_string(),
         found: found_dim,
         expected,
-    })
+    })?;
+    // a finite number can still overflow in the conversion ("1e306 psi")
+    if si.is_finite() {
+        Ok(si)
+    } else {
+        Err(UnitError::NotFinite { raw })
+    }
 }
 
 /// Converts a value in `unit` to SI for the expected dimension; a temperature unit read as a
@@ -1031,5 +1037,14 @@ mod tests {
             rows += 1;
         }
         assert!(rows >= 20, "only {rows} rows compared");
+    }
+
+    #[test]
+    fn a_value_that_overflows_in_conversion_is_refused() {
+        assert!(matches!(
+            parse_quantity("1e306 psi", Dimension::Pressure),
+            Err(UnitError::NotFinite { .. })
+        ));
+        assert!(parse_quantity("1e3 psi", Dimension::Pressure).is_ok());
     }
 }

@@ -911,10 +911,7 @@ fn a_voided_and_replaced_run_completes_the_test_and_a_short_test_fails() {
     assert_eq!(v["runs"][0]["void_reason"], serde_json::Value::Null);
     assert!(v["runs"][0]["moisture_fraction"].as_f64().unwrap() > 0.0);
     assert_eq!(v["complete"], true);
-    assert_eq!(
-        v["average"]["runs"],
-        serde_json::json!(["1", "3", "4"])
-    );
+    assert_eq!(v["average"]["runs"], serde_json::json!(["1", "3", "4"]));
     // without the repeat the test is short by one run: exit 3, and the finding says so
     let (code, out, _) = annulus(&["check", "tests/data/runs/short.toml"]);
     assert_eq!(code, 3, "{out}");
