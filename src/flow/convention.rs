@@ -308,10 +308,18 @@ mod tests {
         let g = angle_notes(&c, AngleCorrection::Yaw).join(" ");
         // EPA Method 2G: axial velocity v·cos(yaw) at each point, point velocities averaged
         assert!(g.contains("Method 2G") && g.contains("cos θy(i)"), "{g}");
-        assert!(g.contains("85.49·Cp·√(Δp(i)·Ts(i)/(Ps·Ms)), Ts(i) = °F + 460"), "{g}");
+        assert!(
+            g.contains("85.49·Cp·√(Δp(i)·Ts(i)/(Ps·Ms)), Ts(i) = °F + 460"),
+            "{g}"
+        );
         let f = angle_notes(&c, AngleCorrection::YawPitch).join(" ");
-        assert!(f.contains("Method 2F") && f.contains("cos θy(i)·cos θp(i)"), "{f}");
+        assert!(
+            f.contains("Method 2F") && f.contains("cos θy(i)·cos θp(i)"),
+            "{f}"
+        );
         let m = Convention::new(ConventionId::EpaMethod2, EpaForm::Metric, None);
-        assert!(angle_notes(&m, AngleCorrection::Yaw).join(" ").contains("34.97"));
+        assert!(angle_notes(&m, AngleCorrection::Yaw)
+            .join(" ")
+            .contains("34.97"));
     }
 }
