@@ -275,8 +275,7 @@ impl RataResult {
         let cc = show(self.confidence_coefficient.abs());
         match (self.bias_direction(), self.bias.passed) {
             (BiasDirection::Low, false) => format!(
-                "the monitor reads LOW: on average {d} below the reference method, more than the confidence coefficient {cc}; its readings are to be multiplied by the bias adjustment factor {:.4}",
-                self.bias.adjustment_factor
+                "the monitor reads LOW: on average {d} below the reference method, more than the confidence coefficient {cc}; its readings are to be multiplied by the bias adjustment factor"
             ),
             (BiasDirection::Low, true) => format!(
                 "the monitor reads low by {d} on average, within the confidence coefficient {cc}: no significant bias, no adjustment"
@@ -762,7 +761,7 @@ mod tests {
             w.starts_with("the monitor reads LOW: on average 3.70 m/s below"),
             "{w}"
         );
-        assert!(w.contains("1.0316"), "{w}");
+        assert!(w.ends_with("bias adjustment factor"), "{w}");
         // set 1: d̄ = +0.0156 within cc 0.068 -> low but not significant
         let cem: Vec<f64> = RM1.iter().zip(D1).map(|(r, d)| r - d).collect();
         let ok = evaluate_rata(
