@@ -14,7 +14,7 @@
 use crate::checks::instruments::{Instruments, TemperatureAccuracy};
 use crate::checks::{self, Finding, RunView, Status, Subject};
 use crate::display::Kind;
-use crate::evaluation::{run_is_valid, Evaluation};
+use crate::evaluation::Evaluation;
 use crate::flow::RunResult;
 use crate::geometry::Shape;
 use crate::readings::{Dp, RunReadings};
@@ -218,12 +218,16 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
         .zip(&survey.runs)
         .zip(&eval.loaded.runs)
         .enumerate()
-        .map(|(i, ((result, spec), (_, readings)))| RunView {
-            spec,
-            result,
-            readings,
-            dp_unit: units.get(i).copied().flatten(),
-            valid: run_is_valid(spec, survey.convention),
+        .map(|(i, ((result, spec), (_, readings)))| {
+            let validity = eval.validity.get(i);
+            RunView {
+                spec,
+                result,
+                readings,
+                dp_unit: units.get(i).copied().flatten(),
+                valid: validity.is_none_or(|v| v.valid),
+                void_reason: validity.and_then(|v| v.void_reason.as_deref()),
+            }
         })
         .collect();
     let subject = Subject {
@@ -234,8 +238,27 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
         average: eval.average.as_ref(),
         instruments: &config.instruments,
         reported: &config.reported,
+        runs_required: survey.runs_required,
+        wall_effects: &eval.wall_effects,
     };
-    let findings = checks::run_all(&subject, &config.checks);
+    let mut findings = checks::run_all(&subject, &config.checks);
+    // A void run is out of the average: what its own data show cannot fail the test. Its failing
+    // findings stay in the report, as warnings that say so (the leak-check finding already words
+    // the void itself).
+    for (view, run_checks) in subject.runs.iter().zip(findings.runs.iter_mut()) {
+        if view.valid {
+            continue;
+        }
+        for f in run_checks.iter_mut() {
+            if f.status == Status::Fail && f.id != "leak-check" {
+                f.status = Status::Warn;
+                f.message.text_mut().push(format!(
+                    " (run {} is void and does not count)",
+                    view.spec.id
+                ));
+            }
+        }
+    }
     let calibrations = checks::records::calibration_dues(&subject, &config.checks);
 
     let mut assumptions = Vec::new();

@@ -41,6 +41,7 @@ pub mod limits;
 pub mod pdf;
 pub mod pipeline;
 pub mod plane;
+pub mod plausibility;
 pub mod rata;
 pub mod readings;
 pub mod report;

@@ -6,8 +6,10 @@
 pub mod rata;
 
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
-pub use crate::evaluation::{run_is_valid, Evaluation};
-use crate::flow::{self, average_runs, Convention, EpaForm, FlowError, RunResult};
+pub use crate::evaluation::{run_is_valid, run_validity, Evaluation, RunValidity};
+use crate::flow::{
+    self, average_runs, wall_effects::combined_factor, Convention, EpaForm, FlowError, RunResult,
+};
 use crate::input::readings::{label_lines, match_to_layout};
 use crate::input::Loaded;
 use crate::plane::{lay_out, Plane};
@@ -55,6 +57,7 @@ pub fn evaluate(mut loaded: Loaded) -> Result<Evaluation, Error> {
     }
     let s = &loaded.survey;
     let mut runs = Vec::new();
+    let base_waf = flow::wall_factor(s);
     for ((spec, (_, readings)), labelled) in s.runs.iter().zip(&loaded.runs).zip(labelled) {
         if !labelled {
             continue;
@@ -63,7 +66,7 @@ pub fn evaluate(mut loaded: Loaded) -> Result<Evaluation, Error> {
             diags.extend(d);
             continue;
         }
-        match flow::compute_run(s, &convention, &plane.layout, &spec.id, readings) {
+        match flow::compute_run(s, &convention, &plane.layout, spec, readings, base_waf) {
             Ok(r) => runs.push(r),
             Err(e) => diags.push(flow_diag(e, &readings.file)),
         }
@@ -71,10 +74,54 @@ pub fn evaluate(mut loaded: Loaded) -> Result<Evaluation, Error> {
     if !diags.is_empty() {
         return Err(Error::Input(diags));
     }
+    let mut wall_effects = Vec::new();
+    if s.options.wall_factor == WallFactor::Method2hCalculated {
+        for ((spec, run), wall) in s.runs.iter().zip(&runs).zip(&loaded.wall_readings) {
+            let Some((_, wall)) = wall else { continue };
+            let located = |e: FlowError| flow_diag(e, &wall.file);
+            let w = flow::wall_point_velocities(s, &convention, spec, run, wall)
+                .and_then(|v| {
+                    let pv: Vec<f64> = run.points.iter().map(|p| p.velocity_m_s).collect();
+                    flow::wall_effects(&plane.layout, &pv, &v)
+                })
+                .map_err(located);
+            match w {
+                Ok(w) => wall_effects.push((spec.id.clone(), w)),
+                Err(d) => diags.push(d),
+            }
+        }
+        if !diags.is_empty() {
+            return Err(Error::Input(diags));
+        }
+        let factors: Vec<f64> = wall_effects.iter().map(|(_, w)| w.factor).collect();
+        let Some(waf) = combined_factor(&factors) else {
+            return Err(Error::input(
+                Diagnostic::new(
+                    "wall_factor = \"method-2h-calculated\" needs a wall-effects traverse in at least one run",
+                )
+                .at(Location::file(&loaded.survey_file.name).with_context("[flow] wall_factor"))
+                .hint("add wall_readings = \"…csv\" to a [[run]], or use \"method-2h-default\""),
+            ));
+        };
+        runs = s
+            .runs
+            .iter()
+            .zip(&loaded.runs)
+            .map(|(spec, (_, readings))| {
+                flow::compute_run(s, &convention, &plane.layout, spec, readings, waf)
+                    .map_err(|e| Error::input(flow_diag(e, &readings.file)))
+            })
+            .collect::<Result<_, _>>()?;
+    }
+    let validity: Vec<RunValidity> = s
+        .runs
+        .iter()
+        .map(|spec| run_validity(spec, s.convention))
+        .collect();
     let included: Vec<&RunResult> = runs
         .iter()
-        .zip(&s.runs)
-        .filter(|(_, spec)| run_is_valid(spec, s.convention))
+        .zip(&validity)
+        .filter(|(_, v)| v.valid)
         .map(|(r, _)| r)
         .collect();
     let average = average_runs(&included, s.design.as_ref(), &convention);
@@ -83,6 +130,8 @@ pub fn evaluate(mut loaded: Loaded) -> Result<Evaluation, Error> {
         plane,
         average,
         runs,
+        validity,
+        wall_effects,
         loaded,
     })
 }

@@ -39,6 +39,7 @@ pub fn lay_out(
         minimum_points: required,
         wall_rule: (convention == ConventionId::EpaMethod2).then_some(WallRule::EpaMethod1),
         printed_table: convention == ConventionId::EpaMethod2,
+        reach: request.reach,
     };
     let layout = locate_points(duct, &spec)?;
     let required_points = match convention {

@@ -211,6 +211,17 @@ pub struct BiasTest {
     pub adjustment_factor: f64,
 }
 
+/// Which way the monitor reads against the reference method on average.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum BiasDirection {
+    /// The monitor reads below the reference method (d̄ = RM − CEM > 0).
+    Low,
+    /// The monitor reads above the reference method (d̄ < 0).
+    High,
+    /// No difference on average.
+    None,
+}
+
 /// The complete RATA.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RataResult {
@@ -245,6 +256,39 @@ pub struct RataResult {
 }
 
 impl RataResult {
+    /// Which way the monitor reads on average.
+    pub fn bias_direction(&self) -> BiasDirection {
+        if self.mean_difference > 0.0 {
+            BiasDirection::Low
+        } else if self.mean_difference < 0.0 {
+            BiasDirection::High
+        } else {
+            BiasDirection::None
+        }
+    }
+
+    /// The bias result in words, saying which way the monitor reads; `show` formats a value of
+    /// the RATA's quantity (SI in, text with its unit out). The bias test corrects a monitor that
+    /// reads low by more than the confidence coefficient (40 CFR 75 App. A §7.6, from memory).
+    pub fn bias_words(&self, show: &dyn Fn(f64) -> String) -> String {
+        let d = show(self.mean_difference.abs());
+        let cc = show(self.confidence_coefficient.abs());
+        match (self.bias_direction(), self.bias.passed) {
+            (BiasDirection::Low, false) => format!(
+                "the monitor reads LOW: on average {d} below the reference method, more than the confidence coefficient {cc}; its readings are to be multiplied by the bias adjustment factor"
+            ),
+            (BiasDirection::Low, true) => format!(
+                "the monitor reads low by {d} on average, within the confidence coefficient {cc}: no significant bias, no adjustment"
+            ),
+            (BiasDirection::High, _) => format!(
+                "the monitor reads high by {d} on average (confidence coefficient {cc}); the bias test adjusts only a monitor that reads low: no adjustment"
+            ),
+            (BiasDirection::None, _) => {
+                "the monitor and the reference method agree on average: no adjustment".to_string()
+            }
+        }
+    }
+
     /// Overall grade: the relative accuracy, or the low-velocity alternative where it applies
     /// and grades better.
     pub fn grade(&self) -> RataGrade {
@@ -434,6 +478,38 @@ pub fn evaluate_rata(
         bias,
         limits,
     })
+}
+
+/// One operating (load) level of a RATA and its result.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LevelResult {
+    /// The level's name as the file gives it (`""` when the file names none).
+    pub level: String,
+    pub result: Result<RataResult, RataError>,
+}
+
+/// Evaluates a RATA run at several operating levels: the runs of each level (in the order the
+/// levels first appear) are a RATA of their own, with its own relative accuracy and bias
+/// (40 CFR 75 App. A §6.5.2: flow RATAs at two or three load levels, from memory).
+pub fn evaluate_levels(
+    runs: Vec<(String, RataRun)>,
+    quantity: RataQuantity,
+    limits: RataLimits,
+) -> Vec<LevelResult> {
+    let mut levels: Vec<(String, Vec<RataRun>)> = Vec::new();
+    for (level, run) in runs {
+        match levels.iter_mut().find(|(l, _)| *l == level) {
+            Some((_, v)) => v.push(run),
+            None => levels.push((level, vec![run])),
+        }
+    }
+    levels
+        .into_iter()
+        .map(|(level, runs)| LevelResult {
+            level,
+            result: evaluate_rata(runs, quantity, limits),
+        })
+        .collect()
 }
 
 #[cfg(test)]
@@ -672,5 +748,71 @@ mod tests {
                 .to_string(),
             "run `7`: reference-method value must be greater than zero, found `-1`"
         );
+    }
+
+    #[test]
+    fn the_bias_line_says_which_way_the_monitor_reads() {
+        let show = |v: f64| format!("{v:.2} m/s");
+        // set 2: d̄ = +3.7 > cc 0.274 -> low, adjusted
+        let low = evaluate_rata(set_2_runs(), RataQuantity::Flow, PART_75_FLOW_LIMITS).unwrap();
+        assert_eq!(low.bias_direction(), BiasDirection::Low);
+        let w = low.bias_words(&show);
+        assert!(
+            w.starts_with("the monitor reads LOW: on average 3.70 m/s below"),
+            "{w}"
+        );
+        assert!(w.ends_with("bias adjustment factor"), "{w}");
+        // set 1: d̄ = +0.0156 within cc 0.068 -> low but not significant
+        let cem: Vec<f64> = RM1.iter().zip(D1).map(|(r, d)| r - d).collect();
+        let ok = evaluate_rata(
+            used_runs(&RM1, &cem),
+            RataQuantity::VelocityMS,
+            PART_75_FLOW_LIMITS,
+        )
+        .unwrap();
+        assert!(ok
+            .bias_words(&show)
+            .contains("reads low by 0.02 m/s on average, within"));
+        // set 3: the monitor reads above the reference method
+        let high = evaluate_rata(
+            used_runs(&RM3, &CEM3),
+            RataQuantity::VelocityMS,
+            PART_75_FLOW_LIMITS,
+        )
+        .unwrap();
+        assert_eq!(high.bias_direction(), BiasDirection::High);
+        assert!(high.bias_words(&show).starts_with("the monitor reads high"));
+        assert_eq!(high.bias.adjustment_factor, 1.0);
+    }
+
+    #[test]
+    fn each_load_level_gets_its_own_result() {
+        let cem: Vec<f64> = RM1.iter().zip(D1).map(|(r, d)| r - d).collect();
+        let mut runs = Vec::new();
+        for (i, (r, c)) in RM1.iter().zip(&cem).enumerate() {
+            runs.push((
+                "high".to_string(),
+                RataRun::used(format!("H{i}"), *r, *c).unwrap(),
+            ));
+        }
+        for (i, (r, c)) in RM3.iter().zip(&CEM3).enumerate() {
+            runs.push((
+                "low".to_string(),
+                RataRun::used(format!("L{i}"), *r, *c).unwrap(),
+            ));
+        }
+        let levels = evaluate_levels(runs, RataQuantity::VelocityMS, PART_75_FLOW_LIMITS);
+        assert_eq!(levels.len(), 2);
+        assert_eq!(levels[0].level, "high");
+        let high = levels[0].result.as_ref().unwrap();
+        // the high level alone is set 1 (checked above against the same numbers)
+        assert!(close(high.relative_accuracy_percent, 0.5505545610));
+        let low = levels[1].result.as_ref().unwrap();
+        assert_eq!(low.used_runs, 9);
+        assert_eq!(low.bias_direction(), BiasDirection::High);
+        // a level with too few runs fails on its own without hiding the other
+        let few = vec![("x".to_string(), RataRun::used("1", 1.0, 1.0).unwrap())];
+        let r = evaluate_levels(few, RataQuantity::Flow, PART_75_FLOW_LIMITS);
+        assert!(matches!(r[0].result, Err(RataError::TooFewUsed { .. })));
     }
 }

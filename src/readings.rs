@@ -38,3 +38,19 @@ pub struct RunReadings {
     #[serde(skip)]
     pub dp_unit: Option<&'static crate::units::Unit>,
 }
+
+/// One Method 2H wall-effects reading: a point between the wall and a Method 1 exterior point.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct WallReading {
+    /// `line` and `point` name the Method 1 exterior point whose sector the reading belongs to.
+    pub reading: Reading,
+    /// Distance from the wall nearest that point, m.
+    pub distance_m: f64,
+}
+
+/// A run's wall-effects traverse, in file order.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct WallReadings {
+    pub file: String,
+    pub readings: Vec<WallReading>,
+}

@@ -6,7 +6,7 @@
 
 use crate::assess::{Assessment, RunAssessment};
 use crate::flow::{Average, PointResult, RunResult};
-use crate::pipeline::{run_is_valid, Evaluation};
+use crate::pipeline::{Evaluation, RunValidity};
 use serde::Serialize;
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -54,16 +54,39 @@ impl From<&PointResult> for PointDoc {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RunDoc {
     pub id: String,
-    /// Counts toward the average (post-run leak check passed, or not required).
+    /// Counts toward the average (post-run leak check passed, or not required; not voided).
     pub valid: bool,
+    /// Why the run does not count; `null` for a valid run.
+    pub void_reason: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub started: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub ended: Option<String>,
     pub points: Vec<PointDoc>,
     pub density_kg_m3: f64,
     pub mean_temperature_k: f64,
+    /// The run's own barometric and static pressure (given in its `[[run]]` or the survey's).
+    pub barometric_pa: f64,
+    pub static_pa: f64,
     pub absolute_pressure_pa: f64,
+    /// The run's dry gas as used: a composition (fractions), a molar mass, or air.
+    pub dry_gas: crate::survey::DryGas,
     pub dry_molar_mass_g_mol: f64,
     pub wet_molar_mass_g_mol: f64,
+    /// The water vapour mole fraction used (Bws).
     pub moisture_fraction: f64,
+    /// The measured or given value before the saturation limit, when saturation was considered.
+    pub measured_moisture_fraction: Option<f64>,
+    /// Saturation at the run's mean stack temperature, when considered (may exceed 1).
+    pub saturation_moisture_fraction: Option<f64>,
     pub moisture_basis: String,
+    /// The Method 4 train with every intermediate, in the form's own units, when the moisture is
+    /// from a train.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub method4: Option<crate::gas::Method4Result>,
+    /// The Method 2H calculational procedure of this run's wall-effects traverse.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub wall_effects: Option<crate::flow::WallEffects>,
     pub wall_factor: f64,
     pub mean_velocity_m_s: f64,
     pub actual_flow_m3_s: f64,
@@ -94,6 +117,10 @@ pub struct ResultsDoc {
     pub points_per_run: usize,
     pub required_points: Option<usize>,
     pub negative_policy: crate::survey::NegativePolicy,
+    /// Valid runs the test needs, how many it has, and whether that is enough.
+    pub runs_required: usize,
+    pub valid_runs: usize,
+    pub complete: bool,
     pub runs: Vec<RunDoc>,
     pub average: Option<Average>,
     /// The budget of the average of the valid runs (adds run-to-run variation).
@@ -107,10 +134,17 @@ impl ResultsDoc {
     pub fn new(e: &Evaluation, a: &Assessment) -> ResultsDoc {
         let s = &e.loaded.survey;
         let c = &e.convention;
+        let mut notes = c.describe();
+        notes.extend(crate::flow::method_notes(
+            s,
+            c,
+            &e.runs,
+            e.wall_effects.len(),
+        ));
         ResultsDoc {
             program: format!("annulus {}", env!("CARGO_PKG_VERSION")),
             convention: c.id.name().to_string(),
-            convention_notes: c.describe(),
+            convention_notes: notes,
             reference: Reference {
                 temperature_k: c.reference_temperature_k,
                 pressure_pa: c.reference_pressure_pa,
@@ -121,13 +155,22 @@ impl ResultsDoc {
             points_per_run: e.plane.layout.total_points(),
             required_points: e.plane.required_points,
             negative_policy: s.options.negative,
+            runs_required: e.runs_required(),
+            valid_runs: e.valid_runs(),
+            complete: e.complete(),
             runs: e
                 .runs
                 .iter()
                 .zip(&s.runs)
-                .map(|(r, spec)| {
+                .zip(&e.validity)
+                .map(|((r, spec), v)| {
                     let ra = a.runs.iter().find(|x| x.id == r.id);
-                    run_doc(r, run_is_valid(spec, s.convention), ra)
+                    let wall = e
+                        .wall_effects
+                        .iter()
+                        .find(|(id, _)| *id == r.id)
+                        .map(|(_, w)| w.clone());
+                    run_doc(r, spec, v, wall, ra)
                 })
                 .collect(),
             average: e.average.clone(),
@@ -138,18 +181,34 @@ impl ResultsDoc {
     }
 }
 
-fn run_doc(r: &RunResult, valid: bool, a: Option<&RunAssessment>) -> RunDoc {
+fn run_doc(
+    r: &RunResult,
+    spec: &crate::survey::RunSpec,
+    v: &RunValidity,
+    wall_effects: Option<crate::flow::WallEffects>,
+    a: Option<&RunAssessment>,
+) -> RunDoc {
     RunDoc {
         id: r.id.clone(),
-        valid,
+        valid: v.valid,
+        void_reason: v.void_reason.clone(),
+        started: spec.started.clone(),
+        ended: spec.ended.clone(),
         points: r.points.iter().map(PointDoc::from).collect(),
         density_kg_m3: r.density_kg_m3,
         mean_temperature_k: r.mean_temperature_k,
+        barometric_pa: r.gas.barometric_pa,
+        static_pa: r.gas.static_pa,
         absolute_pressure_pa: r.gas.absolute_pressure_pa,
+        dry_gas: r.gas.dry.clone(),
         dry_molar_mass_g_mol: r.gas.dry_molar_mass_g_mol,
         wet_molar_mass_g_mol: r.gas.wet_molar_mass_g_mol,
         moisture_fraction: r.gas.bws,
+        measured_moisture_fraction: r.gas.measured_bws,
+        saturation_moisture_fraction: r.gas.saturation_bws,
         moisture_basis: r.gas.moisture_basis.clone(),
+        method4: r.gas.method4,
+        wall_effects,
         wall_factor: r.wall_factor,
         mean_velocity_m_s: r.mean_velocity_m_s,
         actual_flow_m3_s: r.actual_flow_m3_s,

@@ -112,6 +112,11 @@ pub struct Probe {
     pub gauge_fluid_sg: Option<f64>,
     /// The calibration file the coefficient came from, when the survey references one.
     pub calibration: Option<ProbeCalibration>,
+    /// Correct a liquid-column Δp for the column of gas it displaces (`(SG·ρw − ρgas)·g·h`); off by
+    /// default, refused under EPA Method 2, where a reading is h × SG inches of water.
+    pub gauge_gas_column: bool,
+    /// Usable length of the probe (tip to handle), to warn when the marks need a longer one.
+    pub length_m: Option<f64>,
 }
 
 /// A Type S calibration a survey references (`annulus calibrate` format).
@@ -143,14 +148,17 @@ pub enum DryGas {
     Air,
 }
 
-/// EPA Method 4 train data, SI.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+/// EPA Method 4 train data as recorded, SI (see [`crate::gas::method4`]).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Method4Data {
-    pub impinger_gain_m3: f64,
+    /// Impinger gain: a liquid volume (mL) or a weighed mass (g, taken as mL).
+    pub impinger_gain: crate::gas::ImpingerGain,
     pub silica_gain_kg: f64,
+    /// Dry gas meter volume as read (ft³, dcf, m³ or L), m³.
     pub meter_volume_m3: f64,
     pub meter_y: f64,
-    pub meter_pressure_pa: f64,
+    /// Absolute pressure at the meter, or the orifice ΔH added to the barometric pressure.
+    pub meter_pressure: crate::gas::MeterPressure,
     pub meter_temperature_k: f64,
 }
 
@@ -185,6 +193,68 @@ pub struct Gas {
     pub moisture: Moisture,
     /// Used for points whose readings have no temperature.
     pub temperature_k: Option<f64>,
+}
+
+impl Gas {
+    /// The gas of one run: each condition the run gives replaces the survey's for that run. Dry
+    /// composition keys replace one by one (a run giving only `o2` keeps the survey's `co2`); a
+    /// run's `dry_molar_mass` replaces any composition; a run's moisture (in any form) replaces the
+    /// survey's moisture.
+    pub fn for_run(&self, c: &RunConditions) -> Gas {
+        let dry = match &c.dry {
+            None => self.dry.clone(),
+            Some(DryOverride {
+                dry_molar_mass: Some(g_mol),
+                ..
+            }) => DryGas::MolarMass { g_mol: *g_mol },
+            Some(d) => {
+                let (o2, co2, co, ar) = match &self.dry {
+                    DryGas::Composition { o2, co2, co, ar } => (*o2, *co2, *co, *ar),
+                    _ => (0.0, 0.0, 0.0, None),
+                };
+                DryGas::Composition {
+                    o2: d.o2.unwrap_or(o2),
+                    co2: d.co2.unwrap_or(co2),
+                    co: d.co.unwrap_or(co),
+                    ar: d.ar.or(ar),
+                }
+            }
+        };
+        Gas {
+            barometric_pa: c.barometric_pa.unwrap_or(self.barometric_pa),
+            static_pa: c.static_pa.unwrap_or(self.static_pa),
+            dry,
+            moisture: c.moisture.clone().unwrap_or_else(|| self.moisture.clone()),
+            temperature_k: c.temperature_k.or(self.temperature_k),
+        }
+    }
+}
+
+/// Dry-gas values a run gives in place of the survey's (fractions 0..1, g/mol).
+#[derive(Debug, Clone, PartialEq, Serialize, Default)]
+pub struct DryOverride {
+    pub o2: Option<f64>,
+    pub co2: Option<f64>,
+    pub co: Option<f64>,
+    pub ar: Option<f64>,
+    pub dry_molar_mass: Option<f64>,
+}
+
+/// Conditions a `[[run]]` gives for itself; each replaces `[gas]` for that run.
+#[derive(Debug, Clone, PartialEq, Serialize, Default)]
+pub struct RunConditions {
+    pub barometric_pa: Option<f64>,
+    pub static_pa: Option<f64>,
+    pub temperature_k: Option<f64>,
+    pub dry: Option<DryOverride>,
+    pub moisture: Option<Moisture>,
+}
+
+impl RunConditions {
+    /// True when the run gives none of its own conditions.
+    pub fn is_empty(&self) -> bool {
+        *self == RunConditions::default()
+    }
 }
 
 /// What to do with zero or negative Δp readings (flow reversal or turbulence).
@@ -228,8 +298,11 @@ named!(AngleCorrection {
 #[serde(tag = "kind", rename_all = "kebab-case")]
 pub enum WallFactor {
     None,
-    /// Method 2H default by construction: 0.9900 brick, 0.9950 other.
+    /// Method 2H default by construction: 0.9900 brick, 0.9950 other (Method 2H §2.2.2).
     Method2hDefault,
+    /// Method 2H calculational procedure: the factor is derived from the wall-effects traverse
+    /// readings of the runs that have them and applied to every run (Method 2H §2.3).
+    Method2hCalculated,
     Given {
         factor: f64,
     },
@@ -288,7 +361,14 @@ pub struct RunSpec {
     pub readings: String,
     pub form: ReadingsForm,
     pub started: Option<String>,
+    pub ended: Option<String>,
     pub leak_check: LeakCheck,
+    /// The crew voided the run (`void = "reason"`); it stays in the report, out of the average.
+    pub void: Option<String>,
+    /// Conditions this run gives in place of `[gas]`.
+    pub conditions: RunConditions,
+    /// Method 2H wall-effects traverse readings of this run (path relative to the survey).
+    pub wall_readings: Option<String>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Default)]
@@ -304,6 +384,8 @@ pub struct LayoutRequest {
     pub method: Method,
     pub lines: Option<usize>,
     pub points_per_line: Option<usize>,
+    /// Whether each port's line crosses the whole diameter or stops at the centre.
+    pub reach: crate::layout::Reach,
 }
 
 /// The flow a system was designed for, with the basis its unit names (`8000 acfm` is actual,
@@ -341,5 +423,25 @@ pub struct Survey {
     pub options: FlowOptions,
     pub signoff: Signoff,
     pub runs: Vec<RunSpec>,
+    /// Valid runs the test needs (`[survey] runs_required`; 3 for stack conventions, 1 for HVAC).
+    pub runs_required: usize,
     pub notes: Vec<String>,
+}
+
+/// Valid runs a test needs when the survey does not say: three for the stack conventions (the
+/// usual test of three runs, e.g. 40 CFR 60.8(f) for performance tests; common practice for flow
+/// tests), one for an HVAC traverse.
+pub fn default_runs_required(convention: ConventionId) -> usize {
+    if convention.is_hvac() {
+        1
+    } else {
+        3
+    }
+}
+
+impl Survey {
+    /// The gas of `run`: the survey's `[gas]` with the run's own conditions in place.
+    pub fn gas_for(&self, run: &RunSpec) -> Gas {
+        self.gas.for_run(&run.conditions)
+    }
 }

@@ -239,6 +239,8 @@ pub const UNITS: &[Unit] = &[
     u("ml", Dimension::Volume, 1e-6),
     u("mL", Dimension::Volume, 1e-6),
     u("ft3", Dimension::Volume, FT3_M3),
+    // dry cubic feet, as dry gas meters are read (a volume; "dry" names what is metered)
+    u("dcf", Dimension::Volume, FT3_M3),
     // angle
     u("deg", Dimension::Angle, 1.0),
     // area
@@ -1034,5 +1036,14 @@ mod tests {
             rows += 1;
         }
         assert!(rows >= 20, "only {rows} rows compared");
+    }
+
+    #[test]
+    fn a_value_that_overflows_in_conversion_is_refused() {
+        assert!(matches!(
+            parse_quantity("1e306 psi", Dimension::Pressure),
+            Err(UnitError::NotFinite { .. })
+        ));
+        assert!(parse_quantity("1e3 psi", Dimension::Pressure).is_ok());
     }
 }

@@ -631,3 +631,97 @@ fn help_shows_the_examples_and_they_run() {
         assert_eq!(annulus(&args).0, 0, "{example}");
     }
 }
+
+#[test]
+fn rata_levels_one_run_of_a_survey_and_the_calibration_embedded() {
+    // Two load levels in one file: each is a RATA of its own with its own result.
+    let v = json_of(&["rata", "tests/data/rata/levels.toml"], 0);
+    let levels = v["levels"].as_array().expect("one document per level");
+    assert_eq!(levels.len(), 2);
+    assert_eq!(levels[0]["level"], "low");
+    assert_eq!(levels[1]["level"], "high");
+    assert_eq!(levels[0]["used_runs"], 9);
+    assert_eq!(levels[1]["used_runs"], 9);
+    // the low level reads low by 0.02 m/s within cc; the high level reads low beyond it
+    assert_eq!(levels[0]["bias"]["monitor_reads"], "low");
+    assert_eq!(levels[0]["bias"]["passed"], true);
+    assert_eq!(levels[1]["bias"]["passed"], false);
+    assert!(levels[1]["bias"]["words"]
+        .as_str()
+        .unwrap()
+        .starts_with("the monitor reads LOW"));
+    // runs H1–H3 take one run each of the three-run survey (`path#run`): its value is that
+    // run's mean velocity as `compute` reports it, not the survey's average
+    let c = json_of(&["compute", "tests/data/rata/levels-survey/survey.toml"], 0);
+    for i in 0..3 {
+        let want = num(&c["runs"][i]["mean_velocity_m_s"]);
+        let got = num(&levels[1]["runs"][i]["reference_m_s"]);
+        assert!(
+            (got - want).abs() <= 1e-12 * want,
+            "run {i}: {got} vs {want}"
+        );
+        assert_eq!(
+            levels[1]["runs"][i]["reference_source"]["runs"],
+            serde_json::json!([format!("{}", i + 1)])
+        );
+    }
+    // one summary per level; each embeds the surveys it used and the calibration they took
+    // their probe coefficient from
+    let dir = tempfile::tempdir().expect("temp dir");
+    let pdf = dir.path().join("levels.pdf");
+    let (code, _, err) = annulus(&[
+        "rata",
+        "tests/data/rata/levels.toml",
+        "-o",
+        pdf.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(dir.path().join("levels-low.pdf").exists());
+    let high = std::fs::read(dir.path().join("levels-high.pdf")).expect("high-level PDF");
+    let files = annulus::report::embedded_files(&high).expect("attachments readable");
+    let names: Vec<&str> = files.iter().map(|f| f.name.as_str()).collect();
+    for want in [
+        "levels.toml",
+        "run-H1--survey.toml",
+        "run-H1--ts-0417.toml",
+        "run-H1--ts-0417.csv",
+    ] {
+        assert!(names.contains(&want), "{want} not in {names:?}");
+    }
+    let cal = files
+        .iter()
+        .find(|f| f.name == "run-H1--ts-0417.toml")
+        .unwrap();
+    assert_eq!(
+        cal.bytes,
+        std::fs::read(root().join("sample-data/calibration/ts-0417.toml")).unwrap()
+    );
+    // the same survey is embedded once although three runs use it
+    assert!(!names.contains(&"run-H2--survey.toml"), "{names:?}");
+    let text = pdf_text(&dir.path().join("levels-high.pdf"));
+    assert!(text.contains("reads LOW"), "{text}");
+}
+
+#[test]
+fn a_void_survey_run_cannot_be_a_reference_value() {
+    // run 2 of the fixture is void (failed post-run leak check): naming it is an input error
+    let dir = tempfile::tempdir().expect("temp dir");
+    let text = std::fs::read_to_string(root().join("tests/data/rata/passing.toml")).unwrap();
+    let text = text.replacen(
+        "reference = \"15.21 m/s\"",
+        &format!(
+            "survey = \"{}#2\"",
+            root().join("tests/data/runs/replaced.toml").display()
+        ),
+        1,
+    );
+    let file = dir.path().join("void.toml");
+    std::fs::write(&file, text).unwrap();
+    let (code, _, err) = annulus(&["rata", file.to_str().unwrap()]);
+    assert_eq!(code, 1, "{err}");
+    assert!(
+        err.contains("run `2` of the survey")
+            && err.contains("is void (post-run leak check failed)"),
+        "{err}"
+    );
+}

@@ -572,7 +572,7 @@ fn check_passes_the_samples_and_fails_the_bad_plane() {
     ] {
         assert!(out.contains(id), "bad-plane: no `{id}` finding");
     }
-    assert!(out.contains("RUN 2 IS INVALID AND EXCLUDED FROM THE AVERAGE"));
+    assert!(out.contains("RUN 2 IS VOID AND EXCLUDED FROM THE AVERAGE"));
     let (code, json, _) = annulus(&[
         "check",
         "sample-data/bad-plane/survey.toml",
@@ -897,4 +897,60 @@ fn layout_reads_inch_and_foot_marks() {
     assert_eq!(code, 0, "{err}");
     let (_, inches, _) = annulus(&["layout", "--round", "60in", "--format", "json"]);
     assert_eq!(feet, inches);
+}
+
+#[test]
+fn a_voided_and_replaced_run_completes_the_test_and_a_short_test_fails() {
+    // EPA Method 2 §8.1 via methods.md §4: a failed post-run leak check voids the run. With the
+    // run repeated the test has its three valid runs: `check` exits 0 (nothing else fails).
+    let (code, out, err) = annulus(&[
+        "check",
+        "tests/data/runs/replaced.toml",
+        "--all",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{out}{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let message = |checks: &serde_json::Value, id: &str| {
+        checks
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|c| c["id"] == id)
+            .map(|c| c["message"].as_str().unwrap().to_string())
+            .unwrap_or_default()
+    };
+    assert_eq!(
+        message(&v["checks"], "runs-complete"),
+        "3 valid runs of 3 required, void runs replaced (run 2 void: post-run leak check failed)"
+    );
+    assert_eq!(v["runs"][1]["valid"], false);
+    assert!(
+        message(&v["runs"][1]["checks"], "leak-check").contains("void and replaced"),
+        "{out}"
+    );
+    let (code, json, _) = annulus(&[
+        "compute",
+        "tests/data/runs/replaced.toml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    assert_eq!(v["runs"][1]["valid"], false);
+    assert_eq!(v["runs"][1]["void_reason"], "post-run leak check failed");
+    assert_eq!(v["runs"][0]["void_reason"], serde_json::Value::Null);
+    assert!(v["runs"][0]["moisture_fraction"].as_f64().unwrap() > 0.0);
+    assert_eq!(v["complete"], true);
+    assert_eq!(v["average"]["runs"], serde_json::json!(["1", "3", "4"]));
+    // without the repeat the test is short by one run: exit 3, and the finding says so
+    let (code, out, _) = annulus(&["check", "tests/data/runs/short.toml", "--format", "json"]);
+    assert_eq!(code, 3, "{out}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(
+        message(&v["checks"], "runs-complete"),
+        "the test is short: 2 valid runs of 3 required, 1 more valid run is needed \
+         (run 2 void: post-run leak check failed)"
+    );
 }

@@ -392,3 +392,197 @@ fn unit_system_of_the_input_does_not_change_the_result() {
         }
     }
 }
+
+/// A three-run EPA Method 2 test, English units, with a Method 4 train per run and per-run
+/// barometric pressure, static pressure and composition. The Δp and temperatures of every run are
+/// those of calculations.md §8 (EPA Method 2, English).
+const EPA_THREE_TRAINS: &str = r#"
+[survey]
+title = "Three runs, three Method 4 trains"
+date = "2026-10-14"
+convention = "epa-method-2"
+[duct]
+shape = "round"
+diameter = "5.0 ft"
+upstream = "8 D"
+downstream = "2 D"
+[layout]
+lines = 2
+points_per_line = 6
+[probe]
+kind = "s-type"
+coefficient = 0.84
+[gas]
+barometric = "29.50 inHg"
+static = "-0.50 inH2O"
+o2 = "8 %"
+co2 = "10 %"
+co = "0 %"
+
+[[run]]
+id = "1"
+readings = "run1.csv"
+leak_check = { before = "pass", after = "pass" }
+[run.method4]
+impinger_gain = "152.3 g"
+silica_gain = "18.7 g"
+meter_volume = "34.215 dcf"
+meter_y = 0.987
+meter_dh = "1.85 inH2O"
+meter_temperature = "84 F"
+
+[[run]]
+id = "2"
+readings = "run2.csv"
+barometric = "29.46 inHg"
+leak_check = { before = "pass", after = "pass" }
+[run.method4]
+impinger_gain = "140.0 mL"
+silica_gain = "15.2 g"
+meter_volume = "33.870 ft3"
+meter_y = 0.987
+meter_dh = "1.80 inH2O"
+meter_temperature = "88 F"
+
+[[run]]
+id = "3"
+readings = "run3.csv"
+barometric = "29.48 inHg"
+static = "-0.55 inH2O"
+o2 = "7.6 %"
+co2 = "10.4 %"
+leak_check = { before = "pass", after = "pass" }
+[run.method4]
+impinger_gain = "161.5 g"
+silica_gain = "20.1 g"
+meter_volume = "35.012 dcf"
+meter_y = 0.987
+meter_dh = "1.90 inH2O"
+meter_temperature = "90 F"
+"#;
+
+fn epa_section_8_csv() -> String {
+    rows(
+        &[
+            ("A", &[0.50, 0.55, 0.60, 0.62, 0.58, 0.52]),
+            ("B", &[0.48, 0.54, 0.61, 0.63, 0.57, 0.51]),
+        ],
+        "inH2O",
+        Some((
+            &[
+                300., 302., 305., 306., 304., 301., 299., 303., 305., 307., 304., 300.,
+            ],
+            "F",
+        )),
+    )
+}
+
+#[test]
+fn per_run_method4_three_run_test() {
+    let csv = epa_section_8_csv();
+    let e = eval(
+        EPA_THREE_TRAINS,
+        &[("run1.csv", &csv), ("run2.csv", &csv), ("run3.csv", &csv)],
+    );
+    // Expected values: tests/reference/method4_runs.py, an independent implementation of EPA
+    // Method 4 eqs. 4-1 to 4-4 (0.04706, 0.04715, 17.64, +460, Pbar + ΔH/13.6), Method 3 Md and
+    // Method 2 eqs. 2-6 to 2-10 with their printed constants.
+    // (run, Vm(std) dscf, Bws, Ms, Ps inHg, vs ft/s, Qsd dscfm)
+    let want = [
+        (
+            "1", 32.452891, 0.1987303, 27.551134, 29.463235, 52.013228, 33458.147,
+        ),
+        (
+            "2", 31.844165, 0.1865957, 27.695780, 29.423235, 51.912478, 33853.034,
+        ),
+        (
+            "3", 32.828475, 0.2065890, 27.495543, 29.439559, 52.086715, 33150.144,
+        ),
+    ];
+    for (r, (id, vm_std, bws, ms, ps, vs, qsd)) in e.runs.iter().zip(want) {
+        assert_eq!(r.id, id);
+        let m4 = r.gas.method4.as_ref().expect("a Method 4 train");
+        // Method 4 eq. 4-3 (English): Vm(std) = 17.64·Y·Vm·(Pbar + ΔH/13.6)/(Tm + 460)
+        close(m4.vm_std, vm_std, REL_TOL_EPA);
+        // Method 4 eq. 4-4
+        close(r.gas.bws, bws, REL_TOL_EPA);
+        let f = r.epa.as_ref().unwrap();
+        // Method 2 eq. 2-5 / 2-6 with the run's own Pbar, Pg and composition
+        close(f.ms, ms, REL_TOL_EPA);
+        close(f.ps, ps, REL_TOL_EPA);
+        // Method 2 eq. 2-7 (vs) and eq. 2-8 (Qsd), per run
+        close(f.vs, vs, REL_TOL_EPA);
+        close(r.dry_standard_flow_m3_s * 60.0 / FT3_M3, qsd, REL_TOL_EPA);
+    }
+    // the average of the three runs' dscfm
+    let avg = e.average.as_ref().unwrap();
+    let mean_dscfm = (33458.147 + 33853.034 + 33150.144) / 3.0;
+    close(
+        avg.dry_standard_flow_m3_s * 60.0 / FT3_M3,
+        mean_dscfm,
+        REL_TOL_EPA,
+    );
+}
+
+#[test]
+fn method4_metric_form_in_a_metric_survey() {
+    // EPA Method 2 reduced in metric units with a Method 4 train given in grams and litres: the
+    // train uses the metric constants (0.001333 m³/mL, 0.001335 m³/g, 0.3855 K/mmHg, °C + 273),
+    // never the English ones. Derived by hand:
+    //   Vwc = 0.001333·118.4 = 0.1578272 m³; Vwsg = 0.001335·12.6 = 0.016821 m³
+    //   Pm = 748.0 + 38/13.6 = 750.794118 mmHg; Tm = 26 + 273 = 299 K
+    //   Vm(std) = 0.3855·1.012·0.905·750.794118/299 = 0.8865498 dscm
+    //   Bws = 0.1746482/(0.1746482 + 0.8865498) = 0.1645764
+    let survey = r#"
+[survey]
+title = "metric train"
+date = "2026-09-22"
+convention = "epa-method-2"
+runs_required = 1
+[duct]
+shape = "round"
+diameter = "1.5 m"
+upstream = "8 D"
+downstream = "2 D"
+[layout]
+lines = 2
+points_per_line = 6
+[flow]
+epa_units = "metric"
+[probe]
+kind = "s-type"
+coefficient = 0.84
+[gas]
+barometric = "748 mmHg"
+static = "-25 mmH2O"
+dry_molar_mass = 30.16
+temperature = "150 C"
+[gas.method4]
+impinger_gain = "118.4 g"
+silica_gain = "12.6 g"
+meter_volume = "905 L"
+meter_y = 1.012
+meter_dh = "38 mmH2O"
+meter_temperature = "26 C"
+[[run]]
+id = "1"
+readings = "run1.csv"
+leak_check = { before = "pass", after = "pass" }
+"#;
+    let csv = rows(
+        &[
+            ("A", &[12.0, 14.0, 15.0, 16.0, 15.5, 13.0]),
+            ("B", &[11.5, 13.5, 15.0, 16.5, 14.5, 12.5]),
+        ],
+        "mmH2O",
+        None,
+    );
+    let e = eval(survey, &[("run1.csv", &csv)]);
+    let m4 = e.runs[0].gas.method4.as_ref().unwrap();
+    close(m4.meter_temperature_abs, 299.0, REL_TOL_EPA);
+    close(m4.meter_pressure, 750.794118, REL_TOL_EPA);
+    close(m4.vwc_std, 0.1578272, REL_TOL_EPA);
+    close(m4.vwsg_std, 0.016821, REL_TOL_EPA);
+    close(m4.vm_std, 0.8865498, REL_TOL_EPA);
+    close(e.runs[0].gas.bws, 0.1645764, REL_TOL_EPA);
+}

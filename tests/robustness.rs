@@ -311,7 +311,8 @@ proptest! {
 #[test]
 fn extreme_but_valid_numbers_succeed_and_stay_finite() {
     let csv = sample_text("stack/run1.csv");
-    for v in ["0.000001", "1e-6", "99.9", "1000"] {
+    // the largest: just inside the ±25 kPa (±100 inH2O) plausibility range of a pitot reading
+    for v in ["0.000001", "1e-6", "99.9", "100.3"] {
         let mut lines: Vec<String> = csv.lines().map(str::to_string).collect();
         for l in lines.iter_mut().skip(1) {
             let mut f: Vec<&str> = l.split(',').collect();
@@ -321,5 +322,18 @@ fn extreme_but_valid_numbers_succeed_and_stay_finite() {
         let mut runs = sample_runs();
         runs[0] = (lines.join("\n") + "\n").into_bytes();
         assert_success(outcome(&sample("stack/survey.toml"), &runs));
+    }
+    // beyond the range, a finite reading is an input error that names the range, not a result
+    let mut lines: Vec<String> = csv.lines().map(str::to_string).collect();
+    for l in lines.iter_mut().skip(1) {
+        let mut f: Vec<&str> = l.split(',').collect();
+        f[2] = "1000";
+        *l = f.join(",");
+    }
+    let mut runs = sample_runs();
+    runs[0] = (lines.join("\n") + "\n").into_bytes();
+    match outcome(&sample("stack/survey.toml"), &runs) {
+        Outcome::Rejected(d) => assert!(d.to_string().contains("25000 Pa"), "{d}"),
+        Outcome::Success(_) => panic!("1000 inH2O must be refused as out of range"),
     }
 }

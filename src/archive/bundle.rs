@@ -52,6 +52,14 @@ pub fn pack(loaded: &Loaded, results_json: Vec<u8>, program: &str) -> Bundle {
             src.bytes.clone(),
         ));
     }
+    for (spec, wall) in s.runs.iter().zip(&loaded.wall_readings) {
+        let Some((src, _)) = wall else { continue };
+        let mut name = file_name(&src.name);
+        if files.iter().any(|(n, _, _, _)| *n == name) {
+            name = format!("run{}-{name}", spec.id);
+        }
+        files.push((name, src.name.clone(), "wall-readings", src.bytes.clone()));
+    }
     if let (Some((cal, cal_readings)), Some(pc)) = (&loaded.calibration, &s.probe.calibration) {
         // paths relative to the survey's folder, so the files can be laid out again from the PDF
         let dir = loaded
@@ -127,6 +135,10 @@ impl Bundle {
             let (mime, what) = match *role {
                 "survey" => ("application/toml", format!("survey file `{path}` as read")),
                 "readings" => ("text/csv", format!("readings `{path}` as read")),
+                "wall-readings" => (
+                    "text/csv",
+                    format!("Method 2H wall-effects readings `{path}` as read"),
+                ),
                 "calibration" => (
                     "application/toml",
                     format!("pitot calibration `{path}` as read"),

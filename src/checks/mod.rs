@@ -23,6 +23,7 @@ pub mod flow_quality;
 pub mod instruments;
 pub mod integrity;
 pub mod plane;
+pub mod plausibility;
 pub mod records;
 pub mod runs;
 
@@ -256,6 +257,11 @@ pub static REGISTRY: &[&CheckDef] = &[
     &plane::DUCT_SIZE,
     &plane::METHOD_2H_SIZE,
     &plane::POINT_COUNT,
+    &plausibility::GEOMETRY_RANGE_STACK,
+    &plausibility::GEOMETRY_RANGE_HVAC,
+    &plausibility::PROBE_REACH,
+    &plausibility::METHOD_2H_DEFAULT_POINTS,
+    &plausibility::METHOD_2H_WALL_TRAVERSE,
     &plane::WALL_DISTANCE_EPA,
     &plane::WALL_DISTANCE_EN15259,
     &flow_quality::CYCLONIC_FLOW,
@@ -271,12 +277,18 @@ pub static REGISTRY: &[&CheckDef] = &[
     &flow_quality::LINE_ASYMMETRY,
     &flow_quality::OFF_CENTRE_PEAK,
     &runs::LEAK_CHECK,
+    &runs::RUNS_COMPLETE,
+    &plausibility::GAS_COMPOSITION,
+    &plausibility::MOISTURE_SATURATION,
+    &plausibility::METHOD4_SAMPLE_VOLUME,
     &runs::STACK_TEMPERATURE_RANGE,
     &runs::AIR_TEMPERATURE_RANGE,
     &runs::RUN_AGREEMENT,
     &runs::STEADY_FLOW_METHOD_1A,
     &records::PROBE_CALIBRATION,
     &records::INSTRUMENT_CALIBRATION,
+    &plausibility::POINT_OUTLIER,
+    &plausibility::DP_RESOLUTION,
     &integrity::IDENTICAL_SEQUENCES,
     &integrity::REPEATED_VALUES,
     &integrity::RECORDED_RESOLUTION,
@@ -564,8 +576,10 @@ pub struct RunView<'a> {
     pub readings: &'a RunReadings,
     /// The unit the Δp column was recorded in (from the readings file header), if known.
     pub dp_unit: Option<&'static Unit>,
-    /// Counts toward the average (`pipeline::run_is_valid`).
+    /// Counts toward the average (`pipeline::run_validity`).
     pub valid: bool,
+    /// Why the run is void, when it is.
+    pub void_reason: Option<&'a str>,
 }
 
 /// Everything the checks judge.
@@ -579,12 +593,26 @@ pub struct Subject<'a> {
     pub average: Option<&'a Average>,
     pub instruments: &'a Instruments,
     pub reported: &'a [ReportedValue],
+    /// Valid runs the test needs (`[survey] runs_required`).
+    pub runs_required: usize,
+    /// The Method 2H calculational procedure per run that has a wall-effects traverse.
+    pub wall_effects: &'a [(String, crate::flow::WallEffects)],
 }
 
 impl Subject<'_> {
     /// The job's display table: findings print in its units (JSON messages too).
     pub fn table(&self) -> DisplayTable {
         self.convention.display_table()
+    }
+
+    /// Runs that count toward the average.
+    pub fn valid_runs(&self) -> usize {
+        self.runs.iter().filter(|r| r.valid).count()
+    }
+
+    /// The valid runs reach `runs_required`.
+    pub fn complete(&self) -> bool {
+        self.valid_runs() >= self.runs_required
     }
 }
 
@@ -1033,5 +1061,24 @@ mod tests {
             "12 in"
         );
         assert_eq!(limit(12.0, LimitKind::Months), "12 months");
+    }
+
+    #[test]
+    fn the_readme_documents_every_check_and_its_limit_keys() {
+        let readme = include_str!("../../README.md");
+        for def in REGISTRY {
+            let row = readme
+                .lines()
+                .find(|l| l.starts_with(&format!("| `{}` |", def.id)))
+                .unwrap_or_else(|| panic!("README has no row for `{}`", def.id));
+            for l in def.limits {
+                assert!(
+                    row.contains(&format!("`{}`", l.key)),
+                    "{}: {}",
+                    def.id,
+                    l.key
+                );
+            }
+        }
     }
 }

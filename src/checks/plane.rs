@@ -449,6 +449,7 @@ fn method_2h_size(rule: &Rule, s: &Subject) -> Vec<Finding> {
             return vec![rule.not_applicable("no Method 2H wall-effects factor is applied")]
         }
         WallFactor::Method2hDefault => false,
+        WallFactor::Method2hCalculated => true,
         WallFactor::Given { factor } if factor >= 1.0 => {
             return vec![rule.not_applicable("the wall factor given is 1.0: no adjustment")]
         }

@@ -50,6 +50,19 @@ pub static LEAK_CHECK: CheckDef = CheckDef {
     judge: Judge::Run(leak_check),
 };
 
+pub static RUNS_COMPLETE: CheckDef = CheckDef {
+    id: "runs-complete",
+    group: Group::Run,
+    description: "the test has as many valid runs as it needs; void runs are reported and left out",
+    source: "the survey's runs_required (default 3 runs for a stack test, as 40 CFR 60.8(f) asks of performance tests; 1 for an HVAC traverse)",
+    criterion: "valid runs ≥ runs_required",
+    limits: &[],
+    conventions: ALL,
+    from_memory: false,
+    on_violation: Status::Fail,
+    judge: Judge::Survey(runs_complete),
+};
+
 pub static STACK_TEMPERATURE_RANGE: CheckDef = CheckDef {
     id: "stack-temperature-range",
     group: Group::Run,
@@ -166,34 +179,134 @@ fn leak_check(rule: &Rule, s: &Subject, run: &RunView) -> Finding {
         leak_name(lc.before),
         leak_name(lc.after)
     );
+    let leak_void = match (lc.before, lc.after) {
+        (_, Some(LeakResult::Fail)) => Some("the post-run leak check failed"),
+        (_, None) if !s.survey.convention.is_hvac() => {
+            Some("the post-run leak check is not recorded")
+        }
+        (Some(LeakResult::Fail), _) => Some("the pre-run leak check failed"),
+        _ => None,
+    };
     if !run.valid {
-        let why = match (lc.before, lc.after) {
-            (_, Some(LeakResult::Fail)) => "the post-run leak check failed",
-            (_, None) => "the post-run leak check is not recorded",
-            (Some(LeakResult::Fail), _) => "the pre-run leak check failed",
-            _ => "its leak checks do not show a tight pitot line",
-        };
-        return rule.finding(
-            rule.violated(),
-            None,
-            "",
-            text!(
-                "RUN {} IS INVALID AND EXCLUDED FROM THE AVERAGE: {} ({}); a failed or missing post-run leak check voids the run",
-                run.spec.id.clone(),
-                why,
-                state
-            ),
-            &[],
-        );
+        if let Some(why) = leak_void {
+            let tally = text!(
+                "{} valid run{} of {} required",
+                s.valid_runs(),
+                if s.valid_runs() == 1 { "" } else { "s" },
+                s.runs_required
+            );
+            return if s.complete() {
+                rule.finding(
+                    Status::Warn,
+                    None,
+                    "",
+                    text!(
+                        "run {} is void and replaced: {} ({}); it is reported but left out of the average, and the test is complete with {}",
+                        run.spec.id.clone(),
+                        why,
+                        state,
+                        tally
+                    ),
+                    &[],
+                )
+            } else {
+                rule.finding(
+                    rule.violated(),
+                    None,
+                    "",
+                    text!(
+                        "RUN {} IS VOID AND EXCLUDED FROM THE AVERAGE: {} ({}); a failed or missing post-run leak check voids the run, and the test has only {}",
+                        run.spec.id.clone(),
+                        why,
+                        state,
+                        tally
+                    ),
+                    &[],
+                )
+            };
+        }
     }
+    let voided = run
+        .void_reason
+        .filter(|_| !run.valid)
+        .map(|r| format!(" (run voided by the crew: {r})"))
+        .unwrap_or_default();
     let (status, msg) = match (lc.before, lc.after) {
-        (Some(LeakResult::Pass), Some(LeakResult::Pass)) => (Status::Pass, state),
+        (Some(LeakResult::Pass), Some(LeakResult::Pass)) => {
+            (Status::Pass, text!("{}{}", state, voided))
+        }
         _ => (
             Status::Warn,
-            text!("{}: the run counts, but the record is incomplete", state),
+            text!(
+                "{}: the run counts, but the record is incomplete{}",
+                state,
+                voided
+            ),
         ),
     };
     rule.finding(status, None, "", msg, &[])
+}
+
+fn runs_complete(rule: &Rule, s: &Subject) -> Vec<Finding> {
+    let valid = s.valid_runs();
+    let required = s.runs_required;
+    let void: Vec<Text> = s
+        .runs
+        .iter()
+        .filter(|r| !r.valid)
+        .map(|r| {
+            text!(
+                "run {} void: {}",
+                r.spec.id.clone(),
+                r.void_reason.unwrap_or("does not count").to_string()
+            )
+        })
+        .collect();
+    let voids = if void.is_empty() {
+        Text::new()
+    } else {
+        text!(" ({})", Text::join(void.clone(), "; "))
+    };
+    let plural = |n: usize| if n == 1 { "" } else { "s" };
+    let f = if valid >= required {
+        let replaced = if void.is_empty() {
+            ""
+        } else {
+            ", void runs replaced"
+        };
+        rule.finding(
+            Status::Pass,
+            Some(valid as f64),
+            "1",
+            text!(
+                "{} valid run{} of {} required{}{}",
+                valid,
+                plural(valid),
+                required,
+                replaced,
+                voids
+            ),
+            &[],
+        )
+    } else {
+        let missing = required - valid;
+        rule.finding(
+            rule.violated(),
+            Some(valid as f64),
+            "1",
+            text!(
+                "the test is short: {} valid run{} of {} required, {} more valid run{} needed{}",
+                valid,
+                plural(valid),
+                required,
+                missing,
+                if missing == 1 { " is" } else { "s are" },
+                voids
+            ),
+            &[],
+        )
+    };
+    vec![f]
 }
 
 fn temperature_range(rule: &Rule, _s: &Subject, run: &RunView) -> Finding {
@@ -356,8 +469,9 @@ mod tests {
 
     #[test]
     fn failed_or_missing_post_run_leak_check_excludes_the_run() {
-        // methods.md §4 [P secondary]: a failed post-test leak check voids the run
-        let mut s = EPA_SURVEY.to_string();
+        // methods.md §4 [P secondary]: a failed post-test leak check voids the run. A test of
+        // three runs with two voided is short: the void runs fail.
+        let mut s = with_runs_required(EPA_SURVEY, 3);
         s += &run_block("1", Some("pass"), Some("pass"));
         s += &run_block("2", Some("pass"), Some("fail"));
         s += &run_block("3", Some("pass"), None);
@@ -376,7 +490,7 @@ mod tests {
         assert_eq!(f.status, Status::Fail);
         assert!(
             f.message.to_string().starts_with(
-                "RUN 2 IS INVALID AND EXCLUDED FROM THE AVERAGE: the post-run leak check failed"
+                "RUN 2 IS VOID AND EXCLUDED FROM THE AVERAGE: the post-run leak check failed"
             ),
             "{}",
             f.message
@@ -399,6 +513,117 @@ mod tests {
         assert_eq!(a.average.as_ref().unwrap().runs, vec!["1", "4"]);
         // runs 1 and 4 are the same data: run agreement is perfect although run 2 differs
         assert_eq!(survey_finding(&a, "run-agreement").measured, Some(0.0));
+    }
+
+    #[test]
+    fn a_voided_and_replaced_run_completes_the_test() {
+        // Run 2's post-run leak check failed (Method 2 §8.1: the run is void); run 4 repeats it.
+        // Three valid runs of three required: the test is complete and does not fail.
+        let mut s = with_runs_required(EPA_SURVEY, 3);
+        s += &run_block("1", Some("pass"), Some("pass"));
+        s += &run_block("2", Some("pass"), Some("fail"));
+        s += &run_block("3", Some("pass"), Some("pass"));
+        s += &run_block("4", Some("pass"), Some("pass"));
+        let files = [
+            ("run1.csv", epa_csv()),
+            ("run2.csv", scaled(1.21)),
+            ("run3.csv", epa_csv()),
+            ("run4.csv", epa_csv()),
+        ];
+        let e = eval(&s, &files);
+        assert_eq!(e.average.as_ref().unwrap().runs, vec!["1", "3", "4"]);
+        assert!(e.complete());
+        assert_eq!(
+            e.validity[1].void_reason.as_deref(),
+            Some("post-run leak check failed")
+        );
+        let a = assess_text(&s, &files);
+        let f = run_finding(&a, 1, "leak-check");
+        assert_eq!(f.status, Status::Warn);
+        assert!(
+            f.message.to_string().contains("void and replaced"),
+            "{}",
+            f.message
+        );
+        let f = survey_finding(&a, "runs-complete");
+        assert_eq!(f.status, Status::Pass);
+        assert_eq!(f.measured, Some(3.0));
+        assert!(
+            f.message
+                .to_string()
+                .contains("3 valid runs of 3 required, void runs replaced (run 2 void: post-run leak check failed)"),
+            "{}",
+            f.message
+        );
+        assert!(
+            !a.failed(),
+            "{:?}",
+            a.findings()
+                .filter(|f| f.status == Status::Fail)
+                .collect::<Vec<_>>()
+        );
+    }
+
+    #[test]
+    fn a_short_test_fails_saying_how_many_runs_are_missing() {
+        let mut s = with_runs_required(EPA_SURVEY, 3);
+        s += &run_block("1", Some("pass"), Some("pass"));
+        s += &run_block("2", Some("pass"), Some("fail"));
+        s += &run_block("3", Some("pass"), Some("pass"));
+        let files = [
+            ("run1.csv", epa_csv()),
+            ("run2.csv", epa_csv()),
+            ("run3.csv", epa_csv()),
+        ];
+        let a = assess_text(&s, &files);
+        let f = survey_finding(&a, "runs-complete");
+        assert_eq!(f.status, Status::Fail);
+        assert!(
+            f.message.to_string().starts_with(
+                "the test is short: 2 valid runs of 3 required, 1 more valid run is needed"
+            ),
+            "{}",
+            f.message
+        );
+        assert!(a.failed());
+    }
+
+    #[test]
+    fn the_crew_can_void_a_run_with_a_reason() {
+        let mut s = with_runs_required(EPA_SURVEY, 2);
+        s += &run_block("1", Some("pass"), Some("pass"));
+        s += &run_block("2", Some("pass"), Some("pass"));
+        s += "void = \"probe struck the far wall at B5\"\n";
+        s += &run_block("3", Some("pass"), Some("pass"));
+        let files = [
+            ("run1.csv", epa_csv()),
+            ("run2.csv", scaled(2.0)),
+            ("run3.csv", epa_csv()),
+        ];
+        let e = eval(&s, &files);
+        assert_eq!(e.average.as_ref().unwrap().runs, vec!["1", "3"]);
+        assert_eq!(
+            e.validity[1].void_reason.as_deref(),
+            Some("probe struck the far wall at B5")
+        );
+        let a = assess_text(&s, &files);
+        assert_eq!(survey_finding(&a, "runs-complete").status, Status::Pass);
+        let f = run_finding(&a, 1, "leak-check");
+        assert_eq!(f.status, Status::Pass);
+        assert!(
+            f.message.to_string().contains("voided by the crew"),
+            "{}",
+            f.message
+        );
+        // an HVAC traverse needs one run by default
+        assert_eq!(
+            crate::survey::default_runs_required(crate::survey::ConventionId::HvacIp),
+            1
+        );
+        assert_eq!(
+            crate::survey::default_runs_required(crate::survey::ConventionId::Iso16911),
+            3
+        );
     }
 
     #[test]

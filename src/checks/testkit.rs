@@ -10,13 +10,15 @@ use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
 /// An EPA Method 2 stack, 5 ft, 2 lines × 6 points, at a preferred site (8 D / 2 D). The gas and
-/// Δp of calculations.md §8 (EPA Method 2, English).
+/// Δp of calculations.md §8 (EPA Method 2, English). The fixtures are single traverses
+/// (`runs_required = 1`) unless a test asks for a test of several runs ([`with_runs_required`]).
 pub const EPA_SURVEY: &str = r#"
 [survey]
 title = "check test stack"
 site = "Fenmoor test works (fictional)"
 date = "2026-10-14"
 convention = "epa-method-2"
+runs_required = 1
 [duct]
 shape = "round"
 diameter = "5.0 ft"
@@ -45,6 +47,7 @@ pub const ISO_SURVEY: &str = r#"
 title = "check test EN stack"
 date = "2026-10-14"
 convention = "iso-16911"
+runs_required = 1
 [duct]
 shape = "round"
 diameter = "2.4 m"
@@ -90,6 +93,11 @@ temperature = "85 F"
 [flow]
 negative = "zero"
 "#;
+
+/// `base` asking for `n` valid runs.
+pub fn with_runs_required(base: &str, n: usize) -> String {
+    base.replace("runs_required = 1", &format!("runs_required = {n}"))
+}
 
 /// calculations.md §8 EPA Method 2 English Δp, inH2O, lines A and B.
 pub const EPA_DP_A: [f64; 6] = [0.50, 0.55, 0.60, 0.62, 0.58, 0.52];

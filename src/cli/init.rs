@@ -114,7 +114,9 @@ static = ""                      # duct static (gauge), e.g. "{static_p}"
         cp = if stack { "0.84" } else { "0.99" },
     );
     if stack {
-        t += "o2 = \"\"                         # dry basis; N2 is the balance\nco2 = \"\"\nco = \"0 %\"\nmoisture = \"\"                   # water vapour by volume, e.g. \"9.8 %\"\n";
+        t += "o2 = \"\"                         # dry basis; N2 is the balance\nco2 = \"\"\nco = \"0 %\"\n\
+              # moisture = \"\"                 # water vapour by volume (e.g. \"9.8 %\") in place of the\n\
+              #                                 Method 4 trains below (then delete the [run.method4] blocks)\n";
     } else {
         t += "rh = \"\"                         # or wet_bulb / dew_point; remove for dry air\n";
     }
@@ -125,9 +127,28 @@ static = ""                      # duct static (gauge), e.g. "{static_p}"
         );
         if stack {
             t += "leak_check = { before = \"\", after = \"\" }   # pass | fail\n";
+            t += &method4_block(&s.table);
         }
     }
     t
+}
+
+/// A run's EPA Method 4 train to fill in, its examples in the job's units.
+fn method4_block(t: &crate::display::DisplayTable) -> String {
+    use crate::gas::method4::M3_PER_FT3;
+    use crate::units::PA_PER_INH2O;
+    let volume = t.get(Kind::GasVolume).input(34.215 * M3_PER_FT3);
+    let dh = t.get(Kind::OrificePressure).input(1.85 * PA_PER_INH2O);
+    let temp = t.get(Kind::Temperature).input((84.0 + 459.67) / 1.8);
+    format!(
+        "[run.method4]                   # this run's moisture train (EPA Method 4)\n\
+         impinger_gain = \"\"               # Vf − Vi: weighed (\"152.3 g\") or read (\"152 mL\")\n\
+         silica_gain = \"\"                 # Wf − Wi, e.g. \"18.7 g\"\n\
+         meter_volume = \"\"                # as read, e.g. \"{volume}\"\n\
+         meter_y = 1.000                  # the meter's calibration factor Y\n\
+         meter_dh = \"\"                    # orifice ΔH, e.g. \"{dh}\" (or meter_pressure, absolute)\n\
+         meter_temperature = \"\"           # average meter temperature, e.g. \"{temp}\"\n"
+    )
 }
 
 /// The blank readings sheet: one row per point, in layout order.

@@ -47,6 +47,10 @@ pub struct PlaneArgs {
     /// Rounding of insertion marks: `1/8in`, `1mm`, `none` (default by the units shown).
     #[arg(long, value_name = "STEP")]
     pub mark_step: Option<String>,
+    /// Round stacks: `radius` traverses each port's line only to the centre (large stacks, ports
+    /// round the stack, e.g. `--lines 4 --reach radius`); `diameter` crosses the stack.
+    #[arg(long, value_parser = ["diameter", "radius"])]
+    pub reach: Option<String>,
     #[command(flatten)]
     pub units: UnitsArgs,
 }
@@ -208,6 +212,11 @@ impl PlaneArgs {
             method,
             lines,
             points_per_line,
+            reach: match self.reach.as_deref() {
+                Some("radius") => crate::layout::Reach::Radius,
+                Some(_) => crate::layout::Reach::Diameter,
+                None => base.map(|s| s.layout.reach).unwrap_or_default(),
+            },
         };
         let upstream_d = match &self.upstream {
             Some(raw) => distance(&mut d, "upstream", raw, duct.as_ref()),

@@ -9,7 +9,7 @@ use super::output::{csv_text, json_text, status, Ctx, Format, Table};
 use crate::diag::Error;
 use crate::display::fixed;
 use crate::input::rata_file::load;
-use crate::pipeline::rata::{evaluate, RataEvaluation, ReferenceSource};
+use crate::pipeline::rata::{evaluate_levels, RataEvaluation, ReferenceSource};
 use crate::rata::{LowVelocity, RataGrade, RataLimits, RataQuantity};
 use crate::report::rata::{
     attachments, bias_text, frequency, grade_word, low_velocity_text, monitor_text, quantity_text,
@@ -17,6 +17,7 @@ use crate::report::rata::{
 };
 use crate::report::Engine;
 use crate::units::convert_out;
+use crate::write::Destination;
 use clap::Args;
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -38,36 +39,112 @@ pub struct RataArgs {
 }
 
 pub fn run(args: RataArgs, ctx: &Ctx) -> Result<i32, Error> {
-    let r = evaluate(load(&args.file)?)?;
-    let text = match args.format {
-        Format::Json => json_text(&json_doc(&r)),
-        Format::Csv => runs_csv(&r),
-        Format::Table => table(&r, ctx),
+    let levels = evaluate_levels(load(&args.file)?)?;
+    let text = match (args.format, levels.as_slice()) {
+        (Format::Json, [one]) => json_text(&json_doc(one)),
+        (Format::Json, _) => json_text(&LevelsJson {
+            levels: levels.iter().map(json_doc).collect(),
+        }),
+        (Format::Csv, [one]) => runs_csv(one),
+        (Format::Csv, _) => levels
+            .iter()
+            .map(|r| {
+                format!(
+                    "# level: {}\n{}",
+                    r.spec.meta.level.as_deref().unwrap_or(""),
+                    runs_csv(r)
+                )
+            })
+            .collect(),
+        (Format::Table, _) => levels
+            .iter()
+            .map(|r| table(r, ctx))
+            .collect::<Vec<_>>()
+            .join("\n"),
     };
     // never written over: the files this command read
-    let protect: Vec<PathBuf> = std::iter::once(r.file.path.clone())
-        .chain(r.survey_files.iter().map(|(_, f)| f.path.clone()))
+    let protect: Vec<PathBuf> = levels
+        .iter()
+        .flat_map(|r| {
+            std::iter::once(r.file.path.clone())
+                .chain(r.survey_files.iter().map(|(_, f)| f.path.clone()))
+        })
         .collect();
     // results first, then the PDF (the write checks the output rules)
     let out = args
         .output
         .as_deref()
         .map(|o| super::files::named(o, &args.file));
+    if levels.len() > 1 && out.as_ref().is_some_and(|d| d.is_stdout()) {
+        return Err(Error::input(
+            crate::diag::Diagnostic::new(format!(
+                "this RATA has {} load levels, so one summary per level, and `-o -` carries only one",
+                levels.len()
+            ))
+            .hint("give a file name (each level's summary gets the level's name added) or a folder"),
+        ));
+    }
     // the PDF on standard output is the whole output
     if !out.as_ref().is_some_and(|d| d.is_stdout()) {
         super::emit(&text)?;
     }
     if let Some(out) = &out {
-        write_summary(&r, out, &protect)?;
-        if !ctx.quiet {
-            eprintln!("wrote RATA summary {out}");
+        for r in &levels {
+            let dest = match out {
+                Destination::File(path) => Destination::File(level_path(path, &levels, r)),
+                Destination::Stdout => Destination::Stdout,
+            };
+            write_summary(r, &dest, &protect)?;
+            if !ctx.quiet {
+                eprintln!("wrote RATA summary {dest}");
+            }
         }
     }
-    Ok(if r.result.grade() == RataGrade::Fail {
-        3
-    } else {
-        0
-    })
+    Ok(
+        if levels.iter().any(|r| r.result.grade() == RataGrade::Fail) {
+            3
+        } else {
+            0
+        },
+    )
+}
+
+/// A RATA at several operating levels, as JSON: one RATA document per level.
+#[derive(Serialize)]
+struct LevelsJson<'a> {
+    levels: Vec<RataJson<'a>>,
+}
+
+/// Where a level's summary goes: `out` for a RATA at one level, `out` with the level's name
+/// before the extension for several (`unit2-rata-low.pdf`).
+fn level_path(out: &std::path::Path, levels: &[RataEvaluation], r: &RataEvaluation) -> PathBuf {
+    if levels.len() <= 1 {
+        return out.to_path_buf();
+    }
+    let slug: String = r
+        .spec
+        .meta
+        .level
+        .as_deref()
+        .unwrap_or("level")
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
+        .collect();
+    let stem = out
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "rata".into());
+    let ext = out
+        .extension()
+        .map(|e| e.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "pdf".into());
+    out.with_file_name(format!("{stem}-{}.{ext}", slug.trim_matches('-')))
 }
 
 fn table(r: &RataEvaluation, ctx: &Ctx) -> String {
@@ -288,6 +365,10 @@ enum LowVelocityJson {
 struct BiasJson {
     passed: bool,
     adjustment_factor: f64,
+    /// `low`, `high` or `none`: which way the monitor reads on average.
+    monitor_reads: &'static str,
+    /// The bias result in words, in the RATA's display unit.
+    words: String,
 }
 
 fn json_doc(r: &RataEvaluation) -> RataJson<'_> {
@@ -335,7 +416,9 @@ fn json_doc(r: &RataEvaluation) -> RataJson<'_> {
                 period: spec.period.as_deref(),
                 reference_source: match src {
                     ReferenceSource::Entered { raw } => SourceJson::Entered { entered: raw },
-                    ReferenceSource::Survey { path, title, runs } => SourceJson::Survey {
+                    ReferenceSource::Survey {
+                        path, title, runs, ..
+                    } => SourceJson::Survey {
                         survey: path,
                         title,
                         runs,
@@ -371,6 +454,15 @@ fn json_doc(r: &RataEvaluation) -> RataJson<'_> {
         bias: BiasJson {
             passed: res.bias.passed,
             adjustment_factor: res.bias.adjustment_factor,
+            monitor_reads: match res.bias_direction() {
+                crate::rata::BiasDirection::Low => "low",
+                crate::rata::BiasDirection::High => "high",
+                crate::rata::BiasDirection::None => "none",
+            },
+            words: {
+                let u = RataUnits::of(r);
+                res.bias_words(&|v| u.with_unit(v))
+            },
         },
         grade: res.grade().label(),
         passed: res.grade() != RataGrade::Fail,

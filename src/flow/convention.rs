@@ -240,6 +240,33 @@ impl Convention {
     }
 }
 
+/// The velocity equations a survey's angle correction uses, in words: EPA Methods 2G and 2F
+/// replace the (√Δp)avg equation with per-point axial velocities that are then averaged.
+pub fn angle_notes(c: &Convention, angles: crate::survey::AngleCorrection) -> Vec<String> {
+    use crate::survey::AngleCorrection;
+    let (k, t) = match (c.id, c.epa_form) {
+        (ConventionId::EpaMethod2, EpaForm::English) => ("85.49", "Ts(i) = °F + 460"),
+        (ConventionId::EpaMethod2, EpaForm::Metric) => ("34.97", "Ts(i) = °C + 273"),
+        _ => ("", ""),
+    };
+    let point = if k.is_empty() {
+        "v(i) = K·√(2Δp(i)/ρ(i))".to_string()
+    } else {
+        format!("v(i) = {k}·Cp·√(Δp(i)·Ts(i)/(Ps·Ms)), {t}")
+    };
+    match angles {
+        AngleCorrection::None => Vec::new(),
+        AngleCorrection::Yaw => vec![
+            "EPA Method 2G (yaw-corrected): va(i) = v(i)·cos θy(i) at each point".to_string(),
+            format!("{point}; vs = mean of va(i) (point velocities averaged, not (√Δp)avg)"),
+        ],
+        AngleCorrection::YawPitch => vec![
+            "EPA Method 2F (yaw and pitch): va(i) = v(i)·cos θy(i)·cos θp(i) at each point".to_string(),
+            format!("{point}; vs = mean of va(i) (point velocities averaged, not (√Δp)avg); 3-D probe calibration coefficients are not applied"),
+        ],
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -271,5 +298,28 @@ mod tests {
         );
         assert_eq!(c.reference_temperature_k, 298.15);
         assert!(c.describe().last().unwrap().contains("set by the survey"));
+    }
+
+    #[test]
+    fn methods_2g_and_2f_name_their_per_point_equations() {
+        use crate::survey::AngleCorrection;
+        let c = Convention::new(ConventionId::EpaMethod2, EpaForm::English, None);
+        assert!(angle_notes(&c, AngleCorrection::None).is_empty());
+        let g = angle_notes(&c, AngleCorrection::Yaw).join(" ");
+        // EPA Method 2G: axial velocity v·cos(yaw) at each point, point velocities averaged
+        assert!(g.contains("Method 2G") && g.contains("cos θy(i)"), "{g}");
+        assert!(
+            g.contains("85.49·Cp·√(Δp(i)·Ts(i)/(Ps·Ms)), Ts(i) = °F + 460"),
+            "{g}"
+        );
+        let f = angle_notes(&c, AngleCorrection::YawPitch).join(" ");
+        assert!(
+            f.contains("Method 2F") && f.contains("cos θy(i)·cos θp(i)"),
+            "{f}"
+        );
+        let m = Convention::new(ConventionId::EpaMethod2, EpaForm::Metric, None);
+        assert!(angle_notes(&m, AngleCorrection::Yaw)
+            .join(" ")
+            .contains("34.97"));
     }
 }

@@ -9,10 +9,15 @@ pub mod convention;
 pub mod design;
 pub mod gas_state;
 pub mod run;
+pub mod wall_effects;
 
-pub use convention::{Convention, EpaForm};
-pub use gas_state::{resolve_gas, GasState};
-pub use run::{average_runs, compute_run, epa_vs, Average, PointResult, RunResult};
+pub use convention::{angle_notes, Convention, EpaForm};
+pub use gas_state::{method4_form, resolve_gas, GasState};
+pub use run::{
+    average_runs, compute_run, epa_vs, method_notes, wall_factor, wall_factor_note,
+    wall_point_velocities, Average, PointResult, RunResult,
+};
+pub use wall_effects::{wall_effects, WallEffects};
 
 use std::fmt;
 

@@ -2,22 +2,28 @@
 
 use super::convention::{Convention, EpaForm, EPA_KP_ENGLISH, EPA_KP_METRIC, HVAC_IP_CONSTANT};
 use super::gas_state::{resolve_gas, GasState};
+use super::wall_effects::WallPointVelocity;
 use super::FlowError;
 use crate::layout::Layout;
-use crate::readings::{Dp, Reading, RunReadings};
+use crate::readings::{Dp, Reading, RunReadings, WallReadings};
 use crate::survey::{
-    AngleCorrection, ConventionId, DesignFlow, NegativePolicy, Survey, WallFactor,
+    AngleCorrection, ConventionId, DesignFlow, NegativePolicy, RunSpec, Survey, WallFactor,
 };
 use crate::units::{PA_PER_INH2O, PA_PER_MMH2O};
 use serde::Serialize;
 
 /// Standard gravity, for gauge-fluid columns.
 const G_N: f64 = 9.80665;
-/// Specific gravity is referred to water at 60 °F (999.012 kg/m³), common practice for gauge oils.
+/// Conventional water, 1000 kg/m³: a column h of fluid of specific gravity SG reads h × SG of the
+/// conventional inch (or millimetre) of water, the unit `inH2O`/`mmH2O` is (units.rs). Under EPA
+/// Method 2 a reviewer computes exactly that.
+const WATER_CONVENTIONAL_KG_M3: f64 = 1000.0;
+/// The optional gas-column correction refers specific gravity to water at 60 °F (999.012 kg/m³),
+/// common practice for gauge oils.
 const WATER_60F_KG_M3: f64 = 999.012;
 const FT_M: f64 = 0.3048;
-/// Method 2H default wall-effects factors (40 CFR 60 App. A-2, Method 2H §8.2): 0.9900 for brick
-/// and mortar walls, 0.9950 for all other construction.
+/// Method 2H default wall-effects factors (40 CFR 60 App. A-2, Method 2H §2.2.2 and §8.1): 0.9900
+/// for brick and mortar walls, 0.9950 for all other construction.
 pub const WAF_DEFAULT_BRICK: f64 = 0.9900;
 pub const WAF_DEFAULT_OTHER: f64 = 0.9950;
 
@@ -96,15 +102,61 @@ fn reading_err(r: &Reading, message: String, hint: &str) -> FlowError {
     }
 }
 
-/// The wall factor a survey asks for.
+/// The wall factor a survey asks for; 1.0 (unadjusted) for the calculated Method 2H factor, which
+/// the pipeline derives from the runs' wall-effects traverses and applies afterwards.
 pub fn wall_factor(survey: &Survey) -> f64 {
     match survey.options.wall_factor {
-        WallFactor::None => 1.0,
+        WallFactor::None | WallFactor::Method2hCalculated => 1.0,
         WallFactor::Given { factor } => factor,
         WallFactor::Method2hDefault => match survey.construction {
             crate::survey::Construction::Brick => WAF_DEFAULT_BRICK,
             crate::survey::Construction::Steel => WAF_DEFAULT_OTHER,
         },
+    }
+}
+
+/// The methods a survey's results rest on beyond the convention's own equations, in words: the
+/// 2F/2G per-point equations, the wall-effects factor with its clause, the Method 4 equations.
+/// `traverses` is the number of Method 2H wall-effects traverses behind a calculated factor.
+pub fn method_notes(
+    survey: &Survey,
+    convention: &Convention,
+    runs: &[RunResult],
+    traverses: usize,
+) -> Vec<String> {
+    let mut out = super::convention::angle_notes(convention, survey.options.angles);
+    if let Some(r) = runs.first() {
+        out.extend(wall_factor_note(survey, r.wall_factor, traverses));
+    }
+    if let Some(m4) = runs.iter().find_map(|r| r.gas.method4.as_ref()) {
+        out.extend(m4.form.describe());
+    }
+    out
+}
+
+/// The wall factor applied, in words with the clause behind it; `None` when there is none.
+/// `traverses` is the number of wall-effects traverses a calculated factor was derived from.
+pub fn wall_factor_note(survey: &Survey, applied: f64, traverses: usize) -> Option<String> {
+    match survey.options.wall_factor {
+        WallFactor::None => None,
+        WallFactor::Method2hDefault => Some(format!(
+            "wall effects: EPA Method 2H default factor {applied:.4} for {} (Method 2H §2.2.2: 0.9900 for brick and mortar stacks, 0.9950 for all other construction)",
+            match survey.construction {
+                crate::survey::Construction::Brick => "a brick and mortar stack",
+                crate::survey::Construction::Steel => "a stack other than brick and mortar",
+            }
+        )),
+        WallFactor::Method2hCalculated => Some(format!(
+            "wall effects: EPA Method 2H calculated factor {applied:.4}, {} (Method 2H §12; applied to every run, §2.3)",
+            if traverses == 1 {
+                "from one wall-effects traverse".to_string()
+            } else {
+                format!("the mean of {traverses} wall-effects traverses")
+            }
+        )),
+        WallFactor::Given { factor } => {
+            Some(format!("wall effects: factor {factor} given by the survey"))
+        }
     }
 }
 
@@ -117,14 +169,113 @@ fn wmean(pairs: impl Iterator<Item = (f64, f64)>) -> f64 {
     s / w
 }
 
-/// Computes one run. `readings` must already match `layout` (see `input::readings::match_to_layout`).
+/// The axial share of a point velocity under the survey's angle correction: 1 (plain Method 2),
+/// cos yaw (Method 2G) or cos yaw · cos pitch (Method 2F).
+fn axial_factor(angles: AngleCorrection, r: &Reading) -> Result<f64, FlowError> {
+    Ok(match angles {
+        AngleCorrection::None => 1.0,
+        AngleCorrection::Yaw | AngleCorrection::YawPitch => {
+            let yaw = r.yaw_deg.ok_or_else(|| {
+                reading_err(
+                    r,
+                    "no yaw angle is given but the survey corrects for yaw".into(),
+                    "add a yaw[deg] column, or set [flow] angles = \"none\"",
+                )
+            })?;
+            let pitch = if angles == AngleCorrection::YawPitch {
+                r.pitch_deg.ok_or_else(|| {
+                    reading_err(
+                        r,
+                        "no pitch angle is given but the survey corrects for pitch".into(),
+                        "add a pitch[deg] column, or set [flow] angles = \"yaw\"",
+                    )
+                })?
+            } else {
+                0.0
+            };
+            yaw.to_radians().cos() * pitch.to_radians().cos()
+        }
+    })
+}
+
+/// Velocities of a run's Method 2H wall-effects readings, each computed like a traverse point with
+/// the run's gas (`run` is the run's result) and the survey's probe and angle correction.
+pub fn wall_point_velocities(
+    survey: &Survey,
+    convention: &Convention,
+    spec: &RunSpec,
+    run: &RunResult,
+    wall: &WallReadings,
+) -> Result<Vec<WallPointVelocity>, FlowError> {
+    let gas = &run.gas;
+    let ps_form = convention.epa_ps(gas.barometric_pa, gas.static_pa);
+    let run_gas = survey.gas_for(spec);
+    let mut out = Vec::with_capacity(wall.readings.len());
+    for w in &wall.readings {
+        let r = &w.reading;
+        let t = r
+            .temperature_k
+            .or(run_gas.temperature_k)
+            .unwrap_or(run.mean_temperature_k);
+        let rho = gas.density_kg_m3(t)?;
+        let dp = reading_dp_pa(survey, r, rho)?;
+        // Method 2H §8.4.3 (from memory): a velocity pressure too small to read near the wall is
+        // recorded as zero; a negative reading counts as zero velocity here.
+        let s = dp.max(0.0).sqrt();
+        let v = point_velocity(
+            convention,
+            gas,
+            ps_form,
+            survey.probe.coefficient,
+            s,
+            t,
+            rho,
+        ) * axial_factor(survey.options.angles, r)?;
+        out.push(WallPointVelocity {
+            line: r.line.clone(),
+            point: r.point,
+            distance_m: w.distance_m,
+            velocity_m_s: v,
+            source_line: r.source_line,
+        });
+    }
+    Ok(out)
+}
+
+/// Δp in Pa from a reading as recorded: a pressure as is; a liquid column as h × SG of conventional
+/// water, or, when the survey asks for it, less the column of gas it displaces.
+fn reading_dp_pa(survey: &Survey, r: &Reading, gas_density: f64) -> Result<f64, FlowError> {
+    match r.dp {
+        Dp::Pressure { pa } => Ok(pa),
+        Dp::Column { height_m } => {
+            let sg = survey.probe.gauge_fluid_sg.ok_or_else(|| {
+                reading_err(
+                    r,
+                    "Δp is a liquid column but the gauge fluid is not given".into(),
+                    "set [probe] gauge_fluid_sg (1.0 for water), or write dp in a pressure unit",
+                )
+            })?;
+            Ok(if survey.probe.gauge_gas_column {
+                (sg * WATER_60F_KG_M3 - gas_density) * G_N * height_m
+            } else {
+                sg * WATER_CONVENTIONAL_KG_M3 * G_N * height_m
+            })
+        }
+    }
+}
+
+/// Computes one run with the run's own conditions (`spec`) and the given wall factor (see
+/// [`wall_factor`]). `readings` must already match `layout` (see `input::readings::match_to_layout`).
 pub fn compute_run(
     survey: &Survey,
     convention: &Convention,
     layout: &Layout,
-    id: &str,
+    spec: &RunSpec,
     readings: &RunReadings,
+    waf: f64,
 ) -> Result<RunResult, FlowError> {
+    let id = spec.id.as_str();
+    let run_gas = survey.gas_for(spec);
     // Readings in layout order.
     let mut ordered: Vec<(&crate::layout::Point, &Reading)> =
         Vec::with_capacity(layout.total_points());
@@ -144,21 +295,19 @@ pub fn compute_run(
     }
     let mut temps = Vec::with_capacity(ordered.len());
     for (_, r) in &ordered {
-        let t = r
-            .temperature_k
-            .or(survey.gas.temperature_k)
-            .ok_or_else(|| {
-                reading_err(
-                    r,
-                    "no temperature is given".into(),
-                    "add a temperature[…] column or [gas] temperature",
-                )
-            })?;
+        let t = r.temperature_k.or(run_gas.temperature_k).ok_or_else(|| {
+            reading_err(
+                r,
+                "no temperature is given".into(),
+                "add a temperature[…] column, or temperature to [gas] or the [[run]]",
+            )
+        })?;
         temps.push(t);
     }
     let weights: Vec<f64> = ordered.iter().map(|(p, _)| p.weight).collect();
     let mean_t = wmean(temps.iter().copied().zip(weights.iter().copied()));
-    let gas = resolve_gas(&survey.gas, convention, mean_t)?;
+    let gas = resolve_gas(&run_gas, convention, mean_t)?;
+    let ps_form = convention.epa_ps(gas.barometric_pa, gas.static_pa);
     let cp = survey.probe.coefficient;
     let policy = survey.options.negative;
     let angles = survey.options.angles;
@@ -169,19 +318,7 @@ pub fn compute_run(
     let mut rho_i = Vec::with_capacity(ordered.len());
     for ((p, r), &t) in ordered.iter().zip(&temps) {
         let rho = gas.density_kg_m3(t)?;
-        let dp_pa = match r.dp {
-            Dp::Pressure { pa } => pa,
-            Dp::Column { height_m } => {
-                let sg = survey.probe.gauge_fluid_sg.ok_or_else(|| {
-                    reading_err(
-                        r,
-                        "Δp is a liquid column but the gauge fluid is not given".into(),
-                        "set [probe] gauge_fluid_sg (1.0 for water), or write dp in a pressure unit",
-                    )
-                })?;
-                (sg * WATER_60F_KG_M3 - rho) * G_N * height_m
-            }
-        };
+        let dp_pa = reading_dp_pa(survey, r, rho)?;
         let negative = dp_pa < 0.0;
         if negative && policy == NegativePolicy::Reject {
             return Err(reading_err(
@@ -195,31 +332,8 @@ pub fn compute_run(
             (true, _) => -(-dp_pa).sqrt(),
             (false, _) => dp_pa.sqrt(),
         };
-        let axial = match angles {
-            AngleCorrection::None => 1.0,
-            AngleCorrection::Yaw | AngleCorrection::YawPitch => {
-                let yaw = r.yaw_deg.ok_or_else(|| {
-                    reading_err(
-                        r,
-                        "no yaw angle is given but the survey corrects for yaw".into(),
-                        "add a yaw[deg] column, or set [flow] angles = \"none\"",
-                    )
-                })?;
-                let pitch = if angles == AngleCorrection::YawPitch {
-                    r.pitch_deg.ok_or_else(|| {
-                        reading_err(
-                            r,
-                            "no pitch angle is given but the survey corrects for pitch".into(),
-                            "add a pitch[deg] column, or set [flow] angles = \"yaw\"",
-                        )
-                    })?
-                } else {
-                    0.0
-                };
-                yaw.to_radians().cos() * pitch.to_radians().cos()
-            }
-        };
-        let v = point_velocity(convention, &gas, cp, s, t, rho) * axial;
+        let axial = axial_factor(angles, r)?;
+        let v = point_velocity(convention, &gas, ps_form, cp, s, t, rho) * axial;
         sqrt_dp.push(s);
         rho_i.push(rho);
         points.push(PointResult {
@@ -238,7 +352,6 @@ pub fn compute_run(
         });
     }
 
-    let waf = wall_factor(survey);
     let area = layout.duct().area_m2();
     let w = || weights.iter().copied();
     let mean_sqrt = wmean(sqrt_dp.iter().copied().zip(w()));
@@ -253,7 +366,7 @@ pub fn compute_run(
             let to_form = |pa: f64| convention.epa_dp(pa);
             let sqrt_dp_avg = mean_sqrt * to_form(1.0).sqrt();
             let ts = wmean(temps.iter().map(|t| convention.epa_absolute_t(*t)).zip(w()));
-            let ps = convention.epa_ps(survey.gas.barometric_pa, survey.gas.static_pa);
+            let ps = ps_form;
             let ms = gas.wet_molar_mass_g_mol;
             let (kp, unit_m_s) = match convention.epa_form {
                 EpaForm::English => (EPA_KP_ENGLISH, FT_M),
@@ -359,10 +472,12 @@ pub fn epa_vs(kp: f64, cp: f64, sqrt_dp_avg: f64, ts_abs: f64, ps: f64, ms: f64)
     kp * cp * sqrt_dp_avg * (ts_abs / (ps * ms)).sqrt()
 }
 
-/// Point velocity in m/s from the signed √Δp (Pa^½) under the convention.
+/// Point velocity in m/s from the signed √Δp (Pa^½) under the convention. `ps_form` is the EPA
+/// eq. 2-6 stack pressure in the form's unit (Pbar + Pg/13.6), used under EPA Method 2 only.
 fn point_velocity(
     c: &Convention,
     gas: &GasState,
+    ps_form: f64,
     cp: f64,
     sqrt_dp_pa: f64,
     t_k: f64,
@@ -370,7 +485,7 @@ fn point_velocity(
 ) -> f64 {
     match c.id {
         ConventionId::EpaMethod2 => {
-            let ps = c.epa_ps(gas.absolute_pressure_pa, 0.0);
+            let ps = ps_form;
             let ts = c.epa_absolute_t(t_k);
             match c.epa_form {
                 EpaForm::English => {
@@ -502,6 +617,19 @@ readings = "r.csv"
         (s, c, l)
     }
 
+    /// One run of the survey `s` by id, unadjusted for wall effects.
+    fn run(
+        s: &Survey,
+        c: &Convention,
+        l: &Layout,
+        id: &str,
+        r: &RunReadings,
+    ) -> Result<RunResult, FlowError> {
+        let mut spec = s.runs[0].clone();
+        spec.id = id.to_string();
+        compute_run(s, c, l, &spec, r, 1.0)
+    }
+
     fn readings(l: &Layout, dps: &[f64]) -> RunReadings {
         RunReadings {
             file: "r.csv".into(),
@@ -534,19 +662,19 @@ readings = "r.csv"
         fn flow_invariants(dps in prop::collection::vec(1.0f64..500.0, 8), k in 0.1f64..10.0, conv in 0usize..4) {
             let name = crate::survey::ConventionId::ALL[conv].name();
             let (s, c, l) = setup(name);
-            let uniform = compute_run(&s, &c, &l, "1", &readings(&l, &[dps[0]; 8])).unwrap();
+            let uniform = run(&s, &c, &l, "1", &readings(&l, &[dps[0]; 8])).unwrap();
             let v0 = uniform.points[0].velocity_m_s;
             prop_assert!((uniform.mean_velocity_m_s - v0).abs() <= 1e-12 * v0);
             prop_assert!((uniform.actual_flow_m3_s - v0 * l.duct().area_m2()).abs() <= 1e-12 * uniform.actual_flow_m3_s);
 
-            let base = compute_run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap();
+            let base = run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap();
             let scaled: Vec<f64> = dps.iter().map(|d| d * k).collect();
-            let sc = compute_run(&s, &c, &l, "1", &readings(&l, &scaled)).unwrap();
+            let sc = run(&s, &c, &l, "1", &readings(&l, &scaled)).unwrap();
             prop_assert!((sc.mean_velocity_m_s / base.mean_velocity_m_s - k.sqrt()).abs() < 1e-9);
 
             let mut rev = readings(&l, &dps);
             rev.readings.reverse();
-            let r = compute_run(&s, &c, &l, "1", &rev).unwrap();
+            let r = run(&s, &c, &l, "1", &rev).unwrap();
             prop_assert!((r.actual_flow_m3_s - base.actual_flow_m3_s).abs() <= 1e-12 * base.actual_flow_m3_s);
             // mean of square roots never exceeds the square root of the mean
             prop_assert!(base.wrong_average_velocity_m_s >= base.mean_velocity_m_s * (1.0 - 1e-12));
@@ -558,18 +686,18 @@ readings = "r.csv"
         let (mut s, c, l) = setup("iso-16911");
         let mut dps = [100.0; 8];
         dps[3] = -25.0;
-        let signed = compute_run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap();
+        let signed = run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap();
         assert!(signed.points[3].negative && signed.points[3].velocity_m_s < 0.0);
         // the signed velocity is −√(25/100) = −half of a 100 Pa point's
         assert!(
             (signed.points[3].velocity_m_s + 0.5 * signed.points[0].velocity_m_s).abs() < 1e-12
         );
         s.options.negative = NegativePolicy::Zero;
-        let zero = compute_run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap();
+        let zero = run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap();
         assert_eq!(zero.points[3].velocity_m_s, 0.0);
         assert!(zero.mean_velocity_m_s > signed.mean_velocity_m_s);
         s.options.negative = NegativePolicy::Reject;
-        let e = compute_run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap_err();
+        let e = run(&s, &c, &l, "1", &readings(&l, &dps)).unwrap_err();
         assert!(
             matches!(
                 e,
@@ -588,14 +716,14 @@ readings = "r.csv"
         let (mut s, c, l) = setup("iso-16911");
         s.options.angles = AngleCorrection::Yaw;
         let mut r = readings(&l, &[100.0; 8]);
-        let e = compute_run(&s, &c, &l, "1", &r).unwrap_err();
+        let e = run(&s, &c, &l, "1", &r).unwrap_err();
         assert!(e.to_string().contains("no yaw"), "{e}");
         for x in r.readings.iter_mut() {
             x.yaw_deg = Some(60.0);
         }
-        let with = compute_run(&s, &c, &l, "1", &r).unwrap();
+        let with = run(&s, &c, &l, "1", &r).unwrap();
         s.options.angles = AngleCorrection::None;
-        let without = compute_run(&s, &c, &l, "1", &r).unwrap();
+        let without = run(&s, &c, &l, "1", &r).unwrap();
         // EPA Method 2G: axial velocity = v·cos(yaw); cos 60° = 0.5
         assert!((with.mean_velocity_m_s / without.mean_velocity_m_s - 0.5).abs() < 1e-12);
     }
@@ -603,8 +731,8 @@ readings = "r.csv"
     #[test]
     fn averages_and_spread() {
         let (s, c, l) = setup("iso-16911");
-        let a = compute_run(&s, &c, &l, "1", &readings(&l, &[100.0; 8])).unwrap();
-        let b = compute_run(&s, &c, &l, "2", &readings(&l, &[121.0; 8])).unwrap();
+        let a = run(&s, &c, &l, "1", &readings(&l, &[100.0; 8])).unwrap();
+        let b = run(&s, &c, &l, "2", &readings(&l, &[121.0; 8])).unwrap();
         let c = Convention::new(ConventionId::HvacIp, EpaForm::English, None);
         let avg = average_runs(&[&a, &b], None, &c).unwrap();
         assert!(
@@ -615,5 +743,41 @@ readings = "r.csv"
             (b.actual_flow_m3_s - a.actual_flow_m3_s).abs() / 2f64.sqrt() / avg.actual_flow_m3_s;
         assert!((avg.flow_relative_std_dev - want).abs() < 1e-12);
         assert!(average_runs(&[], None, &c).is_none());
+    }
+
+    #[test]
+    fn a_liquid_column_is_h_times_sg_inches_of_water() {
+        // EPA Method 2 takes a gauge reading of h inches of a fluid of specific gravity SG as
+        // h × SG inches of water (the conventional inch of water, units.rs): SG 1.0 must give
+        // exactly what dp[inH2O] gives.
+        let (mut s, c, l) = setup("epa-method-2");
+        let inch = 0.0254;
+        let h = [0.50, 0.55, 0.60, 0.62, 0.58, 0.52, 0.48, 0.54];
+        let as_pressure = readings(&l, &h.map(|x| x * crate::units::PA_PER_INH2O));
+        let mut as_column = as_pressure.clone();
+        for (r, x) in as_column.readings.iter_mut().zip(h) {
+            r.dp = Dp::Column { height_m: x * inch };
+        }
+        s.probe.gauge_fluid_sg = Some(1.0);
+        let p = run(&s, &c, &l, "1", &as_pressure).unwrap();
+        let q = run(&s, &c, &l, "1", &as_column).unwrap();
+        for (a, b) in p.points.iter().zip(&q.points) {
+            assert!(
+                (a.dp_pa - b.dp_pa).abs() <= 1e-12 * a.dp_pa,
+                "{} {}",
+                a.dp_pa,
+                b.dp_pa
+            );
+        }
+        assert!((p.mean_velocity_m_s - q.mean_velocity_m_s).abs() <= 1e-12 * p.mean_velocity_m_s);
+        // gauge oil SG 0.826: 0.826 × h inches of water
+        s.probe.gauge_fluid_sg = Some(0.826);
+        let q = run(&s, &c, &l, "1", &as_column).unwrap();
+        let want = 0.826 * 0.50 * crate::units::PA_PER_INH2O;
+        assert!((q.points[0].dp_pa - want).abs() <= 1e-12 * want);
+        // the optional gas-column correction (documented, off by default) reads lower
+        s.probe.gauge_gas_column = true;
+        let g = run(&s, &c, &l, "1", &as_column).unwrap();
+        assert!(g.points[0].dp_pa < q.points[0].dp_pa);
     }
 }

@@ -47,6 +47,8 @@ pub struct Loaded {
     pub calibration: Option<(SourceFile, SourceFile)>,
     /// The survey's `[checks]`, `[instruments]` and `[reported]` sections.
     pub config: AssessConfig,
+    /// One per `[[run]]`: the run's Method 2H wall-effects readings, when it has them.
+    pub wall_readings: Vec<Option<(SourceFile, crate::readings::WallReadings)>>,
 }
 
 /// Reads a file of `kind` as UTF-8 text (a regular file within the kind's size limit), with a
@@ -98,6 +100,8 @@ pub enum FileKind {
     CalibrationReadings,
     /// A survey, named by a RATA run's `survey`.
     Survey,
+    /// A run's Method 2H wall-effects readings CSV, named by `[[run]] wall_readings`.
+    WallReadings,
 }
 
 impl FileKind {
@@ -108,6 +112,7 @@ impl FileKind {
             FileKind::Calibration => "calibration file",
             FileKind::CalibrationReadings => "calibration readings file",
             FileKind::Survey => "survey",
+            FileKind::WallReadings => "wall-effects readings file",
         }
     }
 
@@ -118,6 +123,7 @@ impl FileKind {
             FileKind::Calibration => "calibration paths are relative to the survey file; the file is in the `annulus calibrate` format",
             FileKind::CalibrationReadings => "the readings path is relative to the calibration file; its header is `leg,standard_dp[unit],s_type_dp[unit]`",
             FileKind::Survey => "survey paths in a RATA file are relative to the RATA file",
+            FileKind::WallReadings => "wall-effects readings paths are relative to the survey file; the header is `line,point,distance[in],dp[inH2O]`",
         }
     }
 
@@ -128,6 +134,7 @@ impl FileKind {
             FileKind::Calibration => limits::FileKind::Calibration,
             FileKind::CalibrationReadings => limits::FileKind::CalibrationReadings,
             FileKind::Survey => limits::FileKind::Survey,
+            FileKind::WallReadings => limits::FileKind::Readings,
         }
     }
 }
@@ -240,10 +247,19 @@ fn load_survey(
         (survey, config, entries)
     };
     let mut runs = Vec::new();
+    let mut wall_readings = Vec::new();
     for entry in &entries {
         match load_readings(dir, entry, source) {
             Ok(r) => runs.push(r),
             Err(Error::Input(d)) => doc.extend(d),
+            Err(e) => return Err(e),
+        }
+        match load_wall_readings(dir, entry, source) {
+            Ok(w) => wall_readings.push(w),
+            Err(Error::Input(d)) => {
+                doc.extend(d);
+                wall_readings.push(None);
+            }
             Err(e) => return Err(e),
         }
     }
@@ -261,7 +277,35 @@ fn load_survey(
         runs,
         calibration: calibration_files.into_inner(),
         config,
+        wall_readings,
     })
+}
+
+/// Reads and parses a run's Method 2H wall-effects readings, when it names a file.
+fn load_wall_readings(
+    dir: &Path,
+    entry: &survey::runs::RunEntry,
+    source: FileSource,
+) -> Result<Option<(SourceFile, crate::readings::WallReadings)>, Error> {
+    let Some(written) = &entry.spec.wall_readings else {
+        return Ok(None);
+    };
+    let path = dir.join(written);
+    let name = path.display().to_string();
+    let at = entry
+        .wall_readings_at
+        .clone()
+        .unwrap_or_else(|| entry.readings_at.clone());
+    let (bytes, text) = read_referenced(&path, written, &at, FileKind::WallReadings, source)?;
+    let parsed = readings::parse_wall(&name, &text)?;
+    Ok(Some((
+        SourceFile {
+            name: written.clone(),
+            path,
+            bytes,
+        },
+        parsed,
+    )))
 }
 
 /// Reads and parses one run's readings file (relative to `dir`).

@@ -32,10 +32,15 @@
 //! id = "1"
 //! reference = "52.40 ft/s"           # reference-method value, or instead:
 //! # survey = "run-1/survey.toml"     # a survey; its average over valid runs is the value
+//! # survey = "day1/survey.toml#2"    # or one run of a survey (`#` and the run's id)
 //! monitor = "51.95 ft/s"             # the monitor's value over the same period
 //! period = "08:10–08:52"             # optional
 //! rejected = "reason"                # optional: reported but left out of the statistics
+//! level = "low"                      # optional: operating level of this run (else rata.level)
 //! ```
+//!
+//! Runs at several operating levels (`level` per run) are RATAs of their own: each level is
+//! evaluated, counted (≥ 9 used, ≤ 3 rejected) and reported on its own.
 //!
 //! Values are quantity strings: velocities (`m/s`, `ft/s`, `fpm`) for `quantity = "velocity"`,
 //! volume flows (`cfm`, `m3/h`, `m3/s`, `L/s`) for `quantity = "flow"`. For a flow RATA a
@@ -110,8 +115,13 @@ pub struct RataMeta {
 pub enum ReferenceSpec {
     /// Entered as a quantity: SI value and the text as written.
     Value { si: f64, raw: String },
-    /// A survey file, relative to the RATA file.
-    Survey { path: String, at: Location },
+    /// A survey file, relative to the RATA file; `run` is the id after `#` when the value is one
+    /// run of the survey rather than the average of its valid runs.
+    Survey {
+        path: String,
+        run: Option<String>,
+        at: Location,
+    },
 }
 
 /// One `[[run]]` as parsed.
@@ -124,6 +134,8 @@ pub struct RunSpec {
     pub monitor_raw: String,
     pub period: Option<String>,
     pub rejected: Option<String>,
+    /// Operating level of the run (its own `level`, else the file's).
+    pub level: Option<String>,
     /// Where the run's `id` is, for later messages.
     pub at: Location,
     /// Where its `rejected` is, if it has one.
@@ -196,7 +208,18 @@ fn read_rata(root: &Table) -> Option<RataSpec> {
         .and_then(|(r, m)| read_meta(r, m));
     let basis = r.as_ref().and_then(|r| read_basis(r, quantity));
     let tables = root.tables("run");
-    let runs = read_runs(root, &tables, dim);
+    // a run without its own level is at the file's
+    let file_level = meta.as_ref().and_then(|m| m.level.clone());
+    let runs = read_runs(root, &tables, dim).map(|runs| {
+        runs.into_iter()
+            .map(|mut run| {
+                if run.level.is_none() {
+                    run.level = file_level.clone();
+                }
+                run
+            })
+            .collect::<Vec<_>>()
+    });
     let display_unit = r.as_ref().and_then(|r| read_display_unit(r, dim, &tables));
     let runs = runs.and_then(|runs| check_run_counts(root, runs));
     Some(RataSpec {
@@ -393,6 +416,7 @@ fn read_run(t: &Table, dim: Option<Dimension>, seen: &mut Vec<String>) -> Option
         monitor_raw: monitor_field?.text().trim().to_string(),
         period: t.opt_text("period"),
         rejected,
+        level: t.opt_text("level"),
         at,
         rejected_at,
     })
@@ -414,13 +438,22 @@ fn read_reference(
             })
         }
         (None, Some(p)) => {
-            let path = p.str()?.trim().to_string();
-            if path.is_empty() {
-                p.error("`run.survey` is empty".into(), None);
+            let written = p.str()?.trim().to_string();
+            // `path#run`: one run of the survey
+            let (path, run) = match written.rsplit_once('#') {
+                Some((path, run)) => (path.trim().to_string(), Some(run.trim().to_string())),
+                None => (written.clone(), None),
+            };
+            if path.is_empty() || run.as_deref() == Some("") {
+                p.error(
+                    format!("`run.survey` = `{written}` names no survey or no run"),
+                    Some("write survey = \"run-1/survey.toml\", or \"day1/survey.toml#2\" for run 2 of it".into()),
+                );
                 return None;
             }
             Some(ReferenceSpec::Survey {
                 path,
+                run,
                 at: p.doc.location(p.span.clone(), "run.survey"),
             })
         }
@@ -444,43 +477,61 @@ fn read_reference(
     }
 }
 
-/// The run-count rules (≤ 3 rejected, ≥ 9 used), located where they can be; checked only when
-/// every run could be read.
+/// The run-count rules (≤ 3 rejected, ≥ 9 used), for each operating level, located where they can
+/// be; checked only when every run could be read.
 fn check_run_counts(root: &Table, runs: Vec<RunSpec>) -> Option<Vec<RunSpec>> {
     let doc = root.doc();
     if doc.has_errors() {
         return Some(runs);
     }
     let limits = PART_75_FLOW_LIMITS;
-    let rejected: Vec<&RunSpec> = runs.iter().filter(|r| r.rejected.is_some()).collect();
     let mut ok = true;
-    if rejected.len() > limits.max_rejected_runs {
-        let extra = rejected[limits.max_rejected_runs];
-        let mut d = Diagnostic::new(format!(
-            "at most {} runs may be rejected, found {}",
-            limits.max_rejected_runs,
-            rejected.len()
-        ))
-        .hint("a RATA may reject up to three runs (40 CFR 75 App. A §7, from memory); repeat runs instead");
-        if let Some(at) = &extra.rejected_at {
-            d = d.at(at.clone());
-        }
-        doc.push(d);
-        ok = false;
-    }
-    let used = runs.len() - rejected.len();
-    if used < limits.min_used_runs {
-        doc.push(
-            Diagnostic::new(format!(
-                "at least {} runs must remain after rejections, found {used}",
-                limits.min_used_runs
+    for level in levels(&runs) {
+        let of_level: Vec<&RunSpec> = runs.iter().filter(|r| r.level == level).collect();
+        let at_level = match &level {
+            Some(l) if levels(&runs).len() > 1 => format!(" at level `{l}`"),
+            _ => String::new(),
+        };
+        let rejected: Vec<&&RunSpec> = of_level.iter().filter(|r| r.rejected.is_some()).collect();
+        if rejected.len() > limits.max_rejected_runs {
+            let extra = rejected[limits.max_rejected_runs];
+            let mut d = Diagnostic::new(format!(
+                "at most {} runs may be rejected{at_level}, found {}",
+                limits.max_rejected_runs,
+                rejected.len()
             ))
-            .at(Location::file(doc.file()))
-            .hint("a flow RATA needs nine or more paired runs that are not rejected (40 CFR 75 App. A §7, from memory)"),
-        );
-        ok = false;
+            .hint("a RATA may reject up to three runs (40 CFR 75 App. A §7, from memory); repeat runs instead");
+            if let Some(at) = &extra.rejected_at {
+                d = d.at(at.clone());
+            }
+            doc.push(d);
+            ok = false;
+        }
+        let used = of_level.len() - rejected.len();
+        if used < limits.min_used_runs {
+            doc.push(
+                Diagnostic::new(format!(
+                    "at least {} runs must remain after rejections{at_level}, found {used}",
+                    limits.min_used_runs
+                ))
+                .at(Location::file(doc.file()))
+                .hint("a flow RATA needs nine or more paired runs that are not rejected at each level (40 CFR 75 App. A §7, from memory)"),
+            );
+            ok = false;
+        }
     }
     ok.then_some(runs)
+}
+
+/// The operating levels of the runs, in the order they first appear.
+pub fn levels(runs: &[RunSpec]) -> Vec<Option<String>> {
+    let mut out: Vec<Option<String>> = Vec::new();
+    for r in runs {
+        if !out.contains(&r.level) {
+            out.push(r.level.clone());
+        }
+    }
+    out
 }
 
 /// Reads a RATA file and every survey its runs reference (relative to the file), with their
@@ -502,7 +553,7 @@ pub fn load_with(path: &Path, source: FileSource) -> Result<RataInput, Error> {
     for run in &spec.runs {
         let loaded = match &run.reference {
             ReferenceSpec::Value { .. } => None,
-            ReferenceSpec::Survey { path: rel, at } => {
+            ReferenceSpec::Survey { path: rel, at, .. } => {
                 match super::load_referenced(&dir.join(rel), rel, at, FileKind::Survey, source) {
                     Ok(l) => Some(l),
                     Err(Error::Input(d)) => {

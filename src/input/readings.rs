@@ -9,7 +9,7 @@ use super::header::{Header, HeaderError};
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::layout::Layout;
 use crate::limits::MAX_READING_ROWS;
-use crate::readings::{Dp, Reading, RunReadings};
+use crate::readings::{Dp, Reading, RunReadings, WallReading, WallReadings};
 use crate::units::{convert_in, parse_number, Dimension, Unit};
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -22,6 +22,8 @@ enum Col {
     Pitch,
     Static(&'static Unit),
     Time,
+    /// Method 2H wall-effects readings only: distance from the wall.
+    Distance(&'static Unit),
 }
 
 const HINT_CELL: &str = "use `.` as the decimal separator; put units in the header, not the cell";
@@ -46,6 +48,9 @@ fn parse_header(h: &str) -> Result<Col, HeaderError> {
             header.unit_of(&[Dimension::Pressure], "static[inH2O]")?,
         )),
         "time" => header.no_unit(None).map(|()| Col::Time),
+        "distance" => Ok(Col::Distance(
+            header.unit_of(&[Dimension::Length], "distance[in]")?,
+        )),
         other => Err((
             format!("unknown column `{other}`"),
             "columns are line, point, dp[…], and optionally temperature[…], yaw[deg], pitch[deg], static[…], time".into(),
@@ -270,12 +275,18 @@ fn columns(
     file: &str,
     line: usize,
     headers: &csv::StringRecord,
+    wall: bool,
 ) -> Result<Vec<(usize, Col)>, Error> {
     let same = |a: &Col, b: &Col| std::mem::discriminant(a) == std::mem::discriminant(b);
     let mut diags = Diagnostics::new();
     let mut cols: Vec<(usize, Col)> = Vec::new();
     for (i, h) in headers.iter().enumerate() {
         match parse_header(h) {
+            Ok(Col::Distance(_)) if !wall => diags.push(
+                Diagnostic::new("a `distance` column belongs in a wall-effects readings file")
+                    .at(Location::at(file, line, i + 1).with_context(format!("header `{h}`")))
+                    .hint("traverse points are placed by the layout; give Method 2H wall-effects readings in the run's wall_readings file"),
+            ),
             Ok(c) => {
                 if cols.iter().any(|(_, x)| same(x, &c)) {
                     diags.push(
@@ -308,11 +319,58 @@ fn columns(
             );
         }
     }
+    if wall && !cols.iter().any(|(_, c)| matches!(c, Col::Distance(_))) {
+        diags.push(
+            Diagnostic::new("the wall-effects readings file has no `distance[…]` column")
+                .at(Location::at(file, line, 1))
+                .hint("write the header as `line,point,distance[in],dp[inH2O]`"),
+        );
+    }
     diags.finish(cols)
 }
 
 /// Parses a readings file in row form.
 pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
+    parse_rows_with(file, text, false).map(|(r, _)| r)
+}
+
+/// Parses a Method 2H wall-effects readings file: rows `line,point,distance[in],dp[…],…` where
+/// `line` and `point` name the Method 1 exterior point whose sector the reading belongs to and
+/// `distance` is measured from the wall nearest that point.
+pub fn parse_wall(file: &str, text: &str) -> Result<WallReadings, Error> {
+    let (readings, distances) = parse_rows_with(file, text, true)?;
+    let mut diags = Diagnostics::new();
+    let mut out = Vec::with_capacity(readings.readings.len());
+    for (r, d) in readings.readings.into_iter().zip(distances) {
+        match d {
+            Some(distance_m) => out.push(WallReading {
+                reading: r,
+                distance_m,
+            }),
+            None => diags.push(
+                Diagnostic::new(format!(
+                    "line {}, point {}: the distance from the wall is missing",
+                    r.line, r.point
+                ))
+                .at(Location::at(file, r.source_line, 1))
+                .hint(
+                    "each wall-effects reading needs its distance from the wall, e.g. 1, 2, 3 … in",
+                ),
+            ),
+        }
+    }
+    diags.finish(WallReadings {
+        file: file.to_string(),
+        readings: out,
+    })
+}
+
+/// Row-form readings and, for a wall-effects file (`wall`), each row's distance from the wall.
+fn parse_rows_with(
+    file: &str,
+    text: &str,
+    wall: bool,
+) -> Result<(RunReadings, Vec<Option<f64>>), Error> {
     if text.trim().is_empty() {
         return Err(Error::input(
             Diagnostic::new("the readings file is empty")
@@ -325,12 +383,13 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
     if let Some(e) = foreign_header(file, header_line, &headers) {
         return Err(e);
     }
-    let cols = columns(file, header_line, &headers)?;
+    let cols = columns(file, header_line, &headers, wall)?;
     let dp_col = cols
         .iter()
         .find_map(|(i, c)| matches!(c, Col::Dp(_)).then_some(*i));
     let mut diags = Diagnostics::new();
     let mut readings = Vec::new();
+    let mut distances = Vec::new();
     // rows with a line and point but no Δp: a sheet not filled in yet is one problem, not one
     // per point
     let (mut rows_seen, mut dp_blank) = (0usize, 0usize);
@@ -350,7 +409,10 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
             dp_blank += usize::from(dp_col.and_then(|i| rec.get(i)).is_some_and(str::is_empty));
         }
         match row_reading(file, line_no, &rec, &headers, &cols) {
-            Ok(Some(r)) => readings.push(r),
+            Ok(Some((r, d))) => {
+                readings.push(r);
+                distances.push(d);
+            }
             Ok(None) => {}
             Err(d) => diags.extend(d),
         }
@@ -375,21 +437,25 @@ pub fn parse_rows(file: &str, text: &str) -> Result<RunReadings, Error> {
         Col::Dp(u) => Some(*u),
         _ => None,
     });
-    diags.finish(RunReadings {
-        dp_unit,
-        file: file.to_string(),
-        readings,
-    })
+    diags.finish((
+        RunReadings {
+            dp_unit,
+            file: file.to_string(),
+            readings,
+        },
+        distances,
+    ))
 }
 
-/// One row as a reading: `None` for a blank row, every bad cell of the row otherwise.
+/// One row as a reading (with its distance from the wall, in a wall-effects file): `None` for a
+/// blank row, every bad cell of the row otherwise.
 fn row_reading(
     file: &str,
     line_no: usize,
     rec: &csv::StringRecord,
     headers: &csv::StringRecord,
     cols: &[(usize, Col)],
-) -> Result<Option<Reading>, Diagnostics> {
+) -> Result<Option<(Reading, Option<f64>)>, Diagnostics> {
     let mut diags = Diagnostics::new();
     if rec.iter().all(|c| c.is_empty()) {
         return Ok(None);
@@ -429,6 +495,7 @@ fn row_reading(
         time: None,
         source_line: line_no,
     };
+    let mut distance = None;
     for (i, col) in cols {
         let cell = Cell {
             file,
@@ -437,19 +504,25 @@ fn row_reading(
             header: &headers[*i],
             who: who.clone(),
         };
-        if let Err(d) = read_cell(*col, &rec[*i], &cell, &mut r) {
+        if let Err(d) = read_cell(*col, &rec[*i], &cell, &mut r, &mut distance) {
             diags.push(d);
         }
     }
     if diags.is_empty() {
-        Ok(Some(r))
+        Ok(Some((r, distance)))
     } else {
         Err(diags)
     }
 }
 
 /// Reads one cell of column `col` into the reading.
-fn read_cell(col: Col, raw: &str, cell: &Cell, r: &mut Reading) -> Result<(), Diagnostic> {
+fn read_cell(
+    col: Col,
+    raw: &str,
+    cell: &Cell,
+    r: &mut Reading,
+    distance: &mut Option<f64>,
+) -> Result<(), Diagnostic> {
     match col {
         Col::Line if raw.is_empty() => Err(cell.error(
             "the line label is empty".into(),
@@ -469,21 +542,42 @@ fn read_cell(col: Col, raw: &str, cell: &Cell, r: &mut Reading) -> Result<(), Di
             "differential pressure is missing".into(),
             "every point needs a reading; a point that could not be read must be re-read, not left out",
         )),
-        Col::Dp(unit) => number_in(cell, raw, "differential pressure", unit).map(|v| {
+        Col::Dp(unit) => {
+            let v = number_in(cell, raw, "differential pressure", unit)?;
             r.dp = to_dp(unit, v);
             r.dp_decimals = decimals(raw);
-        }),
+            // a column of a water-like fluid for the range check (the SG is applied later); the
+            // range is wide enough for any gauge fluid
+            let pa = match r.dp {
+                Dp::Pressure { pa } => pa,
+                Dp::Column { height_m } => height_m * 1000.0 * 9.80665,
+            };
+            crate::plausibility::VELOCITY_PRESSURE
+                .check(pa)
+                .map(|_| ())
+                .map_err(|e| {
+                    cell.error(
+                        format!("differential pressure `{raw}`: {e}"),
+                        "a reading this large is a slipped decimal point or the wrong unit in the header",
+                    )
+                })
+        }
         Col::Temperature(unit) if !raw.is_empty() => {
             let v = number_in(cell, raw, "temperature", unit)?;
             let k = convert_in(v, unit, Dimension::Temperature).unwrap_or(f64::NAN);
-            if k > 0.0 {
-                r.temperature_k = Some(k);
-                Ok(())
-            } else {
+            if k <= 0.0 {
                 Err(cell.error(
                     format!("temperature `{raw}` is below absolute zero"),
                     "check the unit in the header",
                 ))
+            } else if let Err(e) = crate::plausibility::GAS_TEMPERATURE.check(k) {
+                Err(cell.error(
+                    format!("temperature `{raw}`: {e}"),
+                    "check the number and the unit in the header",
+                ))
+            } else {
+                r.temperature_k = Some(k);
+                Ok(())
             }
         }
         Col::Yaw | Col::Pitch if !raw.is_empty() => {
@@ -507,6 +601,18 @@ fn read_cell(col: Col, raw: &str, cell: &Cell, r: &mut Reading) -> Result<(), Di
         Col::Time if !raw.is_empty() => {
             r.time = Some(raw.to_string());
             Ok(())
+        }
+        Col::Distance(unit) if !raw.is_empty() => {
+            let m = number(cell, raw, "distance")? * unit.factor;
+            if m > 0.0 && m < crate::plausibility::DUCT_DIMENSION.max {
+                *distance = Some(m);
+                Ok(())
+            } else {
+                Err(cell.error(
+                    format!("distance from the wall `{raw}` is not a positive length"),
+                    "measure each wall-effects point from the inside of the wall",
+                ))
+            }
         }
         _ => Ok(()),
     }
@@ -848,6 +954,49 @@ mod tests {
         let b = parse_rows("r.csv", quoted).unwrap();
         assert_eq!(a.readings, b.readings);
         assert_eq!(a.readings[1].source_line, 5);
+    }
+
+    #[test]
+    fn a_slipped_decimal_point_is_an_input_error_at_its_cell() {
+        // 464 inH2O typed for 0.464: beyond any duct's velocity pressure (plausibility range)
+        let d = err(
+            "line,point,dp[inH2O],temperature[F]\nA,1,0.452,300\nA,2,464,300\nA,3,0.546,5000\n",
+        );
+        assert_eq!(d.len(), 2, "{d}");
+        let first = &d.items()[0];
+        assert!(
+            first.message.contains("differential pressure `464`"),
+            "{}",
+            first.message
+        );
+        let loc = first.location.as_ref().unwrap();
+        assert_eq!((loc.line, loc.column), (Some(3), Some(3)));
+        assert!(loc
+            .context
+            .as_deref()
+            .unwrap_or("")
+            .contains("line A, point 2"));
+        // 5000 °F is past any traversed gas
+        assert!(d.items()[1].message.contains("temperature `5000`"));
+        assert!(parse_rows("r.csv", "line,point,dp[inH2O]\nA,1,0.464\n").is_ok());
+    }
+
+    #[test]
+    fn wall_effects_readings_need_their_distance() {
+        let w = parse_wall(
+            "w.csv",
+            "line,point,distance[in],dp[inH2O]\nA,1,1,0.30\nA,1,2,0.38\n",
+        )
+        .unwrap();
+        assert_eq!(w.readings.len(), 2);
+        assert!((w.readings[1].distance_m - 0.0508).abs() < 1e-12);
+        let Err(Error::Input(d)) = parse_wall("w.csv", "line,point,dp[inH2O]\nA,1,0.30\n") else {
+            panic!("accepted")
+        };
+        assert!(d.to_string().contains("no `distance[…]` column"));
+        // a traverse readings file takes no distance column
+        let d = err("line,point,distance[in],dp[inH2O]\nA,1,1,0.30\n");
+        assert!(d.to_string().contains("wall-effects readings file"));
     }
 
     #[test]

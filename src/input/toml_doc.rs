@@ -219,6 +219,41 @@ impl<'d> Field<'d> {
         }
     }
 
+    /// A quantity of `dimension` that must also lie in a plausibility range
+    /// (`crate::plausibility`): a value no duct or stack can have is a recorded problem.
+    pub fn quantity_in(
+        &self,
+        dimension: Dimension,
+        range: crate::plausibility::Range,
+    ) -> Option<f64> {
+        let x = self.quantity(dimension)?;
+        self.within(x, range)
+    }
+
+    /// `x`, read from this field, checked against a plausibility range.
+    pub fn within(&self, x: f64, range: crate::plausibility::Range) -> Option<f64> {
+        match range.check(x) {
+            Ok(x) => Some(x),
+            Err(e) => {
+                self.error(
+                    format!("`{}` = `{}`: {e}", self.path(), self.text()),
+                    Some(format!(
+                        "check the number and its unit (`{}` was read as {} {})",
+                        self.text(),
+                        // a value far outside the range reads better in powers of ten
+                        if x != 0.0 && !(1e-4..1e7).contains(&x.abs()) {
+                            format!("{x:.3e}")
+                        } else {
+                            crate::checks::num(x)
+                        },
+                        range.unit
+                    )),
+                );
+                None
+            }
+        }
+    }
+
     /// [`Field::quantity`] with a value of this key's own for the hint of an empty one (a static
     /// pressure's `"-0.85 inH2O"` rather than a barometric pressure's `"29.92 inHg"`).
     pub fn quantity_like(&self, dimension: Dimension, example: &str) -> Option<f64> {
@@ -548,6 +583,27 @@ impl<'d> Table<'d> {
     /// An optional quantity of `dimension`, SI.
     pub fn opt_quantity(&self, key: &str, dimension: Dimension) -> Option<f64> {
         self.get(key)?.quantity(dimension)
+    }
+
+    /// A required quantity within a plausibility range (see [`Field::quantity_in`]).
+    pub fn quantity_in(
+        &self,
+        key: &str,
+        dimension: Dimension,
+        range: crate::plausibility::Range,
+    ) -> Option<f64> {
+        self.required(key, &format!("\"{}\"", dimension.example()))?
+            .quantity_in(dimension, range)
+    }
+
+    /// An optional quantity within a plausibility range (see [`Field::quantity_in`]).
+    pub fn opt_quantity_in(
+        &self,
+        key: &str,
+        dimension: Dimension,
+        range: crate::plausibility::Range,
+    ) -> Option<f64> {
+        self.get(key)?.quantity_in(dimension, range)
     }
 
     /// An optional fraction written in percent, within 0…100 %.

@@ -59,6 +59,29 @@ impl fmt::Display for Method {
     }
 }
 
+/// How far each traverse line reaches into a round duct.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Reach {
+    /// Each port's line crosses the whole diameter (the usual traverse).
+    #[default]
+    Diameter,
+    /// Each port's line stops at the centre: large stacks traversed from ports spaced evenly round
+    /// the stack (4 ports at 90°), each covering the near half of a diameter (EPA Method 1 §11.2.1
+    /// allows the points of a diameter to be reached from opposite ports; common practice on
+    /// stacks too wide for one probe).
+    Radius,
+}
+
+impl Reach {
+    pub fn name(self) -> &'static str {
+        match self {
+            Reach::Diameter => "diameter",
+            Reach::Radius => "radius",
+        }
+    }
+}
+
 /// One traverse point.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Point {
@@ -97,6 +120,7 @@ pub struct Layout {
     source: String,
     /// Wall rule applied, if any, with its minimum distance.
     wall_rule: Option<(WallRule, f64)>,
+    reach: Reach,
 }
 
 /// How to lay out a plane; counts left as `None` are chosen by the method's own rule.
@@ -112,6 +136,8 @@ pub struct LayoutSpec {
     /// Round equal-area positions as EPA Method 1 Table 1-2 prints them (percent of the diameter
     /// to 0.1 %), so marks agree with a crew's printed table, instead of the exact centroids.
     pub printed_table: bool,
+    /// Diameters, or half-diameters from ports spaced evenly round a round duct.
+    pub reach: Reach,
 }
 
 impl LayoutSpec {
@@ -123,6 +149,7 @@ impl LayoutSpec {
             minimum_points: None,
             wall_rule: None,
             printed_table: false,
+            reach: Reach::Diameter,
         }
     }
 }
@@ -188,20 +215,36 @@ pub fn line_label(i: usize) -> String {
 
 /// Places the traverse points for `duct` according to `spec`.
 pub fn locate_points(duct: &Duct, spec: &LayoutSpec) -> Result<Layout, LayoutError> {
-    let plan = match duct.shape() {
-        Shape::Round { diameter_m } => round::plan(diameter_m, spec)?,
-        Shape::Rectangular { width_m, height_m } => rect::plan(width_m, height_m, spec)?,
+    let plan = match (duct.shape(), spec.reach) {
+        (Shape::Round { diameter_m }, Reach::Diameter) => round::plan(diameter_m, spec)?,
+        (Shape::Round { diameter_m }, Reach::Radius) => round::plan_radii(diameter_m, spec)?,
+        (Shape::Rectangular { width_m, height_m }, Reach::Diameter) => {
+            rect::plan(width_m, height_m, spec)?
+        }
+        (Shape::Rectangular { .. }, Reach::Radius) => {
+            return Err(LayoutError::Unsupported {
+                method: spec.method,
+                shape: "rectangular",
+                why: "half-diameter traverses are for round stacks; a rectangular duct is traversed side to side"
+                    .into(),
+            })
+        }
     };
     let mut points = Vec::with_capacity(plan.lines.len() * plan.fractions.len());
-    let line_len = duct.line_length_m();
+    // plan fractions are of the diameter (or side) for every reach
+    let across = duct.line_length_m();
+    let line_len = match spec.reach {
+        Reach::Diameter => across,
+        Reach::Radius => across / 2.0,
+    };
     for (li, line) in plan.lines.iter().enumerate() {
         for (pi, &f) in plan.fractions.iter().enumerate() {
             points.push(Point {
                 line: line_label(li),
                 line_index: li,
                 point: pi + 1,
-                position_m: f * line_len,
-                fraction: f,
+                position_m: f * across,
+                fraction: f * across / line_len,
                 weight: 1.0,
                 adjusted: false,
                 line_offset_m: line.offset_m,
@@ -212,7 +255,7 @@ pub fn locate_points(duct: &Duct, spec: &LayoutSpec) -> Result<Layout, LayoutErr
     let wall_rule = match spec.wall_rule {
         Some(rule) => {
             let min_m = rule.minimum_distance_m(duct);
-            wall::apply(rule, duct, &mut points);
+            wall::apply(rule, duct, &mut points, line_len);
             Some((rule, min_m))
         }
         None => None,
@@ -226,6 +269,8 @@ pub fn locate_points(duct: &Duct, spec: &LayoutSpec) -> Result<Layout, LayoutErr
         plan.source,
         wall_rule,
     )
+    .map(|l| l.with_reach(spec.reach))
+    .and_then(Layout::check_reach)
 }
 
 /// A traverse line as a method places it.
@@ -292,7 +337,9 @@ impl Layout {
                     )));
                 }
                 let mirror = &pts[points_per_line - 1 - i];
-                if (p.position_m + mirror.position_m - len).abs() > 1e-6 * len {
+                // half-diameter lines are checked by `check_reach` (opposite lines pair up)
+                let half = 2.0 * pts[points_per_line - 1].position_m < len;
+                if !half && (p.position_m + mirror.position_m - len).abs() > 1e-6 * len {
                     return Err(LayoutError::Invalid(format!(
                         "line {} is not symmetric at point {}",
                         p.line, p.point
@@ -308,7 +355,38 @@ impl Layout {
             points,
             source,
             wall_rule,
+            reach: Reach::Diameter,
         })
+    }
+
+    /// The layout with its lines reaching `reach` (checked by [`Layout::check_reach`]).
+    fn with_reach(mut self, reach: Reach) -> Layout {
+        self.reach = reach;
+        self
+    }
+
+    /// Half-diameter lines: an even number of ports spaced evenly round the stack (so opposite
+    /// lines make whole diameters), every point between the near wall and the centre.
+    fn check_reach(self) -> Result<Layout, LayoutError> {
+        if self.reach == Reach::Diameter {
+            return Ok(self);
+        }
+        let r = self.duct.line_length_m() / 2.0;
+        if self.lines < 2 || !self.lines.is_multiple_of(2) {
+            return Err(LayoutError::BadCount {
+                what: "half-diameter lines",
+                found: self.lines,
+                allowed: "ports spaced evenly round the stack in opposite pairs (2, 4, 6 or 8)"
+                    .into(),
+            });
+        }
+        if let Some(p) = self.points.iter().find(|p| p.position_m >= r) {
+            return Err(LayoutError::Invalid(format!(
+                "line {} point {} at {} m is past the centre of a half-diameter line",
+                p.line, p.point, p.position_m
+            )));
+        }
+        Ok(self)
     }
 
     pub fn method(&self) -> Method {
@@ -334,6 +412,17 @@ impl Layout {
     }
     pub fn wall_rule(&self) -> Option<(WallRule, f64)> {
         self.wall_rule
+    }
+    /// Whether lines cross the diameter or stop at the centre.
+    pub fn reach(&self) -> Reach {
+        self.reach
+    }
+    /// Length of each traverse line: the diameter (or side), or the radius for half-diameter lines.
+    pub fn line_length_m(&self) -> f64 {
+        match self.reach {
+            Reach::Diameter => self.duct.line_length_m(),
+            Reach::Radius => self.duct.line_length_m() / 2.0,
+        }
     }
     /// Labels of the lines in order.
     pub fn line_labels(&self) -> Vec<String> {

@@ -1,7 +1,7 @@
 //! Round ducts: equal-area centroids by formula, log-linear and log-Tchebycheff by table.
 
 use super::tables::{ROUND_LOG_LINEAR, ROUND_LOG_TCHEBYCHEFF};
-use super::{LayoutError, LayoutSpec, LinePlacement, Method, Plan};
+use super::{LayoutError, LayoutSpec, LinePlacement, Method, Plan, Reach};
 
 /// Field practice for round ducts with the log rules (TAB procedures, methods.md §1.2): 3 diameters
 /// at 60° are preferred; 6 points per diameter up to 10 in, 8 above.
@@ -13,6 +13,9 @@ const EQUAL_AREA_DEFAULT_LINES: usize = 2;
 /// minimum for stacks over 24 in meeting the 8/2 criterion).
 const EQUAL_AREA_DEFAULT_TOTAL: usize = 12;
 const MAX_LINES: usize = 8;
+/// Half-diameter traverses: 4 ports at 90° unless the survey says otherwise (common practice on
+/// large stacks, where one probe cannot cross the whole diameter).
+const RADIUS_DEFAULT_LINES: usize = 4;
 
 /// Equal-area centroid positions for `n` points on a diameter (n even), fractions of D from the
 /// wall: ring i (1 = innermost) of n/2 sits at r/R = sqrt((2i-1)/n) (EPA Method 1 §12.1; the rule
@@ -115,6 +118,34 @@ pub(super) fn plan(diameter_m: f64, spec: &LayoutSpec) -> Result<Plan, LayoutErr
         lines,
         fractions,
         source,
+    })
+}
+
+/// Half-diameter lines: ports spaced evenly round the stack, each traversed from its wall to the
+/// centre. Opposite ports together hold one diameter's points, so the positions are the near half of
+/// the diameter layout with twice the points per line (`points_per_line` counts the points of one
+/// port's line).
+pub(super) fn plan_radii(diameter_m: f64, spec: &LayoutSpec) -> Result<Plan, LayoutError> {
+    let ports = check_lines(spec.lines.unwrap_or(RADIUS_DEFAULT_LINES))?;
+    let mut diameters = spec.clone();
+    diameters.reach = Reach::Diameter;
+    diameters.lines = Some((ports / 2).max(1));
+    diameters.points_per_line = spec.points_per_line.map(|n| 2 * n);
+    let whole = plan(diameter_m, &diameters)?;
+    let half = whole.fractions.len() / 2;
+    let lines = (0..ports)
+        .map(|k| LinePlacement {
+            offset_m: None,
+            angle_deg: Some(360.0 * k as f64 / ports as f64),
+        })
+        .collect();
+    Ok(Plan {
+        lines,
+        fractions: whole.fractions[..half].to_vec(),
+        source: format!(
+            "{}; {ports} ports, each traversed to the centre",
+            whole.source
+        ),
     })
 }
 
@@ -251,5 +282,50 @@ mod tests {
             plan(0.5, &spec).unwrap().fractions,
             vec![0.032, 0.135, 0.321, 0.679, 0.865, 0.968]
         );
+    }
+
+    #[test]
+    fn half_diameter_lines_hold_the_near_half_of_each_diameter() {
+        // 96 in stack, 4 ports at 90°, 6 points each to the centre: the positions are the first
+        // six of EPA Method 1's 12-point diameter (Table 1-2: 2.1, 6.7, 11.8, 17.7, 25.0, 35.6 %
+        // of D), 24 points in all like 2 diameters × 12.
+        let d = 96.0 * 0.0254;
+        let mut spec = LayoutSpec::new(Method::EqualArea);
+        spec.reach = Reach::Radius;
+        spec.lines = Some(4);
+        spec.points_per_line = Some(6);
+        let l =
+            super::super::locate_points(&crate::geometry::Duct::round(d).unwrap(), &spec).unwrap();
+        assert_eq!(l.total_points(), 24);
+        assert_eq!(l.reach(), Reach::Radius);
+        assert!((l.line_length_m() - d / 2.0).abs() < 1e-12);
+        let table = [2.1, 6.7, 11.8, 17.7, 25.0, 35.6];
+        for (p, pct) in l.points()[..6].iter().zip(table) {
+            assert!(
+                (p.position_m / d * 100.0 - pct).abs() <= TABLE_1_2_TOL_PCT,
+                "{}",
+                p.position_m
+            );
+            assert!((p.fraction - p.position_m / (d / 2.0)).abs() < 1e-12);
+        }
+        let angles: Vec<f64> = (0..4)
+            .map(|k| l.points()[6 * k].line_angle_deg.unwrap())
+            .collect();
+        assert_eq!(angles, [0.0, 90.0, 180.0, 270.0]);
+        // the deepest mark is the last point plus the port, not the far wall
+        let marks = crate::layout::probe_marks(&l, 6.0 * 0.0254, crate::layout::MarkStep::None);
+        let deepest = marks.iter().map(|m| m.insertion_m).fold(0.0, f64::max);
+        assert!(deepest < d / 2.0 + 6.0 * 0.0254, "{deepest}");
+        // an odd number of ports cannot pair into diameters; rectangular ducts are refused
+        spec.lines = Some(3);
+        assert!(
+            super::super::locate_points(&crate::geometry::Duct::round(d).unwrap(), &spec).is_err()
+        );
+        spec.lines = Some(4);
+        assert!(super::super::locate_points(
+            &crate::geometry::Duct::rectangular(2.0, 1.0).unwrap(),
+            &spec
+        )
+        .is_err());
     }
 }

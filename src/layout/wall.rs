@@ -53,13 +53,15 @@ fn clamp(value: f64, len: f64, min: f64) -> (f64, bool) {
 }
 
 /// Moves points (and rectangular line offsets) out to the minimum wall distance.
-pub(super) fn apply(rule: WallRule, duct: &Duct, points: &mut [Point]) {
+/// `line_len` is the length of each line (the diameter, or the radius for half-diameter lines),
+/// for the points' fractions.
+pub(super) fn apply(rule: WallRule, duct: &Duct, points: &mut [Point], line_len: f64) {
     let min = rule.minimum_distance_m(duct);
     let len = duct.line_length_m();
     for p in points.iter_mut() {
         let (pos, moved) = clamp(p.position_m, len, min);
         p.position_m = pos;
-        p.fraction = pos / len;
+        p.fraction = pos / line_len;
         p.adjusted |= moved;
         if let (Shape::Rectangular { width_m, .. }, Some(off)) = (duct.shape(), p.line_offset_m) {
             let (o, moved) = clamp(off, width_m, min);

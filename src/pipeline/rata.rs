@@ -17,13 +17,15 @@ use crate::rata::{
 pub enum ReferenceSource {
     /// Entered in the RATA file, as written.
     Entered { raw: String },
-    /// The average of a survey's valid runs.
+    /// The average of a survey's valid runs, or one run of it.
     Survey {
-        /// As written in the RATA file.
+        /// As written in the RATA file (without a `#run`).
         path: String,
         title: String,
-        /// Ids of the survey runs averaged.
+        /// Ids of the survey runs averaged (the one run, when the file names one).
         runs: Vec<String>,
+        /// The RATA file names one run of the survey (`path#run`).
+        one_run: bool,
     },
 }
 
@@ -58,8 +60,9 @@ pub fn evaluate(input: RataInput) -> Result<RataEvaluation, Error> {
             (ReferenceSpec::Value { si, raw }, _) => {
                 (*si, ReferenceSource::Entered { raw: raw.clone() })
             }
-            (ReferenceSpec::Survey { path, at }, Some(loaded)) => {
-                match survey_reference(loaded, path, at, spec.quantity, spec.basis) {
+            (ReferenceSpec::Survey { path, run: one, at }, Some(loaded)) => {
+                match survey_reference(loaded, path, one.as_deref(), at, spec.quantity, spec.basis)
+                {
                     Ok((value, source, files)) => {
                         survey_files.extend(files.into_iter().map(|f| (run.id.clone(), f)));
                         (value, source)
@@ -71,7 +74,7 @@ pub fn evaluate(input: RataInput) -> Result<RataEvaluation, Error> {
                     Err(e) => return Err(e),
                 }
             }
-            (ReferenceSpec::Survey { path, at }, None) => {
+            (ReferenceSpec::Survey { path, at, .. }, None) => {
                 diags.push(
                     Diagnostic::new(format!("the survey `{path}` was not read")).at(at.clone()),
                 );
@@ -104,42 +107,132 @@ pub fn evaluate(input: RataInput) -> Result<RataEvaluation, Error> {
     })
 }
 
-/// Computes a referenced survey and takes its average.
+/// Computes a referenced survey and takes its average, or the value of its run `one_run`. The
+/// files it read (the survey, its readings, its wall-effects readings and the probe calibration
+/// its coefficient came from) are returned to be embedded in the summary.
 fn survey_reference(
     loaded: Loaded,
     rel: &str,
+    one_run: Option<&str>,
     at: &Location,
     quantity: RataQuantity,
     basis: FlowBasis,
 ) -> Result<(f64, ReferenceSource, Vec<SourceFile>), Error> {
     let evaluation = super::evaluate(loaded)?;
-    let Some(avg) = &evaluation.average else {
-        return Err(Error::input(
-            Diagnostic::new(format!(
-                "the survey `{rel}` has no valid run to average (see its leak checks)"
-            ))
-            .at(at.clone())
-            .hint("a run counts when its post-run leak check passed; check the survey with `annulus check`"),
-        ));
+    let pick = |velocity: f64, actual: f64, standard: f64, dry: f64| match (quantity, basis) {
+        (RataQuantity::VelocityMS, _) => velocity,
+        (RataQuantity::Flow, FlowBasis::Actual) => actual,
+        (RataQuantity::Flow, FlowBasis::Standard) => standard,
+        (RataQuantity::Flow, FlowBasis::DryStandard) => dry,
     };
-    let value = match (quantity, basis) {
-        (RataQuantity::VelocityMS, _) => avg.mean_velocity_m_s,
-        (RataQuantity::Flow, FlowBasis::Actual) => avg.actual_flow_m3_s,
-        (RataQuantity::Flow, FlowBasis::Standard) => avg.standard_flow_m3_s,
-        (RataQuantity::Flow, FlowBasis::DryStandard) => avg.dry_standard_flow_m3_s,
+    let (value, runs) = match one_run {
+        Some(id) => {
+            let Some(i) = evaluation.runs.iter().position(|r| r.id == id) else {
+                let ids: Vec<&str> = evaluation.runs.iter().map(|r| r.id.as_str()).collect();
+                return Err(Error::input(
+                    Diagnostic::new(format!("the survey `{rel}` has no run `{id}`"))
+                        .at(at.clone())
+                        .hint(format!("its runs are {}", ids.join(", "))),
+                ));
+            };
+            if let Some(why) = &evaluation.validity[i].void_reason {
+                return Err(Error::input(
+                    Diagnostic::new(format!(
+                        "run `{id}` of the survey `{rel}` is void ({why}): it cannot be a reference-method value"
+                    ))
+                    .at(at.clone())
+                    .hint("name a valid run, or reject the RATA run with a reason"),
+                ));
+            }
+            let r = &evaluation.runs[i];
+            (
+                pick(
+                    r.mean_velocity_m_s,
+                    r.actual_flow_m3_s,
+                    r.standard_flow_m3_s,
+                    r.dry_standard_flow_m3_s,
+                ),
+                vec![id.to_string()],
+            )
+        }
+        None => {
+            let Some(avg) = &evaluation.average else {
+                return Err(Error::input(
+                    Diagnostic::new(format!(
+                        "the survey `{rel}` has no valid run to average (see its leak checks)"
+                    ))
+                    .at(at.clone())
+                    .hint("a run counts when its post-run leak check passed; check the survey with `annulus check`"),
+                ));
+            };
+            (
+                pick(
+                    avg.mean_velocity_m_s,
+                    avg.actual_flow_m3_s,
+                    avg.standard_flow_m3_s,
+                    avg.dry_standard_flow_m3_s,
+                ),
+                avg.runs.clone(),
+            )
+        }
     };
     let loaded = &evaluation.loaded;
     let mut files = vec![loaded.survey_file.clone()];
     files.extend(loaded.runs.iter().map(|(f, _)| f.clone()));
+    files.extend(
+        loaded
+            .wall_readings
+            .iter()
+            .flatten()
+            .map(|(f, _)| f.clone()),
+    );
+    if let Some((cal, cal_readings)) = &loaded.calibration {
+        files.push(cal.clone());
+        files.push(cal_readings.clone());
+    }
     Ok((
         value,
         ReferenceSource::Survey {
             path: rel.to_string(),
             title: loaded.survey.title.clone(),
-            runs: avg.runs.clone(),
+            runs,
+            one_run: one_run.is_some(),
         },
         files,
     ))
+}
+
+/// A RATA file whose runs are at several operating levels, evaluated level by level: each level
+/// is a RATA of its own (in the order the levels first appear). A file with one level gives one.
+pub fn evaluate_levels(input: RataInput) -> Result<Vec<RataEvaluation>, Error> {
+    let levels = crate::input::rata_file::levels(&input.spec.runs);
+    if levels.len() <= 1 {
+        return Ok(vec![evaluate(input)?]);
+    }
+    let mut out = Vec::new();
+    let mut diags = Diagnostics::new();
+    for level in levels {
+        let mut spec = input.spec.clone();
+        let (mut runs, mut surveys) = (Vec::new(), Vec::new());
+        for (run, survey) in input.spec.runs.iter().zip(&input.surveys) {
+            if run.level == level {
+                runs.push(run.clone());
+                surveys.push(survey.clone());
+            }
+        }
+        spec.runs = runs;
+        spec.meta.level = level;
+        match evaluate(RataInput {
+            file: input.file.clone(),
+            spec,
+            surveys,
+        }) {
+            Ok(e) => out.push(e),
+            Err(Error::Input(d)) => diags.extend(d),
+            Err(e) => return Err(e),
+        }
+    }
+    diags.finish(out)
 }
 
 /// A core error the parser did not already catch (it checks the same rules with locations; a

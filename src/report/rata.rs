@@ -203,6 +203,12 @@ pub fn quantity_text(r: &RataEvaluation) -> String {
 pub fn source_text(s: &ReferenceSource) -> String {
     match s {
         ReferenceSource::Entered { .. } => "entered".to_string(),
+        ReferenceSource::Survey {
+            path,
+            runs,
+            one_run: true,
+            ..
+        } => format!("survey {path}, run {}", runs.join(", ")),
         ReferenceSource::Survey { path, runs, .. } => format!(
             "survey {path} (mean of run{} {})",
             if runs.len() == 1 { "" } else { "s" },
@@ -233,21 +239,16 @@ pub fn low_velocity_text(r: &RataEvaluation, u: &RataUnits) -> (String, &'static
 
 /// The mean difference is written `mean d`, not d̄: a combining macron upsets terminal column
 /// widths and comes out of PDF text extraction garbled.
+/// The bias test in words: which way the monitor reads, against the confidence coefficient, and
+/// the bias adjustment factor (40 CFR 75 App. A §7.6, from memory).
 pub fn bias_text(r: &RataEvaluation, u: &RataUnits) -> String {
     let res = &r.result;
     let baf = fixed(res.bias.adjustment_factor, BAF_DECIMALS);
+    let words = res.bias_words(&|v| u.with_unit(v));
     if res.bias.passed {
-        format!(
-            "pass: mean d {} ≤ |cc| {}; BAF {baf}",
-            u.with_unit(res.mean_difference),
-            u.with_unit(res.confidence_coefficient.abs()),
-        )
+        format!("pass: {words}; BAF {baf}")
     } else {
-        format!(
-            "fail: mean d {} > |cc| {} (the monitor reads low); BAF = 1 + |mean d|/CEM avg = {baf}",
-            u.with_unit(res.mean_difference),
-            u.with_unit(res.confidence_coefficient.abs()),
-        )
+        format!("fail: {words}, BAF = 1 + |mean d|/CEM avg = {baf}")
     }
 }
 
@@ -286,7 +287,15 @@ fn verdict_sentence(r: &RataEvaluation) -> String {
     };
     let baf = fixed(res.bias.adjustment_factor, BAF_DECIMALS);
     let bias = if res.bias.passed {
-        format!("bias test passed, BAF {baf}")
+        match res.bias_direction() {
+            crate::rata::BiasDirection::High => {
+                format!("bias test passed (the monitor reads high on average), BAF {baf}")
+            }
+            crate::rata::BiasDirection::Low => {
+                format!("bias test passed (the monitor reads low, within the confidence coefficient), BAF {baf}")
+            }
+            crate::rata::BiasDirection::None => format!("bias test passed, BAF {baf}"),
+        }
     } else {
         format!("bias test failed (monitor reads low), BAF {baf}")
     };
@@ -321,11 +330,16 @@ pub fn attachments(r: &RataEvaluation) -> Result<Vec<Attachment>, AttachmentErro
         &r.file,
         "RATA file (TOML) as read".into(),
     )?];
+    let mut embedded: Vec<(&std::path::Path, &[u8])> = Vec::new();
     for (run, f) in &r.survey_files {
         let name = flat_name(&format!("run-{run}--{}", f.name));
-        if v.iter().any(|a| a.name() == name) {
+        // a survey several runs take values from (and its calibration) is embedded once
+        if v.iter().any(|a| a.name() == name)
+            || embedded.contains(&(f.path.as_path(), f.bytes.as_slice()))
+        {
             continue;
         }
+        embedded.push((f.path.as_path(), f.bytes.as_slice()));
         v.push(make(
             name,
             f,

@@ -10,6 +10,7 @@ const SURVEY: &str = r#"
 title = "Review unit test stack"
 date = "2026-10-14"
 convention = "epa-method-2"
+runs_required = 1
 [duct]
 shape = "round"
 diameter = "5.0 ft"

@@ -9,9 +9,9 @@
 //! |---|---|
 //! | `[survey]`, `[duct]`, `[layout]` | [`plane`] |
 //! | `[probe]` | [`probe`] |
-//! | `[gas]`, `[gas.method4]` | [`gas`] |
+//! | `[gas]`, `[gas.method4]` (and the same keys in a `[[run]]`) | [`gas`] |
 //! | `[design]`, `[flow]`, `[signoff]`, `notes` | [`options`] |
-//! | `[[run]]` | [`runs`] |
+//! | `[[run]]`, `[run.method4]` | [`runs`] |
 //! | `[checks]`, `[instruments]`, `[reported]` | [`super::assess_config`] |
 //!
 //! To add a key, ask its table for it in that table's function (the getter checks type and unit
@@ -68,15 +68,28 @@ pub fn read_survey(
     let survey_table = root.table("survey");
     let meta = survey_table.as_ref().map(plane::read_meta);
     let plane = plane::read_plane(root, survey_table.as_ref());
-    let probe = root
-        .table("probe")
-        .and_then(|t| probe::read_probe(&t, calibration));
+    let probe_table = root.table("probe");
+    let probe = probe_table
+        .as_ref()
+        .and_then(|t| probe::read_probe(t, calibration));
     let gas = root.table("gas").and_then(|t| gas::read_gas(&t));
     let design = options::read_design(root);
     let options = options::read_flow_options(root);
     let signoff = options::read_signoff(root);
     let notes = root.opt_strings("notes");
     let runs = runs::read_runs(root);
+    let runs_required = survey_table
+        .as_ref()
+        .and_then(|t| t.opt_count("runs_required", 1..=100));
+    if let (Some(p), Some(plane), Some(t)) = (&probe, &plane, &probe_table) {
+        if p.gauge_gas_column && plane.convention == ConventionId::EpaMethod2 {
+            t.error_at(
+                "gauge_gas_column",
+                "EPA Method 2 takes a liquid-column reading as h × SG inches of water, with no gas-column correction".into(),
+                Some("remove gauge_gas_column under the epa-method-2 convention".into()),
+            );
+        }
+    }
     let survey = (|| {
         let meta = meta??;
         let plane = plane?;
@@ -101,6 +114,7 @@ pub fn read_survey(
             options: options?,
             signoff,
             runs: runs.iter().map(|r| r.spec.clone()).collect(),
+            runs_required: runs_required.unwrap_or_else(|| default_runs_required(plane.convention)),
             notes: notes.unwrap_or_default(),
         })
     })();

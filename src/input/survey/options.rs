@@ -29,11 +29,13 @@ pub fn design_flow(f: &Field) -> Option<DesignFlow> {
             );
             None
         }
-        Ok((m3_s, basis)) => Some(DesignFlow {
-            m3_s,
-            basis,
-            raw: raw.trim().to_string(),
-        }),
+        Ok((m3_s, basis)) => f
+            .within(m3_s, crate::plausibility::DESIGN_FLOW)
+            .map(|m3_s| DesignFlow {
+                m3_s,
+                basis,
+                raw: raw.trim().to_string(),
+            }),
         Err(e) => {
             f.error(format!("`{}`: {e}", f.path()), Some(flow_hint()));
             None
@@ -88,6 +90,9 @@ pub fn read_flow_options(root: &Table) -> Option<FlowOptions> {
 fn wall_factor(f: &Field) -> Option<WallFactor> {
     let factor = match f.value {
         DeValue::String(s) if s == "method-2h-default" => return Some(WallFactor::Method2hDefault),
+        DeValue::String(s) if s == "method-2h-calculated" => {
+            return Some(WallFactor::Method2hCalculated)
+        }
         DeValue::String(s) if s == "none" => return Some(WallFactor::None),
         DeValue::Float(_) | DeValue::Integer(_) => f.number(),
         _ => None,
@@ -97,7 +102,7 @@ fn wall_factor(f: &Field) -> Option<WallFactor> {
         _ => {
             f.error(
                 format!(
-                    "`flow.wall_factor` must be \"none\", \"method-2h-default\" or a factor between 0.9 and 1.0, found `{}`",
+                    "`flow.wall_factor` must be \"none\", \"method-2h-default\", \"method-2h-calculated\" or a factor between 0.9 and 1.0, found `{}`",
                     f.text()
                 ),
                 None,

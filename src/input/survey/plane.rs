@@ -28,8 +28,16 @@ pub fn read_meta(t: &Table) -> Option<Meta> {
     let plane = t.opt_text("plane");
     let date = t.date("date", "2026-10-14");
     let reference = t.opt_table("reference").map(|r| {
-        let temperature = r.quantity("temperature", Dimension::Temperature);
-        let pressure = r.quantity("pressure", Dimension::Pressure);
+        let temperature = r.quantity_in(
+            "temperature",
+            Dimension::Temperature,
+            crate::plausibility::REFERENCE_TEMPERATURE,
+        );
+        let pressure = r.quantity_in(
+            "pressure",
+            Dimension::Pressure,
+            crate::plausibility::REFERENCE_PRESSURE,
+        );
         Some(ReferenceOverride {
             temperature_k: temperature?,
             pressure_pa: pressure?,
@@ -67,7 +75,15 @@ pub struct PlaneParts {
 }
 
 /// The keys of `[survey]` [`read_meta`] reads.
-pub const META_KEYS: [&str; 6] = ["title", "site", "client", "plane", "date", "reference"];
+pub const META_KEYS: [&str; 7] = [
+    "title",
+    "site",
+    "client",
+    "plane",
+    "date",
+    "reference",
+    "runs_required",
+];
 
 /// Reads `[survey] convention` (from `survey`, the `[survey]` table when there is one),
 /// `[duct]` and `[layout]` from the top level.
@@ -133,7 +149,11 @@ fn read_duct(t: &Table) -> Option<DuctParts> {
     let upstream_d = distance(t, "upstream", duct.as_ref());
     let downstream_d = distance(t, "downstream", duct.as_ref());
     let port_length_m = t
-        .opt_quantity("port_length", Dimension::Length)
+        .opt_quantity_in(
+            "port_length",
+            Dimension::Length,
+            crate::plausibility::PORT_LENGTH,
+        )
         .unwrap_or(0.0);
     Some(DuctParts {
         duct: duct?,
@@ -154,7 +174,7 @@ fn round_duct(t: &Table, diameter: Option<&Field>, liner_m: f64) -> Option<Duct>
         );
         return None;
     };
-    let dm = v.quantity(Dimension::Length)?;
+    let dm = upper_bound(v, v.quantity(Dimension::Length)?)?;
     Duct::round_lined(dm, liner_m)
         .map_err(|e| {
             let msg = match e {
@@ -183,8 +203,12 @@ fn rectangular_duct(
         );
         return None;
     };
-    let wm = w.quantity(Dimension::Length);
-    let hm = h.quantity(Dimension::Length);
+    let wm = w
+        .quantity(Dimension::Length)
+        .and_then(|x| upper_bound(w, x));
+    let hm = h
+        .quantity(Dimension::Length)
+        .and_then(|x| upper_bound(h, x));
     Duct::rectangular_lined(wm?, hm?, liner_m)
         .map_err(|e| {
             let (msg, at) = match e {
@@ -206,6 +230,15 @@ fn rectangular_duct(
             );
         })
         .ok()
+}
+
+/// A duct dimension within the plausible maximum (a non-positive one is left for the duct's
+/// constructor, which words that case).
+fn upper_bound(f: &Field, x: f64) -> Option<f64> {
+    if x <= 0.0 {
+        return Some(x);
+    }
+    f.within(x, crate::plausibility::DUCT_DIMENSION)
 }
 
 /// A straight run: `"6.2 D"` in diameters, or a length divided by the (equivalent) diameter.
@@ -244,13 +277,23 @@ fn read_layout(root: &Table) -> Option<LayoutRequest> {
             method: Method::EqualArea,
             lines: None,
             points_per_line: None,
+            reach: crate::layout::Reach::Diameter,
         });
     };
     let methods = Method::ALL.map(|m| (m.name(), m));
     let method = l.choice_or("method", &methods, Method::EqualArea);
     let lines = l.opt_count("lines", 1..=1000);
     let points_per_line = l.opt_count("points_per_line", 1..=1000);
+    let reach = l.choice_or(
+        "reach",
+        &[
+            ("diameter", crate::layout::Reach::Diameter),
+            ("radius", crate::layout::Reach::Radius),
+        ],
+        crate::layout::Reach::Diameter,
+    );
     Some(LayoutRequest {
+        reach: reach?,
         method: method?,
         lines,
         points_per_line,

@@ -1,5 +1,5 @@
-//! `[probe]`: the pitot tube, its coefficient (given, or from a calibration file) and the gauge
-//! fluid.
+//! `[probe]`: the pitot tube, its coefficient (given, or from a calibration file), its length and
+//! the gauge fluid.
 
 use super::CalibrationResolver;
 use crate::diag::Error;
@@ -37,6 +37,15 @@ pub fn read_probe(t: &Table, resolver: Option<CalibrationResolver>) -> Option<Pr
             None
         }
     });
+    let gauge_gas_column = t
+        .get("gauge_gas_column")
+        .and_then(|f| f.bool())
+        .unwrap_or(false);
+    let length_m = t.opt_quantity_in(
+        "length",
+        crate::units::Dimension::Length,
+        crate::plausibility::PROBE_LENGTH,
+    );
     let mut calibration = None;
     let coefficient = match (t.get("calibration"), given) {
         (None, Some((c, _))) => Some(c),
@@ -67,6 +76,8 @@ pub fn read_probe(t: &Table, resolver: Option<CalibrationResolver>) -> Option<Pr
         calibrated,
         gauge_fluid_sg,
         calibration,
+        gauge_gas_column,
+        length_m,
     })
 }
 

@@ -1,4 +1,6 @@
-//! `[[run]]`: each run's id, readings file, form, start and leak checks.
+//! `[[run]]`: each run's id, readings file, form, start and end, leak checks, a crew's void, the
+//! Method 2H wall-effects readings file, and the conditions it gives in place of `[gas]` (read by
+//! [`super::gas::read_run_conditions`]).
 
 use crate::diag::{Diagnostic, Location};
 use crate::input::toml_doc::Table;
@@ -10,6 +12,8 @@ pub struct RunEntry {
     pub spec: RunSpec,
     /// The `readings = "…"` value, where a readings file that cannot be read is reported.
     pub readings_at: Location,
+    /// The `wall_readings = "…"` value, when the run has one.
+    pub wall_readings_at: Option<Location>,
 }
 
 /// Reads every `[[run]]`; a survey without one is a recorded problem. Runs with a problem of
@@ -34,7 +38,14 @@ pub fn read_runs(root: &Table) -> Vec<RunEntry> {
             Some(f) => f.doc.location(f.span.clone(), &f.path()),
             None => Location::file(root.doc().file()),
         };
-        runs.push(RunEntry { spec, readings_at });
+        let wall_readings_at = t
+            .get("wall_readings")
+            .map(|f| f.doc.location(f.span.clone(), &f.path()));
+        runs.push(RunEntry {
+            spec,
+            readings_at,
+            wall_readings_at,
+        });
     }
     runs
 }
@@ -50,6 +61,22 @@ pub fn read_run(t: &Table) -> Option<RunSpec> {
         }),
     };
     let started = t.get("started").map(|f| f.text());
+    let ended = t.get("ended").map(|f| f.text());
+    let void = t.get("void").and_then(|f| {
+        let reason = f.str()?.trim().to_string();
+        if reason.is_empty() {
+            f.error(
+                "a run voided without a reason".into(),
+                Some("write the reason, e.g. void = \"probe struck the wall at B4\"; it is printed in the report".into()),
+            );
+            None
+        } else {
+            Some(reason)
+        }
+    });
+    let void_bad = t.peek("void").is_some() && void.is_none();
+    let wall_readings = t.opt_text("wall_readings");
+    let conditions = super::gas::read_run_conditions(t);
     // a leak check that cannot be read is recorded; the run is still returned so that its
     // readings file is checked in the same pass (the recorded problem stops the survey)
     let leak_check = match t.opt_table("leak_check") {
@@ -62,11 +89,18 @@ pub fn read_run(t: &Table) -> Option<RunSpec> {
             }
         }
     };
+    if void_bad {
+        return None;
+    }
     Some(RunSpec {
         id: id?,
         readings: readings?,
         form: form?,
         started,
+        ended,
         leak_check,
+        void,
+        conditions: conditions?,
+        wall_readings,
     })
 }

@@ -277,3 +277,160 @@ fn value_lists_come_from_the_enums() {
         "`probe.kind` must be one of s-type | standard, found `pitot`"
     );
 }
+
+fn errors(text: &str) -> Vec<crate::diag::Diagnostic> {
+    match parse_survey("s.toml", text) {
+        Err(Error::Input(d)) => d.items().to_vec(),
+        other => panic!("accepted: {other:?}"),
+    }
+}
+
+#[test]
+fn impossible_values_are_input_errors_at_their_place() {
+    // O2 42 %: more than air holds
+    let d = errors(&GOOD.replace("o2 = \"8.1 %\"", "o2 = \"42 %\""));
+    assert_eq!(d.len(), 1, "{d:?}");
+    assert!(
+        d[0].message.contains("`gas.o2` = `42 %`"),
+        "{}",
+        d[0].message
+    );
+    assert!(d[0].message.contains("20.9 %"), "{}", d[0].message);
+    let loc = d[0].location.as_ref().unwrap();
+    assert_eq!(loc.line, Some(27));
+    // a diameter of 1e308 in is finite but would make an infinite area
+    let d = errors(&GOOD.replace("\"96 in\"", "\"1e308 in\""));
+    assert!(
+        d[0].message.contains("`duct.diameter` = `1e308 in`"),
+        "{}",
+        d[0].message
+    );
+    // a static pressure of 900 inH2O
+    let d = errors(&GOOD.replace("-0.85 inH2O", "-900 inH2O"));
+    assert!(d[0].message.contains("gas.static"), "{}", d[0].message);
+    // 100 % moisture leaves no dry gas
+    let d = errors(&GOOD.replace("\"9.8 %\"", "\"100 %\""));
+    assert!(
+        d[0].message.contains("leaves no dry gas"),
+        "{}",
+        d[0].message
+    );
+    // the same values that make sense pass
+    assert!(parse_survey("s.toml", &GOOD.replace("o2 = \"8.1 %\"", "o2 = \"20.9 %\"")).is_ok());
+}
+
+const TRAIN: &str = "[gas.method4]\nimpinger_gain = \"152.3 g\"\nsilica_gain = \"18.7 g\"\nmeter_volume = \"34.215 dcf\"\nmeter_y = 0.987\nmeter_dh = \"1.85 inH2O\"\nmeter_temperature = \"84 F\"\n";
+
+fn with_train(train: &str) -> String {
+    GOOD.replace("moisture = \"9.8 %\"\n", "").replace(
+        "temperature = \"300 F\"\n",
+        &format!("temperature = \"300 F\"\n{train}"),
+    )
+}
+
+#[test]
+fn method4_keys_take_grams_dcf_and_orifice_dh() {
+    let s = parse_survey("s.toml", &with_train(TRAIN)).unwrap();
+    let Moisture::Method4(m) = s.gas.moisture else {
+        panic!("{:?}", s.gas.moisture)
+    };
+    assert!(
+        matches!(m.impinger_gain, crate::gas::ImpingerGain::Mass { kg } if (kg - 0.1523).abs() < 1e-15)
+    );
+    assert!((m.meter_volume_m3 - 34.215 * 0.028_316_846_592).abs() < 1e-12);
+    assert!(matches!(
+        m.meter_pressure,
+        crate::gas::MeterPressure::OrificeDh { .. }
+    ));
+    // mL and an absolute meter pressure
+    let t = TRAIN.replace("152.3 g", "152.3 mL").replace(
+        "meter_dh = \"1.85 inH2O\"",
+        "meter_pressure = \"29.75 inHg\"",
+    );
+    let s = parse_survey("s.toml", &with_train(&t)).unwrap();
+    let Moisture::Method4(m) = s.gas.moisture else {
+        panic!()
+    };
+    assert!(matches!(
+        m.impinger_gain,
+        crate::gas::ImpingerGain::Volume { .. }
+    ));
+    assert!(matches!(
+        m.meter_pressure,
+        crate::gas::MeterPressure::Absolute { .. }
+    ));
+    // both or neither pressure: refused
+    let both = TRAIN.replace(
+        "meter_dh = \"1.85 inH2O\"",
+        "meter_dh = \"1.85 inH2O\"\nmeter_pressure = \"29.75 inHg\"",
+    );
+    assert!(errors(&with_train(&both))[0].message.contains("both"));
+    let neither = TRAIN.replace("meter_dh = \"1.85 inH2O\"\n", "");
+    assert!(errors(&with_train(&neither))[0]
+        .message
+        .contains("needs the pressure at the meter"));
+    // a meter volume typed in the wrong unit: 34.215 m3 is fine, 34215 m3 is not
+    let big = TRAIN.replace("34.215 dcf", "34215 m3");
+    assert!(errors(&with_train(&big))[0]
+        .message
+        .contains("meter_volume"));
+}
+
+#[test]
+fn runs_carry_their_own_conditions() {
+    let text = GOOD.to_string()
+        + "\n[[run]]\nid = \"2\"\nreadings = \"run2.csv\"\nbarometric = \"29.58 inHg\"\nstatic = \"-0.80 inH2O\"\n\
+           temperature = \"305 F\"\no2 = \"7.9 %\"\nmoisture = \"10.4 %\"\nended = \"2026-10-14T11:40\"\n\
+           void = \"probe struck the wall at B4\"\n"
+        + "\n[[run]]\nid = \"3\"\nreadings = \"run3.csv\"\n"
+        + &TRAIN.replace("[gas.method4]", "[run.method4]");
+    let s = parse_survey("s.toml", &text).unwrap();
+    assert_eq!(s.runs_required, 3);
+    let r2 = &s.runs[1];
+    assert_eq!(r2.void.as_deref(), Some("probe struck the wall at B4"));
+    assert_eq!(r2.ended.as_deref(), Some("2026-10-14T11:40"));
+    let g2 = s.gas_for(r2);
+    assert!((g2.barometric_pa - 29.58 * crate::units::PA_PER_INHG).abs() < 1e-9);
+    // O2 from the run, CO2 kept from [gas]
+    assert!(
+        matches!(g2.dry, DryGas::Composition { o2, co2, .. } if (o2 - 0.079).abs() < 1e-12 && (co2 - 0.106).abs() < 1e-12)
+    );
+    assert!(matches!(g2.moisture, Moisture::Fraction { bws } if (bws - 0.104).abs() < 1e-12));
+    let g3 = s.gas_for(&s.runs[2]);
+    assert!(matches!(g3.moisture, Moisture::Method4(_)));
+    assert_eq!(g3.barometric_pa, s.gas.barometric_pa);
+    // run 1 is the survey's gas
+    assert_eq!(s.gas_for(&s.runs[0]), s.gas);
+}
+
+#[test]
+fn run_and_survey_keys_are_checked() {
+    // a run giving moisture twice
+    let text = GOOD.to_string() + "moisture = \"10 %\"\nrh = \"50 %\"\n";
+    assert!(errors(&text)[0].message.contains("more than one way"));
+    // void without a reason
+    let text = GOOD.to_string() + "void = \" \"\n";
+    assert!(errors(&text)[0].message.contains("without a reason"));
+    let text = GOOD.replace(
+        "convention = \"epa-method-2\"",
+        "convention = \"epa-method-2\"\nruns_required = 0",
+    );
+    assert!(errors(&text)[0].message.contains("runs_required"));
+    // EPA takes a liquid column as h × SG: no gas-column correction
+    let text = GOOD.replace(
+        "coefficient = 0.84",
+        "coefficient = 0.84\ngauge_gas_column = true",
+    );
+    assert!(errors(&text)[0].message.contains("h × SG"));
+    // half-diameter traverses and a probe length
+    let text = GOOD
+        .replace("lines = 2", "lines = 4\nreach = \"radius\"")
+        .replace("points_per_line = 12", "points_per_line = 6")
+        .replace(
+            "coefficient = 0.84",
+            "coefficient = 0.84\nlength = \"8 ft\"",
+        );
+    let s = parse_survey("s.toml", &text).unwrap();
+    assert_eq!(s.layout.reach, crate::layout::Reach::Radius);
+    assert!((s.probe.length_m.unwrap() - 8.0 * 0.3048).abs() < 1e-12);
+}

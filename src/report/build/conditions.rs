@@ -5,7 +5,7 @@ use super::{Job, Trade};
 use crate::display::{fixed, Kind};
 use crate::flow::{Convention, EpaForm};
 use crate::report::model::{Conditions, Quantity};
-use crate::survey::{ConventionId, DryGas, Moisture};
+use crate::survey::{ConventionId, DryGas};
 
 pub(super) fn section(job: &Job) -> Conditions {
     let c = &job.e.convention;
@@ -104,43 +104,94 @@ fn statement(job: &Job) -> String {
 
 fn gas(job: &Job) -> Vec<Quantity> {
     let s = job.survey();
-    let mut out = vec![
-        job.quantity("Barometric pressure", Kind::Barometric, s.gas.barometric_pa),
-        job.quantity("Static pressure", Kind::StaticPressure, s.gas.static_pa),
-    ];
     let Some(r) = job.e.runs.first() else {
-        return out;
+        return vec![
+            job.quantity("Barometric pressure", Kind::Barometric, s.gas.barometric_pa),
+            job.quantity("Static pressure", Kind::StaticPressure, s.gas.static_pa),
+        ];
     };
-    out.push(job.quantity(
-        "Absolute duct pressure",
-        Kind::AbsolutePressure,
-        r.gas.absolute_pressure_pa,
-    ));
-    let moisture = format!(
-        "{} by volume ({})",
-        job.text(Kind::Percent, r.gas.bws),
-        r.gas.moisture_basis
-    );
+    // Runs that give their own conditions: the survey's values hold for the others, and each
+    // run's own are in its column of the results table.
+    let per_run = s.runs.iter().any(|r| !r.conditions.is_empty())
+        || job.e.runs.iter().any(|x| x.gas.bws != r.gas.bws);
+    let unless = if per_run {
+        " (unless a run gives its own)"
+    } else {
+        ""
+    };
+    let by_run = || {
+        Quantity::new(
+            "",
+            "per run: see each run's column of the results table",
+            "",
+        )
+    };
+    let labelled = |mut q: Quantity, label: &str| {
+        q.label = label.to_string();
+        q
+    };
+    let mut out = vec![
+        job.quantity(
+            &format!("Barometric pressure{unless}"),
+            Kind::Barometric,
+            s.gas.barometric_pa,
+        ),
+        job.quantity(
+            &format!("Static pressure{unless}"),
+            Kind::StaticPressure,
+            s.gas.static_pa,
+        ),
+    ];
+    out.push(if per_run {
+        labelled(by_run(), "Absolute duct pressure")
+    } else {
+        job.quantity(
+            "Absolute duct pressure",
+            Kind::AbsolutePressure,
+            r.gas.absolute_pressure_pa,
+        )
+    });
+    let moisture = if per_run {
+        "per run: see each run's column of the results table".to_string()
+    } else {
+        format!(
+            "{} by volume ({})",
+            job.text(Kind::Percent, r.gas.bws),
+            r.gas.moisture_basis
+        )
+    };
     if job.trade == Trade::Hvac {
         out.push(Quantity::new("Water vapour", moisture, ""));
         return out;
     }
     if let Some(t) = composition(&s.gas.dry) {
-        out.push(Quantity::new("Dry composition", t, ""));
+        out.push(Quantity::new(format!("Dry composition{unless}"), t, ""));
     }
-    out.push(job.plain(
-        "Dry molar mass Md",
-        Kind::MolarMass,
-        r.gas.dry_molar_mass_g_mol,
-    ));
+    out.push(if per_run {
+        labelled(by_run(), "Dry molar mass Md")
+    } else {
+        job.plain(
+            "Dry molar mass Md",
+            Kind::MolarMass,
+            r.gas.dry_molar_mass_g_mol,
+        )
+    });
     out.push(Quantity::new("Moisture Bws", moisture, ""));
-    out.push(job.plain(
-        "Wet molar mass Ms",
-        Kind::MolarMass,
-        r.gas.wet_molar_mass_g_mol,
-    ));
-    if let Moisture::Method4(_) = s.gas.moisture {
-        out.push(Quantity::new("Moisture method", "EPA Method 4 train", ""));
+    out.push(if per_run {
+        labelled(by_run(), "Wet molar mass Ms")
+    } else {
+        job.plain(
+            "Wet molar mass Ms",
+            Kind::MolarMass,
+            r.gas.wet_molar_mass_g_mol,
+        )
+    });
+    if job.e.runs.iter().any(|x| x.gas.method4.is_some()) {
+        out.push(Quantity::new(
+            "Moisture method",
+            "EPA Method 4 train per run (see Moisture)",
+            "",
+        ));
     }
     if r.wall_factor != 1.0 {
         out.push(Quantity::new(
@@ -196,16 +247,31 @@ mod tests {
             c.statement,
             "Standard flows are stated at 68 °F (528 °R) and 29.920 inHg, dry basis."
         );
-        // sample-data/stack: barometric = "29.62 inHg", static = "-0.85 inH2O", moisture 9.8 %
-        assert_eq!(find(&c.gas, "Barometric pressure").value, "29.62 inHg");
-        assert_eq!(find(&c.gas, "Static pressure").value, "\u{2212}0.85 inH2O");
-        assert!(find(&c.gas, "Moisture Bws")
-            .value
-            .starts_with("9.8 % by volume"));
+        // sample-data/stack: barometric = "29.62 inHg", static = "-0.85 inH2O"; runs 2 and 3 give
+        // their own barometric pressure and every run has its Method 4 train, so the moisture
+        // and molar masses are per run
+        let b = find(&c.gas, "Barometric pressure (unless a run gives its own)");
+        assert_eq!(b.value, "29.62 inHg");
+        assert!(!b.si.is_empty());
+        assert_eq!(
+            find(&c.gas, "Static pressure (unless a run gives its own)").value,
+            "\u{2212}0.85 inH2O"
+        );
+        assert!(find(&c.gas, "Moisture Bws").value.starts_with("per run"));
         assert!(find(&c.gas, "Dry molar mass Md")
             .value
-            .ends_with(" lb/lb-mol"));
-        assert!(!find(&c.gas, "Barometric pressure").si.is_empty());
+            .starts_with("per run"));
+        // a survey whose runs share one gas states it once
+        let (e, a) = evaluated("stack-metric");
+        let c = section(&Job::new(&e, &a));
+        assert!(find(&c.gas, "Moisture Bws")
+            .value
+            .starts_with("8.0 % by volume"));
+        assert!(
+            find(&c.gas, "Dry molar mass Md").value.ends_with(" g/mol"),
+            "{:?}",
+            find(&c.gas, "Dry molar mass Md")
+        );
     }
 
     #[test]

@@ -13,6 +13,7 @@
 //! | `summary.rs` | verdict, headline figures, design comparison |
 //! | `results.rs` | results per run and their average |
 //! | `conditions.rs` | reference conditions, gas or air during the test |
+//! | `moisture.rs` | Method 4 moisture trains and their intermediates |
 //! | `plane.rs` | the plane, its lines and probe marks (also the field sheet's) |
 //! | `runs.rs` | readings tables and velocity fields |
 //! | `checks.rs` | survey checks, the check × run matrix, remarks |
@@ -29,6 +30,7 @@ mod checks;
 mod conditions;
 mod header;
 mod instruments;
+mod moisture;
 mod notes;
 mod plane;
 mod results;
@@ -70,6 +72,7 @@ pub fn report_data(e: &Evaluation, a: &Assessment, id: &Identity) -> ReportData 
         conditions: conditions::section(&job),
         summary: summary::section(&job),
         results: results::section(&job),
+        moisture: moisture::section(&job),
         readings: runs::columns(&job),
         runs: runs::section(&job, &plane),
         plane,

@@ -2,8 +2,7 @@
 //! deviations (runs left out, checks the survey changed, rules quoted from memory). Each change a
 //! survey makes to a check is printed here, once.
 
-use super::{run_range, Job};
-use crate::pipeline::run_is_valid;
+use super::Job;
 use crate::survey::{ConventionId, NegativePolicy};
 
 pub(super) fn notes(job: &Job) -> Vec<String> {
@@ -11,6 +10,20 @@ pub(super) fn notes(job: &Job) -> Vec<String> {
     let layout = &job.e.plane.layout;
     let mut out: Vec<String> = s.notes.clone();
     out.extend(job.e.convention.formulas());
+    out.extend(crate::flow::method_notes(
+        s,
+        &job.e.convention,
+        &job.e.runs,
+        job.e.wall_effects.len(),
+    ));
+    out.extend(wall_effects(job));
+    if s.runs.iter().any(|r| !r.conditions.is_empty()) {
+        out.push(
+            "Runs that give their own barometric or static pressure, composition or moisture are \
+             computed with them; each run's values are in its column of the results table."
+                .to_string(),
+        );
+    }
     out.push(format!(
         "Negative {} readings: policy `{}`.",
         job.trade.dp(),
@@ -28,19 +41,68 @@ pub(super) fn notes(job: &Job) -> Vec<String> {
     out
 }
 
+/// The Method 2H calculational procedure of each traverse, sector by sector, in the job's units.
+fn wall_effects(job: &Job) -> Vec<String> {
+    use crate::display::{fixed, Kind};
+    use crate::flow::wall_effects::DremSource;
+    job.e
+        .wall_effects
+        .iter()
+        .map(|(id, w)| {
+            let sectors: Vec<String> = w
+                .sectors
+                .iter()
+                .map(|sec| {
+                    format!(
+                        "{}{}: {} wall points to {}, drem {}, vdrem {} ({}), Vej {} against {}",
+                        sec.line,
+                        sec.point,
+                        sec.wall_points.len(),
+                        job.text(Kind::Length, sec.dlast_m),
+                        job.text(Kind::Length, sec.drem_m),
+                        job.text(Kind::Velocity, sec.vdrem_m_s),
+                        match sec.vdrem_source {
+                            DremSource::Measured => "measured",
+                            DremSource::NearestWallPoint => "nearest wall point stands in",
+                            DremSource::Method1Point => "Method 1 point stands in",
+                        },
+                        job.text(Kind::Velocity, sec.replacement_m_s),
+                        job.text(Kind::Velocity, sec.unadjusted_m_s),
+                    )
+                })
+                .collect();
+            format!(
+                "Method 2H wall-effects traverse, run {id}: vavg {}, VAVG {}, WAF {} (p = {}); {}.",
+                job.text(Kind::Velocity, w.unadjusted_mean_m_s),
+                job.text(Kind::Velocity, w.adjusted_mean_m_s),
+                fixed(w.factor, 4),
+                w.points_per_diameter,
+                sectors.join("; ")
+            )
+        })
+        .collect()
+}
+
 pub(super) fn deviations(job: &Job) -> Vec<String> {
     let s = job.survey();
     let mut out = Vec::new();
-    let excluded: Vec<String> = s
-        .runs
-        .iter()
-        .filter(|r| !run_is_valid(r, s.convention))
-        .map(|r| r.id.clone())
-        .collect();
-    if !excluded.is_empty() {
+    for (spec, v) in s.runs.iter().zip(&job.e.validity) {
+        if let Some(reason) = &v.void_reason {
+            out.push(format!(
+                "Run {} is void ({reason}): reported, left out of the average.",
+                spec.id
+            ));
+        }
+    }
+    let (valid, required) = (job.e.valid_runs(), job.e.runs_required());
+    if valid < required {
         out.push(format!(
-            "{} reported but left out of the average: post-run leak check failed or not recorded.",
-            super::capitalised(&run_range(&excluded))
+            "The test is short: {valid} valid run{} of {required} required.",
+            if valid == 1 { "" } else { "s" }
+        ));
+    } else if job.e.validity.iter().any(|v| !v.valid) {
+        out.push(format!(
+            "With the void runs replaced the test has {valid} valid runs of {required} required."
         ));
     }
     // a run-scope setting reads the same for every run: print it once
@@ -95,7 +157,14 @@ mod tests {
     fn excluded_runs_and_settings_are_deviations_printed_once() {
         let (e, a) = evaluated("bad-plane");
         let d = deviations(&Job::new(&e, &a));
-        assert!(d[0].starts_with("Run 2 reported but left out"), "{d:?}");
+        assert!(
+            d[0].starts_with("Run 2 is void (post-run leak check failed): reported, left out"),
+            "{d:?}"
+        );
+        assert!(
+            d[1].starts_with("The test is short: 1 valid run of 3 required"),
+            "{d:?}"
+        );
         // a run-scope check relaxed for every run is one deviation, not one per run
         let (e, a) = evaluated_text(
             "stack",

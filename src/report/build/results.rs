@@ -93,10 +93,79 @@ fn rows(job: &Job) -> Vec<ResultRow> {
             ),
         ),
     ];
+    rows.extend(run_conditions(job));
     for &kind in flow_kinds(job.trade) {
         rows.push(flow_row(job, kind));
     }
     rows.push(uncertainty_row(job));
+    rows
+}
+
+/// Each run's own conditions in its column (a run may give its own barometric and static pressure,
+/// composition and moisture), and whether the run counts. HVAC pages show the status only when a
+/// run is void.
+fn run_conditions(job: &Job) -> Vec<ResultRow> {
+    let e = job.e;
+    let blank_average = |mut v: Vec<String>| {
+        if e.average.is_some() {
+            v.push(String::new());
+        }
+        v
+    };
+    let per_run = |f: &dyn Fn(&crate::flow::RunResult) -> String| {
+        blank_average(e.runs.iter().map(f).collect())
+    };
+    let mut rows = Vec::new();
+    if e.validity.iter().any(|v| !v.valid) {
+        let mut values: Vec<String> = e
+            .validity
+            .iter()
+            .map(|v| if v.valid { "counts" } else { "VOID" }.to_string())
+            .collect();
+        if e.average.is_some() {
+            values.push(format!("{} runs", e.valid_runs()));
+        }
+        rows.push(ResultRow {
+            label: "Run status".into(),
+            unit: String::new(),
+            values,
+            si_unit: String::new(),
+            si_values: Vec::new(),
+        });
+    }
+    if job.trade == Trade::Hvac {
+        return rows;
+    }
+    rows.push(plain_row(
+        job,
+        "Barometric pressure",
+        Kind::Barometric,
+        per_run(&|r| job.number(Kind::Barometric, r.gas.barometric_pa)),
+    ));
+    rows.push(plain_row(
+        job,
+        "Static pressure",
+        Kind::StaticPressure,
+        per_run(&|r| job.number(Kind::StaticPressure, r.gas.static_pa)),
+    ));
+    rows.push(plain_row(
+        job,
+        "Dry molar mass Md",
+        Kind::MolarMass,
+        per_run(&|r| job.number(Kind::MolarMass, r.gas.dry_molar_mass_g_mol)),
+    ));
+    rows.push(plain_row(
+        job,
+        "Moisture Bws (used)",
+        Kind::Percent,
+        per_run(&|r| job.number(Kind::Percent, r.gas.bws)),
+    ));
+    rows.push(plain_row(
+        job,
+        "Wet molar mass Ms",
+        Kind::MolarMass,
+        per_run(&|r| job.number(Kind::MolarMass, r.gas.wet_molar_mass_g_mol)),
+    ));
     rows
 }
 
@@ -185,6 +254,11 @@ mod tests {
             [
                 "Mean gas temperature",
                 "Gas density",
+                "Barometric pressure",
+                "Static pressure",
+                "Dry molar mass Md",
+                "Moisture Bws (used)",
+                "Wet molar mass Ms",
                 "Mean velocity",
                 "Actual flow",
                 "Wet standard flow",
@@ -193,9 +267,9 @@ mod tests {
                 "Expanded uncertainty (95 %)"
             ]
         );
-        let dry = &t.rows[5];
+        let dry = &t.rows[10];
         assert_eq!(dry.unit, "dscfm");
-        assert_eq!(dry.values[3], "93,249", "as `compute` prints the average");
+        assert_eq!(dry.values[3], "93,147", "as `compute` prints the average");
         assert_eq!(dry.si_unit, "m³/h (SI)");
         assert_eq!(t.rows[0].unit, "°F");
         assert_eq!(t.rows[1].unit, "lb/ft³");
@@ -237,7 +311,7 @@ mod tests {
         }
         let (e, a) = evaluated("en-stack");
         let t = &section(&Job::new(&e, &a))[0];
-        assert_eq!(t.rows[5].unit, "dNm³/h");
+        assert_eq!(t.rows[10].unit, "dNm³/h");
     }
 
     #[test]

@@ -4,7 +4,6 @@
 use super::Job;
 use crate::display::{fixed, Kind};
 use crate::flow::{EpaForm, PointResult, RunResult};
-use crate::pipeline::run_is_valid;
 use crate::readings::{Dp, RunReadings};
 use crate::report::model::{FieldPoint, Plane, Quantity, ReadingRow, ReadingsColumns, RunData};
 use crate::survey::{LeakResult, NegativePolicy, RunSpec};
@@ -37,13 +36,17 @@ pub(super) fn section(job: &Job, plane: &Plane) -> Vec<RunData> {
         .iter()
         .zip(&s.runs)
         .zip(&job.e.loaded.runs)
-        .map(|((r, spec), (_, readings))| {
-            let valid = run_is_valid(spec, s.convention);
+        .zip(&job.e.validity)
+        .map(|(((r, spec), (_, readings)), v)| {
+            let valid = v.valid;
             RunData {
                 id: r.id.clone(),
-                label: format!("Run {}", r.id),
+                label: match &v.void_reason {
+                    Some(why) => format!("Run {} — VOID: {why}", r.id),
+                    None => format!("Run {}", r.id),
+                },
                 started: spec.started.clone().unwrap_or_default(),
-                ended: String::new(),
+                ended: spec.ended.clone().unwrap_or_default(),
                 leak_check: leak_check(job, spec),
                 readings: r
                     .points
@@ -120,7 +123,7 @@ fn reading_row(
         );
     }
     if !valid {
-        note.push("run excluded".into());
+        note.push("void run".into());
     }
     ReadingRow {
         line: p.line.clone(),

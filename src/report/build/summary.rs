@@ -6,7 +6,6 @@ use crate::assess::Verdict;
 use crate::checks::Status as CheckStatus;
 use crate::display::{fixed, grouped, Kind};
 use crate::flow::design::{flow_on_basis, Flows};
-use crate::pipeline::run_is_valid;
 use crate::report::model::{Design, Quantity, Status, Summary};
 use crate::units::FlowBasis;
 
@@ -122,22 +121,20 @@ fn design(job: &Job) -> Option<Design> {
 /// What the average is over, and which runs were left out and why.
 fn basis_text(job: &Job) -> String {
     let s = job.survey();
-    let excluded: Vec<String> = s
+    let void: Vec<String> = s
         .runs
         .iter()
-        .filter(|r| !run_is_valid(r, s.convention))
-        .map(|r| r.id.clone())
+        .zip(&job.e.validity)
+        .filter_map(|(r, v)| {
+            v.void_reason
+                .as_ref()
+                .map(|why| format!("run {} void: {why}", r.id))
+        })
         .collect();
     match &job.e.average {
-        Some(av) if excluded.is_empty() => format!("Average of {}", run_range(&av.runs)),
-        Some(av) => format!(
-            "Average of {}; {} excluded (post-run leak check failed or not recorded)",
-            run_range(&av.runs),
-            run_range(&excluded)
-        ),
-        None => {
-            "No valid run to average: every run's post-run leak check failed or is missing.".into()
-        }
+        Some(av) if void.is_empty() => format!("Average of {}", run_range(&av.runs)),
+        Some(av) => format!("Average of {}; {}", run_range(&av.runs), void.join("; ")),
+        None => format!("No valid run to average: {}", void.join("; ")),
     }
 }
 
@@ -162,7 +159,7 @@ mod tests {
             ]
         );
         // the average dry standard flow as `compute` prints it (tests/golden/compute-stack.txt)
-        assert_eq!(s.headline[0].value, "93,249 dscfm");
+        assert_eq!(s.headline[0].value, "93,147 dscfm");
         assert!(s.headline[0].si.ends_with(" m³/h"), "{}", s.headline[0].si);
         assert!(s.headline[2].value.ends_with(" ft/s"));
         assert_eq!(s.basis_text, "Average of runs 1, 2, 3");

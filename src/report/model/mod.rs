@@ -36,6 +36,9 @@ pub struct ReportData {
     /// Results per run and their average; several tables when there are many runs, so that each
     /// fits the page width.
     pub results: Vec<ResultsTable>,
+    /// Each run's moisture train (EPA Method 4) with every intermediate; empty when no run's
+    /// moisture is from a train.
+    pub moisture: Vec<ResultsTable>,
     pub plane: Plane,
     /// Column heads of the readings tables.
     pub readings: ReadingsColumns,
