@@ -27,6 +27,8 @@ fn annulus_cfg(dir: &Path, args: &[&str], config: &str) -> (i32, String, String)
         .args(args)
         .current_dir(dir)
         .env("NO_COLOR", "1")
+        // wide enough that no finding wraps: these tests read the words, not the layout
+        .env("COLUMNS", "400")
         .env("ANNULUS_CONFIG", config)
         .env_remove("SOURCE_DATE_EPOCH")
         .output()

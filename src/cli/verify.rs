@@ -213,7 +213,7 @@ fn table(name: &str, v: &Verification, ctx: &Ctx) -> String {
             v.verified_by
         );
     }
-    let mut t = Table::new(&["result", "part", "finding"]);
+    let mut t = Table::new(&["result", "part", "finding"]).wrap(&[2]);
     let content = match v.content {
         ContentState::Intact => v.content_words(),
         ContentState::Altered => format!(
@@ -263,7 +263,7 @@ fn table(name: &str, v: &Verification, ctx: &Ctx) -> String {
         ]);
     }
     out.push('\n');
-    out += &t.render();
+    out += &t.fit(ctx.width);
     if !v.changes.is_empty() {
         out += "\nwhat changed\n";
         for c in &v.changes {

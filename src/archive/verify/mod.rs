@@ -116,7 +116,7 @@ pub enum PagesBasis {
 impl PagesBasis {
     pub fn describe(self) -> &'static str {
         match self {
-            PagesBasis::Rerendered => "re-rendered from the embedded inputs",
+            PagesBasis::Rerendered => "a re-rendering from the embedded inputs",
             PagesBasis::SignedSeal => "the signed seal",
             PagesBasis::UnsignedSeal => {
                 "an unsigned seal only (it catches edits, but whoever edits can recompute it)"
@@ -269,10 +269,10 @@ impl Verification {
         v
     }
 
-    /// The content verdict in words: `intact (checked against the signed seal)` …
+    /// The content verdict in words: `intact, checked against the signed seal` …
     pub fn content_words(&self) -> String {
         match self.content {
-            ContentState::Intact => format!("intact (checked against {})", self.pages.describe()),
+            ContentState::Intact => format!("intact, checked against {}", self.pages.describe()),
             ContentState::Altered => format!(
                 "altered: {}",
                 self.changes

@@ -114,18 +114,8 @@ fn gas(job: &Job) -> Vec<Quantity> {
     // run's own are in its column of the results table.
     let per_run = s.runs.iter().any(|r| !r.conditions.is_empty())
         || job.e.runs.iter().any(|x| x.gas.bws != r.gas.bws);
-    let unless = if per_run {
-        " (unless a run gives its own)"
-    } else {
-        ""
-    };
-    let by_run = || {
-        Quantity::new(
-            "",
-            "per run: see each run's column of the results table",
-            "",
-        )
-    };
+    let unless = if per_run { " (survey default)" } else { "" };
+    let by_run = || Quantity::new("", "per run (results table)", "");
     let labelled = |mut q: Quantity, label: &str| {
         q.label = label.to_string();
         q
@@ -152,7 +142,7 @@ fn gas(job: &Job) -> Vec<Quantity> {
         )
     });
     let moisture = if per_run {
-        "per run: see each run's column of the results table".to_string()
+        "per run (results table)".to_string()
     } else {
         format!(
             "{} by volume ({})",
@@ -250,11 +240,11 @@ mod tests {
         // sample-data/stack: barometric = "29.62 inHg", static = "-0.85 inH2O"; runs 2 and 3 give
         // their own barometric pressure and every run has its Method 4 train, so the moisture
         // and molar masses are per run
-        let b = find(&c.gas, "Barometric pressure (unless a run gives its own)");
+        let b = find(&c.gas, "Barometric pressure (survey default)");
         assert_eq!(b.value, "29.62 inHg");
         assert!(!b.si.is_empty());
         assert_eq!(
-            find(&c.gas, "Static pressure (unless a run gives its own)").value,
+            find(&c.gas, "Static pressure (survey default)").value,
             "\u{2212}0.85 inH2O"
         );
         assert!(find(&c.gas, "Moisture Bws").value.starts_with("per run"));
