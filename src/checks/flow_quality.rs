@@ -6,8 +6,8 @@
 //! point results (layout order, Δp in Pa, angles in degrees). No files, no printing.
 
 use super::{
-    CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, RunView, Status,
-    Stricter, Subject, ALL, EPA, HVAC, ISO,
+    CheckDef, Finding, Group, Judge, LimitKind, LimitSpec, Rule, RunView, Status, Stricter,
+    Subject, ALL, EPA, HVAC, ISO,
 };
 use crate::display::{list, number, number_sig, percent, q, Kind, Text};
 use crate::flow::{EpaForm, PointResult};
@@ -21,30 +21,13 @@ const PRESSURE: LimitKind = LimitKind::Quantity(Kind::VelocityPressure);
 /// Comparisons of computed means with limits absorb floating-point noise of this size.
 const CMP_TOL: f64 = 1e-9;
 
-const fn spec(
-    key: &'static str,
-    text: &'static str,
-    v: f64,
-    kind: LimitKind,
-    stricter: Stricter,
-) -> LimitSpec {
-    LimitSpec {
-        key,
-        text,
-        default: LimitDefault::Fixed(v),
-        kind,
-        stricter,
-        quoting: &[],
-    }
-}
-
 pub static CYCLONIC_FLOW: CheckDef = CheckDef {
     id: "cyclonic-flow",
     group: Group::Flow,
     description: "mean null (yaw) angle over all points, unrotated points counting 0°",
     source: "EPA Method 1 (40 CFR 60 App. A-1) §11.4",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "mean |yaw| ≤ {}",
         20.0,
@@ -64,8 +47,8 @@ pub static RESULTANT_ANGLE: CheckDef = CheckDef {
     source: "EPA Method 1 (40 CFR 60 App. A-1) §11.5 alternative procedure (from memory)",
     criterion: "",
     limits: &[
-        spec("mean", "mean R ≤ {}", 20.0, ANGLE, Stricter::Lower),
-        spec("std_dev", "standard deviation of R ≤ {}", 10.0, ANGLE, Stricter::Lower),
+        LimitSpec::fixed("mean", "mean R ≤ {}", 20.0, ANGLE, Stricter::Lower),
+        LimitSpec::fixed("std_dev", "standard deviation of R ≤ {}", 10.0, ANGLE, Stricter::Lower),
     ],
     conventions: EPA,
     from_memory: true,
@@ -79,7 +62,7 @@ pub static EN15259_FLOW_ANGLE: CheckDef = CheckDef {
     description: "flow angle to the duct axis at every point (resultant of yaw and pitch where pitch is read)",
     source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "",
-    limits: &[spec("limit", "every point's flow angle < {}", 15.0, ANGLE, Stricter::Lower)],
+    limits: &[LimitSpec::fixed("limit", "every point's flow angle < {}", 15.0, ANGLE, Stricter::Lower)],
     conventions: ISO,
     from_memory: true,
     on_violation: Status::Fail,
@@ -105,7 +88,7 @@ pub static EN15259_MINIMUM_DP: CheckDef = CheckDef {
     description: "every pitot differential pressure above the EN 15259 minimum",
     source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "every Δp > {}",
         5.0,
@@ -124,7 +107,7 @@ pub static EN15259_VELOCITY_RATIO: CheckDef = CheckDef {
     description: "ratio of the highest to the lowest point velocity",
     source: "EN 15259 measurement-plane criteria (from memory)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "v_max/v_min < {}",
         3.0,
@@ -144,8 +127,8 @@ pub static DISTRIBUTION: CheckDef = CheckDef {
     source: "AMCA Publication 203 distribution rule, as restated in TAB procedures (AMCA wording from memory)",
     criterion: "no negative reading",
     limits: &[
-        spec("share", "more than {} of the readings", 0.75, FRACTION, Stricter::Higher),
-        spec("fraction_of_max", "above {} of the largest (a reading exactly there does not count)", 0.10, FRACTION, Stricter::Higher),
+        LimitSpec::fixed("share", "more than {} of the readings", 0.75, FRACTION, Stricter::Higher),
+        LimitSpec::fixed("fraction_of_max", "above {} of the largest (a reading exactly there does not count)", 0.10, FRACTION, Stricter::Higher),
     ],
     conventions: HVAC,
     from_memory: false,
@@ -174,9 +157,9 @@ pub static GAUGE_SENSITIVITY: CheckDef = CheckDef {
     source: "EPA Method 2 (40 CFR 60 App. A-1) §8.1 and Eq. 2-1 (K and T published; criteria limits from memory)",
     criterion: "",
     limits: &[
-        spec("mean_dp", "mean Δp ≥ {}", 0.05 * PA_PER_INH2O, PRESSURE, Stricter::Higher),
-        spec("fraction_below", "with 12 points or more at most {} of readings below it (fewer points: at most one)", 0.10, FRACTION, Stricter::Lower),
-        spec("t_factor", "otherwise T = Σ√(Δp+K)/Σ√Δp ≤ {}", 1.05, LimitKind::Number, Stricter::Lower),
+        LimitSpec::fixed("mean_dp", "mean Δp ≥ {}", 0.05 * PA_PER_INH2O, PRESSURE, Stricter::Higher),
+        LimitSpec::fixed("fraction_below", "with 12 points or more at most {} of readings below it (fewer points: at most one)", 0.10, FRACTION, Stricter::Lower),
+        LimitSpec::fixed("t_factor", "otherwise T = Σ√(Δp+K)/Σ√Δp ≤ {}", 1.05, LimitKind::Number, Stricter::Lower),
     ],
     conventions: EPA,
     from_memory: true,
@@ -190,7 +173,7 @@ pub static METHOD_2F_VELOCITY: CheckDef = CheckDef {
     description: "Method 2F (yaw and pitch correction) is used only at or above the method's minimum average velocity",
     source: "EPA Method 2F (40 CFR 60 App. A-2) §1.2",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "mean velocity ≥ {}",
         20.0 * 0.3048,
@@ -210,7 +193,7 @@ pub static LINE_ASYMMETRY: CheckDef = CheckDef {
         "spread of the traverse lines' mean velocities (a skewed profile or a changing flow)",
     source: "common practice (indicator, threshold not from a standard)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "(highest − lowest line mean)/plane mean ≤ {}",
         0.10,
@@ -230,7 +213,7 @@ pub static OFF_CENTRE_PEAK: CheckDef = CheckDef {
         "where each line's highest velocity sits (a peak near a wall suggests a disturbed profile)",
     source: "common practice (indicator, threshold not from a standard)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "each line's peak within {} of the line length from the centre",
         0.25,

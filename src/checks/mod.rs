@@ -183,6 +183,26 @@ pub struct LimitSpec {
     pub quoting: &'static [(Kind, f64)],
 }
 
+impl LimitSpec {
+    /// A limit with a fixed default and no quoted quantities (most checks' limits).
+    pub const fn fixed(
+        key: &'static str,
+        text: &'static str,
+        v: f64,
+        kind: LimitKind,
+        stricter: Stricter,
+    ) -> LimitSpec {
+        LimitSpec {
+            key,
+            text,
+            default: LimitDefault::Fixed(v),
+            kind,
+            stricter,
+            quoting: &[],
+        }
+    }
+}
+
 /// Judges a survey-scope check.
 pub type SurveyCheck = fn(&Rule, &Subject) -> Vec<Finding>;
 /// Judges a run-scope check for one run.

@@ -9,8 +9,8 @@
 //! No files, no printing.
 
 use super::{
-    CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, RunView, Status,
-    Stricter, Subject, ALL, EPA, HVAC, STACK,
+    CheckDef, Finding, Group, Judge, LimitKind, LimitSpec, Rule, RunView, Status, Stricter,
+    Subject, ALL, EPA, HVAC, STACK,
 };
 use crate::display::{list, number, percent, q, Kind, Text};
 use crate::flow::wall_effects::{DremSource, MIN_WALL_POINTS};
@@ -23,30 +23,13 @@ const LENGTH: LimitKind = LimitKind::Quantity(Kind::Length);
 const VOLUME: LimitKind = LimitKind::Quantity(Kind::GasVolume);
 const CMP_TOL: f64 = 1e-9;
 
-const fn spec(
-    key: &'static str,
-    text: &'static str,
-    v: f64,
-    kind: LimitKind,
-    stricter: Stricter,
-) -> LimitSpec {
-    LimitSpec {
-        key,
-        text,
-        default: LimitDefault::Fixed(v),
-        kind,
-        stricter,
-        quoting: &[],
-    }
-}
-
 pub static POINT_OUTLIER: CheckDef = CheckDef {
     id: "point-outlier",
     group: Group::Data,
     description: "a single Δp far out of line with its neighbours on the same line (a slipped decimal point or a mis-keyed reading)",
     source: "common practice (data plausibility: velocity profiles change gradually from point to point)",
     criterion: "an inner point against both neighbours, an end point against the one beside it (higher only)",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "ratio",
         "no Δp more than {} times its neighbours' (or less than its reciprocal)",
         4.0,
@@ -65,7 +48,7 @@ pub static DP_RESOLUTION: CheckDef = CheckDef {
     description: "each Δp reading spans enough steps of the gauge's resolution to be read to a few percent",
     source: "common practice (a reading of n resolution steps carries up to ±1/(2n) from the resolution alone)",
     criterion: "the resolution is [instruments.dp] resolution, else the step the readings were written to",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "steps",
         "every non-zero reading ≥ {} resolution steps",
         10.0,
@@ -85,8 +68,8 @@ pub static GEOMETRY_RANGE_STACK: CheckDef = CheckDef {
     source: "common practice (stacks traversed by Method 1 are 12 in and larger; the widest are about 50 ft)",
     criterion: "",
     limits: &[
-        spec("minimum", "(equivalent) diameter ≥ {}", 0.3, LENGTH, Stricter::Higher),
-        spec("maximum", "and ≤ {}", 15.0, LENGTH, Stricter::Lower),
+        LimitSpec::fixed("minimum", "(equivalent) diameter ≥ {}", 0.3, LENGTH, Stricter::Higher),
+        LimitSpec::fixed("maximum", "and ≤ {}", 15.0, LENGTH, Stricter::Lower),
     ],
     conventions: STACK,
     from_memory: false,
@@ -101,8 +84,8 @@ pub static GEOMETRY_RANGE_HVAC: CheckDef = CheckDef {
     source: "common practice (HVAC ducts from 4 in to about 16 ft)",
     criterion: "",
     limits: &[
-        spec("minimum", "(equivalent) diameter ≥ {}", 0.1, LENGTH, Stricter::Higher),
-        spec("maximum", "and ≤ {}", 5.0, LENGTH, Stricter::Lower),
+        LimitSpec::fixed("minimum", "(equivalent) diameter ≥ {}", 0.1, LENGTH, Stricter::Higher),
+        LimitSpec::fixed("maximum", "and ≤ {}", 5.0, LENGTH, Stricter::Lower),
     ],
     conventions: HVAC,
     from_memory: false,
@@ -117,8 +100,8 @@ pub static GAS_COMPOSITION: CheckDef = CheckDef {
     source: "common practice (burning fuel in air turns O2 into CO2 and water: CO2 + O2 stays at or below air's 20.9 %, and CO2 below about 20 %; calcining kilns and oxygen-enriched firing exceed it and need a reason)",
     criterion: "",
     limits: &[
-        spec("co2", "CO2 ≤ {}", 0.20, FRACTION, Stricter::Lower),
-        spec("o2_plus_co2", "O2 + CO2 ≤ {}", 0.21, FRACTION, Stricter::Lower),
+        LimitSpec::fixed("co2", "CO2 ≤ {}", 0.20, FRACTION, Stricter::Lower),
+        LimitSpec::fixed("o2_plus_co2", "O2 + CO2 ≤ {}", 0.21, FRACTION, Stricter::Lower),
     ],
     conventions: STACK,
     from_memory: false,
@@ -132,7 +115,7 @@ pub static MOISTURE_SATURATION: CheckDef = CheckDef {
     description: "the measured or given moisture against saturation at the stack temperature (the lower is used)",
     source: "EPA Method 4 (40 CFR 60 App. A-3) §12.1.7: in saturated gas the lower of the train value and saturation is used (clause number from memory)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "far",
         "a value more than {} times saturation is named as a likely error",
         1.25,
@@ -151,7 +134,7 @@ pub static METHOD4_SAMPLE_VOLUME: CheckDef = CheckDef {
     description: "a Method 4 train metered at least the method's minimum dry gas volume",
     source: "EPA Method 4 (40 CFR 60 App. A-3) §8.1: at least 0.60 dscm (21 dscf) at standard conditions",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "minimum",
         "Vm(std) ≥ {}",
         0.60,
@@ -183,7 +166,7 @@ pub static METHOD_2H_DEFAULT_POINTS: CheckDef = CheckDef {
     description: "the Method 2H default wall factor is used on a traverse of no more than 16 points",
     source: "EPA Method 2H (40 CFR 60 App. A-2) §2.2.2 defaults, derived from 16-point traverses; EPA guidance that more points may over-correct (from memory)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "maximum_points",
         "Method 1 points ≤ {}",
         16.0,
@@ -202,7 +185,7 @@ pub static METHOD_2H_WALL_TRAVERSE: CheckDef = CheckDef {
     description: "the wall-effects traverse behind a calculated Method 2H factor",
     source: "EPA Method 2H (40 CFR 60 App. A-2) §2.2.1, §8.2: at least eight wall-effects points, 1 in (2.5 cm) apart from the wall",
     criterion: "velocity at drem measured, not stood in for",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "minimum_points",
         "≥ {} wall-effects points per traverse",
         MIN_WALL_POINTS as f64,

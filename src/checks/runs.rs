@@ -6,8 +6,8 @@
 //! [`RunView::valid`]); the leak-check finding only explains it. No files, no printing.
 
 use super::{
-    CheckDef, Finding, Group, Judge, LimitDefault, LimitKind, LimitSpec, Rule, RunView, Status,
-    Stricter, Subject, ALL, EPA, HVAC, STACK,
+    CheckDef, Finding, Group, Judge, LimitKind, LimitSpec, Rule, RunView, Status, Stricter,
+    Subject, ALL, EPA, HVAC, STACK,
 };
 use crate::display::{number, percent, q, Kind, Text};
 use crate::layout::advisor::{EPA_MIN_AREA_M2, EPA_MIN_DIAMETER_M};
@@ -19,23 +19,6 @@ const SPREAD: LimitKind = LimitKind::Quantity(Kind::TemperatureDifference);
 const FRACTION: LimitKind = LimitKind::Quantity(Kind::Percent);
 /// EPA Method 1A lower size limit, 4 in (Method 1A §1.2).
 const METHOD_1A_MIN_M: f64 = 4.0 * 0.0254;
-
-const fn spec(
-    key: &'static str,
-    text: &'static str,
-    v: f64,
-    kind: LimitKind,
-    stricter: Stricter,
-) -> LimitSpec {
-    LimitSpec {
-        key,
-        text,
-        default: LimitDefault::Fixed(v),
-        kind,
-        stricter,
-        quoting: &[],
-    }
-}
 
 pub static LEAK_CHECK: CheckDef = CheckDef {
     id: "leak-check",
@@ -70,15 +53,15 @@ pub static STACK_TEMPERATURE_RANGE: CheckDef = CheckDef {
     source: "common practice (plausibility: catches unit slips such as °C written as °F)",
     criterion: "",
     limits: &[
-        spec(
+        LimitSpec::fixed(
             "minimum",
             "every point ≥ {}",
             253.15,
             TEMPERATURE,
             Stricter::Higher,
         ),
-        spec("maximum", "and ≤ {}", 1073.15, TEMPERATURE, Stricter::Lower),
-        spec(
+        LimitSpec::fixed("maximum", "and ≤ {}", 1073.15, TEMPERATURE, Stricter::Lower),
+        LimitSpec::fixed(
             "spread",
             "warning when points differ by more than {}",
             50.0,
@@ -100,15 +83,15 @@ pub static AIR_TEMPERATURE_RANGE: CheckDef = CheckDef {
     source: "common practice (plausibility: catches unit slips such as °C written as °F)",
     criterion: "",
     limits: &[
-        spec(
+        LimitSpec::fixed(
             "minimum",
             "every point ≥ {}",
             233.15,
             TEMPERATURE,
             Stricter::Higher,
         ),
-        spec("maximum", "and ≤ {}", 353.15, TEMPERATURE, Stricter::Lower),
-        spec(
+        LimitSpec::fixed("maximum", "and ≤ {}", 353.15, TEMPERATURE, Stricter::Lower),
+        LimitSpec::fixed(
             "spread",
             "warning when points differ by more than {}",
             20.0,
@@ -128,7 +111,7 @@ pub static RUN_AGREEMENT: CheckDef = CheckDef {
     description: "relative standard deviation of the valid runs' actual flow",
     source: "common practice (no published limit for traverse runs)",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "relative standard deviation ≤ {}",
         0.05,
@@ -148,7 +131,7 @@ pub static STEADY_FLOW_METHOD_1A: CheckDef = CheckDef {
         "small-duct (Method 1A) velocity traverses before and after agree, showing steady flow",
     source: "EPA Method 1A (40 CFR 60 App. A-1) steady-flow requirement",
     criterion: "",
-    limits: &[spec(
+    limits: &[LimitSpec::fixed(
         "limit",
         "each traverse within ±{} of the one before",
         0.10,
