@@ -417,19 +417,13 @@ fn quantity(kind: Kind, si: f64, plus_minus: bool) -> AssumedValue {
     }
 }
 
-/// The budget inputs of one run and, for the record, where each came from.
-fn run_inputs(
-    eval: &Evaluation,
-    view: &RunView,
-    ins: &Instruments,
-) -> (RunUncertaintyInputs, Vec<Assumption>) {
-    let survey = &eval.loaded.survey;
-    let result = view.result;
-    let hvac = survey.convention.is_hvac();
-    let root3 = 3f64.sqrt();
-    let mut used = Vec::new();
-    let mut note = |input: &'static str, value: AssumedValue, stated: bool, default_basis: &str| {
-        used.push(Assumption {
+/// The assumptions behind a run's budget, in the order the inputs are met.
+struct Notes(Vec<Assumption>);
+
+impl Notes {
+    /// Records one input: stated in `[instruments]`, or a default on `default_basis`.
+    fn add(&mut self, input: &'static str, value: AssumedValue, stated: bool, default_basis: &str) {
+        self.0.push(Assumption {
             input,
             value,
             basis: if stated {
@@ -438,8 +432,16 @@ fn run_inputs(
                 format!("default: {default_basis}")
             },
         });
-    };
+    }
+}
 
+/// The pitot coefficient's expanded uncertainty and coverage factor, from `[instruments.pitot]`
+/// or the default for the probe kind, with the words of its basis.
+fn pitot_coefficient(
+    survey: &crate::survey::Survey,
+    ins: &Instruments,
+    notes: &mut Notes,
+) -> (f64, f64, String) {
     let (cp_big_u, cp_k, cp_stated) = match ins.pitot.coefficient_uncertainty {
         Some(u) => (
             u,
@@ -468,7 +470,7 @@ fn run_inputs(
             ", default for a standard pitot (common practice)"
         }
     );
-    note(
+    notes.add(
         "pitot coefficient",
         words(format!(
             "U = {} % (k = {})",
@@ -482,31 +484,11 @@ fn run_inputs(
             "a standard pitot (common practice)"
         },
     );
+    (cp_big_u, cp_k, cp_basis)
+}
 
-    let dp_acc = ins.dp.accuracy_fraction.unwrap_or(defaults::DP_ACCURACY);
-    note(
-        "dp accuracy",
-        words(format!("±{} % of reading", checks::num(dp_acc * 100.0))),
-        ins.dp.accuracy_fraction.is_some(),
-        "common practice for a calibrated gauge",
-    );
-    let step = recording_step_pa(result, view.readings, view.dp_unit);
-    let resolution = ins.dp.resolution_pa.unwrap_or(step);
-    note(
-        "dp resolution",
-        quantity(Kind::VelocityPressure, resolution, false),
-        ins.dp.resolution_pa.is_some(),
-        "the last recorded decimal of the readings",
-    );
-    let zero = ins.dp.zero_pa.unwrap_or(resolution / 2.0);
-    note(
-        "dp zero",
-        quantity(Kind::VelocityPressure, zero, true),
-        ins.dp.zero_pa.is_some(),
-        "half a resolution step (common practice: a zeroed gauge reads zero to its last digit)",
-    );
-
-    let t = result.mean_temperature_k;
+/// The bound of the gas temperature's error (K) at the run's mean temperature `t`.
+fn temperature_bound(t: f64, hvac: bool, ins: &Instruments, notes: &mut Notes) -> f64 {
     let (t_bound, t_text, t_basis) = match ins.thermometer.accuracy {
         Some(TemperatureAccuracy::Kelvin(a)) => {
             (a, quantity(Kind::TemperatureDifference, a, true), "")
@@ -531,15 +513,57 @@ fn run_inputs(
             "EPA Method 2 §6.3 sensor requirement (from memory)",
         ),
     };
-    note(
+    notes.add(
         "gas temperature",
         t_text,
         ins.thermometer.accuracy.is_some(),
         t_basis,
     );
+    t_bound
+}
+
+/// The budget inputs of one run and, for the record, where each came from.
+fn run_inputs(
+    eval: &Evaluation,
+    view: &RunView,
+    ins: &Instruments,
+) -> (RunUncertaintyInputs, Vec<Assumption>) {
+    let survey = &eval.loaded.survey;
+    let result = view.result;
+    let hvac = survey.convention.is_hvac();
+    let root3 = 3f64.sqrt();
+    let mut notes = Notes(Vec::new());
+
+    let (cp_big_u, cp_k, cp_basis) = pitot_coefficient(survey, ins, &mut notes);
+
+    let dp_acc = ins.dp.accuracy_fraction.unwrap_or(defaults::DP_ACCURACY);
+    notes.add(
+        "dp accuracy",
+        words(format!("±{} % of reading", checks::num(dp_acc * 100.0))),
+        ins.dp.accuracy_fraction.is_some(),
+        "common practice for a calibrated gauge",
+    );
+    let step = recording_step_pa(result, view.readings, view.dp_unit);
+    let resolution = ins.dp.resolution_pa.unwrap_or(step);
+    notes.add(
+        "dp resolution",
+        quantity(Kind::VelocityPressure, resolution, false),
+        ins.dp.resolution_pa.is_some(),
+        "the last recorded decimal of the readings",
+    );
+    let zero = ins.dp.zero_pa.unwrap_or(resolution / 2.0);
+    notes.add(
+        "dp zero",
+        quantity(Kind::VelocityPressure, zero, true),
+        ins.dp.zero_pa.is_some(),
+        "half a resolution step (common practice: a zeroed gauge reads zero to its last digit)",
+    );
+
+    let t = result.mean_temperature_k;
+    let t_bound = temperature_bound(t, hvac, ins, &mut notes);
 
     let bar = ins.barometer.accuracy_pa.unwrap_or(defaults::BAROMETER_PA);
-    note(
+    notes.add(
         "barometric pressure",
         quantity(Kind::Barometric, bar, true),
         ins.barometer.accuracy_pa.is_some(),
@@ -550,7 +574,7 @@ fn run_inputs(
         },
     );
     let stat = ins.static_gauge.accuracy_pa.unwrap_or(defaults::STATIC_PA);
-    note(
+    notes.add(
         "static pressure",
         quantity(Kind::StaticPressure, stat, true),
         ins.static_gauge.accuracy_pa.is_some(),
@@ -561,7 +585,7 @@ fn run_inputs(
     } else {
         defaults::STACK_MOLAR_MASS_U
     });
-    note(
+    notes.add(
         "gas composition and moisture",
         words(format!(
             "u = {} % of the wet molar mass",
@@ -575,7 +599,7 @@ fn run_inputs(
         },
     );
     let tape = ins.tape.accuracy_m.unwrap_or(defaults::TAPE_M);
-    note(
+    notes.add(
         "duct dimensions",
         quantity(Kind::Length, tape, true),
         ins.tape.accuracy_m.is_some(),
@@ -588,7 +612,7 @@ fn run_inputs(
         }
     };
     let spatial = ins.spatial_method.unwrap_or(SpatialMethod::Scatter);
-    note(
+    notes.add(
         "spatial integration",
         words(spatial.name().to_string()),
         ins.spatial_method.is_some(),
@@ -599,7 +623,7 @@ fn run_inputs(
         let u = ins
             .wall_factor_u_rel
             .unwrap_or(defaults::WALL_FACTOR_BOUND / root3);
-        note(
+        notes.add(
             "wall factor",
             words(format!("u = {} %", checks::num(u * 100.0))),
             ins.wall_factor_u_rel.is_some(),
@@ -610,7 +634,7 @@ fn run_inputs(
         0.0
     };
     let positioning = ins.positioning_u_rel.unwrap_or(defaults::POSITIONING_U);
-    note(
+    notes.add(
         "probe positioning",
         words(format!(
             "u = {} % of the mean velocity",
@@ -644,7 +668,7 @@ fn run_inputs(
         positioning_u_rel: positioning,
         extra: Vec::new(),
     };
-    (inputs, used)
+    (inputs, notes.0)
 }
 
 #[cfg(test)]

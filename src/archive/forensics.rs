@@ -52,22 +52,32 @@ struct Effect {
     dry_only: f64,
 }
 
+/// Records a mistake whose actual-flow factor is its velocity factor.
+fn add(
+    v: &mut Vec<Effect>,
+    id: &'static str,
+    description: String,
+    velocity: f64,
+    standard: f64,
+    dry_only: f64,
+) {
+    v.push(Effect {
+        id,
+        description,
+        velocity,
+        actual: velocity,
+        standard,
+        dry_only,
+    })
+}
+
 fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<Effect> {
     let mut v = Vec::new();
-    let mut add = |id, description: String, velocity: f64, standard: f64, dry_only: f64| {
-        v.push(Effect {
-            id,
-            description,
-            velocity,
-            actual: velocity,
-            standard,
-            dry_only,
-        })
-    };
     // 1. √(mean Δp) instead of the mean of √Δp
     if r.mean_sqrt_dp_pa > 0.0 {
         let f = r.sqrt_mean_dp_pa / r.mean_sqrt_dp_pa;
         add(
+            &mut v,
             "sqrt-of-mean-dp",
             "averaged Δp before taking the square root (√ of mean Δp)".into(),
             f,
@@ -75,6 +85,14 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
             1.0,
         );
     }
+    temperature_effects(&mut v, r, form, conv);
+    pressure_and_probe_effects(&mut v, s);
+    gas_and_area_effects(&mut v, s, r);
+    v
+}
+
+/// Mistakes 2 and 3: the absolute-temperature offset and another rule book's standard temperature.
+fn temperature_effects(v: &mut Vec<Effect>, r: &RunResult, form: EpaForm, conv: ConventionId) {
     // 2. absolute temperature offset: 459.67 vs 460, 273.15 vs 273
     let (ts, off, name) = match (conv, form) {
         (ConventionId::EpaMethod2, EpaForm::English) => (
@@ -97,6 +115,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
     };
     let t2 = ts + off;
     add(
+        v,
         "absolute-temperature-offset",
         name.into(),
         (t2 / ts).sqrt(),
@@ -134,6 +153,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
     ] {
         if (t - tref_k).abs() > 0.2 {
             add(
+                v,
                 id,
                 format!("{label} instead of the convention's"),
                 1.0,
@@ -142,6 +162,10 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
             );
         }
     }
+}
+
+/// Mistakes 4 and 5: the static pressure mis-converted or left out, a nominal pitot coefficient.
+fn pressure_and_probe_effects(v: &mut Vec<Effect>, s: &Survey) {
     // 4. static pressure: added in inH2O as if inHg (no ÷13.6), or left out
     let pbar = s.gas.barometric_pa;
     let pg = s.gas.static_pa;
@@ -150,6 +174,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
         let wrong = pbar + pg * 13.6;
         if wrong > 0.0 {
             add(
+                v,
                 "static-without-13.6",
                 "static pressure added without the ÷13.6 water-to-mercury conversion".into(),
                 (p / wrong).sqrt(),
@@ -158,6 +183,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
             );
         }
         add(
+            v,
             "static-ignored",
             "static pressure left out of the absolute stack pressure".into(),
             (p / pbar).sqrt(),
@@ -173,6 +199,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
     if (nominal - s.probe.coefficient).abs() > 1e-6 {
         let f = nominal / s.probe.coefficient;
         add(
+            v,
             "nominal-cp",
             format!(
                 "nominal Cp {nominal} instead of the calibrated {}",
@@ -183,9 +210,14 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
             1.0,
         );
     }
+}
+
+/// Mistakes 6 to 9: wet for dry, the wall factor left out, the molar mass, the liner missed.
+fn gas_and_area_effects(v: &mut Vec<Effect>, s: &Survey, r: &RunResult) {
     // 7. wet and dry basis swapped
     if r.gas.bws > 0.0 {
         add(
+            v,
             "wet-for-dry",
             "wet-basis standard flow reported as dry".into(),
             1.0,
@@ -197,6 +229,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
     if r.wall_factor != 1.0 {
         let f = 1.0 / r.wall_factor;
         add(
+            v,
             "missing-wall-factor",
             format!("wall-effects factor {} left out", r.wall_factor),
             f,
@@ -211,6 +244,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
     if (ms29 - ms).abs() > 1e-3 {
         let f = (ms / ms29).sqrt();
         add(
+            v,
             "molecular-weight-29",
             "Md of 29.0 (air) instead of the measured composition".into(),
             f,
@@ -221,6 +255,7 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
     if bws > 0.0 {
         let f = (ms / r.gas.dry_molar_mass_g_mol).sqrt();
         add(
+            v,
             "dry-molecular-weight",
             "dry Md used where the wet Ms belongs".into(),
             f,
@@ -247,7 +282,6 @@ fn effects(s: &Survey, r: &RunResult, form: EpaForm, conv: ConventionId) -> Vec<
             dry_only: 1.0,
         });
     }
-    v
 }
 
 fn factor(q: Quantity, e: &Effect) -> f64 {

@@ -276,34 +276,7 @@ pub fn compute_run(
 ) -> Result<RunResult, FlowError> {
     let id = spec.id.as_str();
     let run_gas = survey.gas_for(spec);
-    // Readings in layout order.
-    let mut ordered: Vec<(&crate::layout::Point, &Reading)> =
-        Vec::with_capacity(layout.total_points());
-    for p in layout.points() {
-        let r = readings
-            .readings
-            .iter()
-            .find(|r| r.line == p.line && r.point == p.point)
-            .ok_or_else(|| FlowError::Reading {
-                line: p.line.clone(),
-                point: p.point,
-                source_line: 0,
-                message: "no reading is given".into(),
-                hint: "every traverse point needs a reading".into(),
-            })?;
-        ordered.push((p, r));
-    }
-    let mut temps = Vec::with_capacity(ordered.len());
-    for (_, r) in &ordered {
-        let t = r.temperature_k.or(run_gas.temperature_k).ok_or_else(|| {
-            reading_err(
-                r,
-                "no temperature is given".into(),
-                "add a temperature[…] column, or temperature to [gas] or the [[run]]",
-            )
-        })?;
-        temps.push(t);
-    }
+    let (ordered, temps) = ordered_readings(layout, readings, &run_gas)?;
     let weights: Vec<f64> = ordered.iter().map(|(p, _)| p.weight).collect();
     let mean_t = wmean(temps.iter().copied().zip(weights.iter().copied()));
     let gas = resolve_gas(&run_gas, convention, mean_t)?;
@@ -398,28 +371,7 @@ pub fn compute_run(
             });
             (v, q_std, rho_mean * q_act)
         }
-        ConventionId::Iso16911 => {
-            let v = point_mean_v * waf;
-            let v_over_t = wmean(
-                points
-                    .iter()
-                    .map(|p| p.velocity_m_s / p.temperature_k)
-                    .zip(w()),
-            );
-            let q_std = area
-                * waf
-                * v_over_t
-                * (convention.reference_temperature_k / convention.reference_pressure_pa)
-                * gas.absolute_pressure_pa;
-            let flux = wmean(
-                points
-                    .iter()
-                    .zip(&rho_i)
-                    .map(|(p, r)| p.velocity_m_s * r)
-                    .zip(w()),
-            );
-            (v, q_std, flux * area * waf)
-        }
+        ConventionId::Iso16911 => iso_flows(&points, &rho_i, &weights, area, waf, convention, &gas),
         ConventionId::HvacIp | ConventionId::HvacSi => {
             let v = point_mean_v * waf;
             let m = rho_mean * v * area;
@@ -465,6 +417,80 @@ pub fn compute_run(
         }),
         gas,
     })
+}
+
+/// Each traverse point with its reading, in layout order.
+type Ordered<'a> = Vec<(&'a crate::layout::Point, &'a Reading)>;
+
+/// The readings in layout order, each with its temperature (the reading's own, or the run's).
+fn ordered_readings<'a>(
+    layout: &'a Layout,
+    readings: &'a RunReadings,
+    run_gas: &crate::survey::Gas,
+) -> Result<(Ordered<'a>, Vec<f64>), FlowError> {
+    // Readings in layout order.
+    let mut ordered: Vec<(&crate::layout::Point, &Reading)> =
+        Vec::with_capacity(layout.total_points());
+    for p in layout.points() {
+        let r = readings
+            .readings
+            .iter()
+            .find(|r| r.line == p.line && r.point == p.point)
+            .ok_or_else(|| FlowError::Reading {
+                line: p.line.clone(),
+                point: p.point,
+                source_line: 0,
+                message: "no reading is given".into(),
+                hint: "every traverse point needs a reading".into(),
+            })?;
+        ordered.push((p, r));
+    }
+    let mut temps = Vec::with_capacity(ordered.len());
+    for (_, r) in &ordered {
+        let t = r.temperature_k.or(run_gas.temperature_k).ok_or_else(|| {
+            reading_err(
+                r,
+                "no temperature is given".into(),
+                "add a temperature[…] column, or temperature to [gas] or the [[run]]",
+            )
+        })?;
+        temps.push(t);
+    }
+    Ok((ordered, temps))
+}
+
+/// EN ISO 16911-1 style: the mean point velocity, the standard flow from the mean of v/T, and the
+/// mass flow from the mean of ρ·v, each times the wall factor: (velocity, standard flow, mass flow).
+fn iso_flows(
+    points: &[PointResult],
+    rho_i: &[f64],
+    weights: &[f64],
+    area: f64,
+    waf: f64,
+    convention: &Convention,
+    gas: &GasState,
+) -> (f64, f64, f64) {
+    let w = || weights.iter().copied();
+    let v = wmean(points.iter().map(|p| p.velocity_m_s).zip(w())) * waf;
+    let v_over_t = wmean(
+        points
+            .iter()
+            .map(|p| p.velocity_m_s / p.temperature_k)
+            .zip(w()),
+    );
+    let q_std = area
+        * waf
+        * v_over_t
+        * (convention.reference_temperature_k / convention.reference_pressure_pa)
+        * gas.absolute_pressure_pa;
+    let flux = wmean(
+        points
+            .iter()
+            .zip(rho_i)
+            .map(|(p, r)| p.velocity_m_s * r)
+            .zip(w()),
+    );
+    (v, q_std, flux * area * waf)
 }
 
 /// EPA Method 2 eq. 2-9: vs = Kp·Cp·(√Δp)avg·√(Ts/(Ps·Ms)), in the form's units.
