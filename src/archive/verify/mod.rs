@@ -323,6 +323,144 @@ pub fn verify_bytes(pdf: &[u8]) -> Result<Verification, NotAReport> {
     verify(pdf, &options)
 }
 
+/// An incremental update or bytes appended after the report's end of file, as a change.
+fn appended_revisions(doc: &Pdf) -> Option<ContentChange> {
+    let revisions = doc.revisions();
+    if revisions.single() {
+        return None;
+    }
+    let what = if revisions.appended() > 0 {
+        format!(
+            "an incremental update appended after the report's end of file ({} bytes, {} cross-reference section{})",
+            revisions.appended(),
+            revisions.sections,
+            if revisions.sections == 1 { "" } else { "s" }
+        )
+    } else {
+        format!(
+            "{} bytes appended after the report's end of file",
+            revisions.trailing
+        )
+    };
+    Some(ContentChange {
+        found_by: "file structure",
+        what,
+    })
+}
+
+/// Reads the seal (or, in the first format, the manifest's own signature): the state of its
+/// signature and the parts it records; what does not match goes into `changes`.
+#[allow(clippy::too_many_arguments)]
+fn check_seal(
+    seal_bytes: Option<&[u8]>,
+    manifest: Option<&Manifest>,
+    manifest_bytes: &[u8],
+    signature_bytes: Option<&[u8]>,
+    manifest_sha256: &str,
+    actual: &DocumentParts,
+    v2: bool,
+    changes: &mut Vec<ContentChange>,
+) -> (SealSignatureState, Option<DocumentParts>) {
+    let mut seal_state = SealSignatureState::Unsigned;
+    let mut sealed_parts: Option<DocumentParts> = None;
+    match seal_bytes.map(Seal::parse) {
+        None if v2 || manifest.is_none() => changes.push(ContentChange {
+            found_by: "seal",
+            what: format!("the document seal `{SEAL_NAME}` was removed: no page is covered"),
+        }),
+        None => {
+            // first format: the manifest's own signature, if any
+            if let (Some(b), Some(m)) = (signature_bytes, manifest) {
+                seal_state = match Signature::parse(b) {
+                    Some(s) if s.verifies(manifest_bytes) => match s.public() {
+                        Some(k) => SealSignatureState::Valid(k),
+                        None => SealSignatureState::Invalid("the recorded key is damaged".into()),
+                    },
+                    Some(_) => SealSignatureState::Invalid(
+                        "the manifest signature does not match this manifest".into(),
+                    ),
+                    None => SealSignatureState::Invalid(format!(
+                        "`{SIGNATURE_NAME}` is not a readable signature record"
+                    )),
+                };
+                let _ = m;
+            }
+        }
+        Some(None) => {
+            seal_state = SealSignatureState::Invalid("the seal cannot be read".into());
+            changes.push(ContentChange {
+                found_by: "seal",
+                what: format!("the document seal `{SEAL_NAME}` is not readable"),
+            });
+        }
+        Some(Some(seal)) => {
+            seal_state = seal.signature_state();
+            if seal.payload.format != SEAL_FORMAT {
+                changes.push(ContentChange {
+                    found_by: "seal",
+                    what: format!(
+                        "the seal's format `{}` is not `{SEAL_FORMAT}`",
+                        seal.payload.format
+                    ),
+                });
+            }
+            if seal.payload.manifest_sha256 != *manifest_sha256 {
+                changes.push(ContentChange {
+                    found_by: "seal",
+                    what: format!(
+                        "the manifest is not the one the seal records (the seal belongs to report {})",
+                        super::manifest::id_of(&seal.payload.manifest_sha256)
+                    ),
+                });
+            }
+            for c in compare(&seal.payload.document, actual) {
+                changes.push(ContentChange {
+                    found_by: "seal",
+                    what: c.to_string(),
+                });
+            }
+            sealed_parts = Some(seal.payload.document);
+        }
+    }
+    (seal_state, sealed_parts)
+}
+
+/// The verdict on a document whose manifest is embedded but cannot be read.
+fn unreadable_manifest(
+    embedded: &[crate::report::EmbeddedFile],
+    changes: Vec<ContentChange>,
+    signature: SignatureReport,
+) -> Verification {
+    let mut v = Verification::damaged(String::new());
+    v.damage = None;
+    v.content = ContentState::Altered;
+    v.manifest_problem = Some(format!(
+        "`{MANIFEST_NAME}` is embedded but is not a readable annulus manifest"
+    ));
+    v.changes = changes;
+    v.files = embedded
+        .iter()
+        .filter(|f| ![MANIFEST_NAME, SIGNATURE_NAME, SEAL_NAME].contains(&f.name.as_str()))
+        .map(|f| FileCheck {
+            name: f.name.clone(),
+            role: None,
+            state: FileState::Unlisted {
+                sha256: sha256_hex(&f.bytes),
+                bytes: f.bytes.len(),
+            },
+        })
+        .collect();
+    v.recomputation = Recomputation::Impossible {
+        reason: "without a readable manifest the inputs are not known".into(),
+    };
+    v.rerendering = Rerendering::Impossible {
+        reason: "without a readable manifest the inputs are not known".into(),
+    };
+    v.signature = signature;
+    v.pages = PagesBasis::NotCovered;
+    v
+}
+
 /// Verifies a document from its PDF bytes. `Err` only when the bytes are not a PDF, or a PDF that
 /// is not ours; a damaged file is a verdict (`content: damaged`).
 pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, NotAReport> {
@@ -369,122 +507,25 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
     let manifest = Manifest::parse(manifest_bytes);
     let manifest_sha256 = sha256_hex(manifest_bytes);
     let mut changes = Vec::new();
-    let revisions = doc.revisions();
-    if !revisions.single() {
-        let what = if revisions.appended() > 0 {
-            format!(
-                "an incremental update appended after the report's end of file ({} bytes, {} cross-reference section{})",
-                revisions.appended(),
-                revisions.sections,
-                if revisions.sections == 1 { "" } else { "s" }
-            )
-        } else {
-            format!(
-                "{} bytes appended after the report's end of file",
-                revisions.trailing
-            )
-        };
-        changes.push(ContentChange {
-            found_by: "file structure",
-            what,
-        });
-    }
+    changes.extend(appended_revisions(&doc));
 
     // the seal: digests of every part, the manifest it belongs to, the signature
     let v2 = manifest.as_ref().is_some_and(|m| m.format != FORMAT_V1);
-    let mut seal_state = SealSignatureState::Unsigned;
-    let mut sealed_parts: Option<DocumentParts> = None;
-    match seal_bytes.map(Seal::parse) {
-        None if v2 || manifest.is_none() => changes.push(ContentChange {
-            found_by: "seal",
-            what: format!("the document seal `{SEAL_NAME}` was removed: no page is covered"),
-        }),
-        None => {
-            // first format: the manifest's own signature, if any
-            if let (Some(b), Some(m)) = (by_name.get(SIGNATURE_NAME), &manifest) {
-                seal_state = match Signature::parse(b) {
-                    Some(s) if s.verifies(manifest_bytes) => match s.public() {
-                        Some(k) => SealSignatureState::Valid(k),
-                        None => SealSignatureState::Invalid("the recorded key is damaged".into()),
-                    },
-                    Some(_) => SealSignatureState::Invalid(
-                        "the manifest signature does not match this manifest".into(),
-                    ),
-                    None => SealSignatureState::Invalid(format!(
-                        "`{SIGNATURE_NAME}` is not a readable signature record"
-                    )),
-                };
-                let _ = m;
-            }
-        }
-        Some(None) => {
-            seal_state = SealSignatureState::Invalid("the seal cannot be read".into());
-            changes.push(ContentChange {
-                found_by: "seal",
-                what: format!("the document seal `{SEAL_NAME}` is not readable"),
-            });
-        }
-        Some(Some(seal)) => {
-            seal_state = seal.signature_state();
-            if seal.payload.format != SEAL_FORMAT {
-                changes.push(ContentChange {
-                    found_by: "seal",
-                    what: format!(
-                        "the seal's format `{}` is not `{SEAL_FORMAT}`",
-                        seal.payload.format
-                    ),
-                });
-            }
-            if seal.payload.manifest_sha256 != manifest_sha256 {
-                changes.push(ContentChange {
-                    found_by: "seal",
-                    what: format!(
-                        "the manifest is not the one the seal records (the seal belongs to report {})",
-                        super::manifest::id_of(&seal.payload.manifest_sha256)
-                    ),
-                });
-            }
-            for c in compare(&seal.payload.document, &actual) {
-                changes.push(ContentChange {
-                    found_by: "seal",
-                    what: c.to_string(),
-                });
-            }
-            sealed_parts = Some(seal.payload.document);
-        }
-    }
+    let (seal_state, sealed_parts) = check_seal(
+        seal_bytes,
+        manifest.as_ref(),
+        manifest_bytes,
+        by_name.get(SIGNATURE_NAME).copied(),
+        &manifest_sha256,
+        &actual,
+        v2,
+        &mut changes,
+    );
     let signature = signer::judge(manifest.as_ref(), seal_state.clone(), options.trust);
     let verified_by = super::make::program();
 
     let Some(manifest) = manifest else {
-        let mut v = Verification::damaged(String::new());
-        v.damage = None;
-        v.content = ContentState::Altered;
-        v.manifest_problem = Some(format!(
-            "`{MANIFEST_NAME}` is embedded but is not a readable annulus manifest"
-        ));
-        v.changes = changes;
-        v.files = embedded
-            .iter()
-            .filter(|f| ![MANIFEST_NAME, SIGNATURE_NAME, SEAL_NAME].contains(&f.name.as_str()))
-            .map(|f| FileCheck {
-                name: f.name.clone(),
-                role: None,
-                state: FileState::Unlisted {
-                    sha256: sha256_hex(&f.bytes),
-                    bytes: f.bytes.len(),
-                },
-            })
-            .collect();
-        v.recomputation = Recomputation::Impossible {
-            reason: "without a readable manifest the inputs are not known".into(),
-        };
-        v.rerendering = Rerendering::Impossible {
-            reason: "without a readable manifest the inputs are not known".into(),
-        };
-        v.signature = signature;
-        v.pages = PagesBasis::NotCovered;
-        return Ok(v);
+        return Ok(unreadable_manifest(&embedded, changes, signature));
     };
     let manifest_problem = (manifest.format != FORMAT && manifest.format != FORMAT_V1).then(|| {
         format!(
