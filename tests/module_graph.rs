@@ -300,3 +300,89 @@ fn files_and_the_clock_are_touched_at_the_edges_only() {
     assert_eq!(touching(&g, FS), ["cli", "input", "write"], "{g:?}");
     assert_eq!(touching(&g, CLOCK), ["cli"], "{g:?}");
 }
+
+/// The longest a function in `src/` may be, in lines from `fn` to its closing brace: long enough
+/// for a table of rules, short enough that every function can be read and tested as one piece.
+const MAX_FUNCTION_LINES: usize = 180;
+
+/// Every function and method in `src/` with its first line and length in lines.
+fn function_sizes() -> Vec<(String, usize, usize)> {
+    struct Sizes<'a> {
+        file: &'a str,
+        out: &'a mut Vec<(String, usize, usize)>,
+    }
+    impl Sizes<'_> {
+        fn record(&mut self, name: &syn::Ident, span: proc_macro2::Span) {
+            let (start, end) = (span.start().line, span.end().line);
+            self.out.push((
+                format!("{}:{start} {name}", self.file),
+                start,
+                end - start + 1,
+            ));
+        }
+    }
+    impl<'ast> syn::visit::Visit<'ast> for Sizes<'_> {
+        fn visit_item_fn(&mut self, f: &'ast syn::ItemFn) {
+            let span = quote::ToTokens::to_token_stream(f)
+                .into_iter()
+                .fold(None::<proc_macro2::Span>, |acc, t| {
+                    Some(acc.map_or(t.span(), |a| a.join(t.span()).unwrap_or(a)))
+                });
+            if let Some(span) = span {
+                self.record(&f.sig.ident, span);
+            }
+            syn::visit::visit_item_fn(self, f);
+        }
+        fn visit_impl_item_fn(&mut self, f: &'ast syn::ImplItemFn) {
+            let first = f.sig.fn_token.span;
+            let last = f.block.brace_token.span.close();
+            let span = first.join(last).unwrap_or(first);
+            self.record(&f.sig.ident, span);
+            syn::visit::visit_impl_item_fn(self, f);
+        }
+    }
+    let mut out = Vec::new();
+    let mut stack = vec![src()];
+    while let Some(dir) = stack.pop() {
+        for e in std::fs::read_dir(&dir).unwrap() {
+            let p = e.unwrap().path();
+            if p.is_dir() {
+                stack.push(p);
+            } else if p.extension().is_some_and(|x| x == "rs") {
+                let text = std::fs::read_to_string(&p).unwrap();
+                let file = syn::parse_file(&text).unwrap();
+                let name = p.strip_prefix(src()).unwrap().display().to_string();
+                let mut v = Sizes {
+                    file: &name,
+                    out: &mut out,
+                };
+                syn::visit::Visit::visit_file(&mut v, &file);
+            }
+        }
+    }
+    out
+}
+
+#[test]
+fn the_size_reader_measures_functions() {
+    let sizes = function_sizes();
+    // the crate has hundreds of functions, `main` among them, each at least one line long
+    assert!(sizes.len() > 500, "{} functions", sizes.len());
+    assert!(sizes
+        .iter()
+        .any(|(n, _, len)| n.starts_with("main.rs:") && *len >= 1));
+    assert!(sizes.iter().all(|(_, start, len)| *start >= 1 && *len >= 1));
+}
+
+#[test]
+fn no_function_in_src_is_longer_than_the_limit() {
+    let mut long: Vec<_> = function_sizes()
+        .into_iter()
+        .filter(|(_, _, len)| *len > MAX_FUNCTION_LINES)
+        .collect();
+    long.sort_by_key(|(_, _, len)| std::cmp::Reverse(*len));
+    assert!(
+        long.is_empty(),
+        "functions over {MAX_FUNCTION_LINES} lines (split them into named parts): {long:?}"
+    );
+}
