@@ -96,8 +96,10 @@ impl fmt::Display for Diagnostic {
     }
 }
 
-/// At most this many input problems are reported in one pass; the rest are counted.
-pub const MAX_DIAGNOSTICS: usize = 20;
+/// At most this many input problems are reported in one pass; the rest are counted. Enough for
+/// every empty value of a blank survey from `annulus init` with its runs (about 30) several times
+/// over; a file with thousands of bad rows is still answered in a screenful or two.
+pub const MAX_DIAGNOSTICS: usize = 100;
 
 /// Input problems collected in one pass.
 #[derive(Debug, Clone, Default, PartialEq)]

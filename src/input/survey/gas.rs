@@ -276,8 +276,10 @@ pub fn read_method4(m: &Table) -> Option<Method4Data> {
         (Some(f), None) => f
             .quantity_in(Dimension::Pressure, range::METER_PRESSURE)
             .map(|pa| MeterPressure::Absolute { pa }),
+        // an orifice ΔH is a few inches of water, not a barometric pressure: the hint says so
         (None, Some(f)) => f
-            .quantity_in(Dimension::Pressure, range::ORIFICE_DH)
+            .quantity_like(Dimension::Pressure, "1.85 inH2O")
+            .and_then(|pa| f.within(pa, range::ORIFICE_DH))
             .map(|pa| MeterPressure::OrificeDh { pa }),
         (Some(f), Some(_)) => {
             f.error(
