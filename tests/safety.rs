@@ -929,3 +929,53 @@ fn outside_references_are_classified_for_review() {
     );
     assert_eq!(classify_reference("/srv/jobs/run1.csv"), Place::Absolute);
 }
+
+#[test]
+fn review_reads_nothing_outside_the_reviewed_folder_unless_asked() {
+    let s = samples();
+    let hvac = s.path().join("hvac");
+    std::fs::create_dir(s.path().join("shared")).unwrap();
+    std::fs::copy(hvac.join("traverse.csv"), s.path().join("shared/ahu3.csv")).unwrap();
+    survey_reading(&hvac, "../shared/ahu3.csv");
+    // the reviewed folder is hvac/: `../shared` lies outside it
+    let r = annulus(s.path(), &["review", "hvac", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_str(&r.out()).expect(&r.err);
+    let row = hostile_row(&v);
+    assert_eq!(row["status"], "error", "{row}");
+    assert!(
+        row.to_string()
+            .contains("outside the reviewed folder `hvac` (review --allow-outside reads it)"),
+        "{row}"
+    );
+    // asked: read and judged like any survey
+    let r = annulus(
+        s.path(),
+        &["review", "hvac", "--allow-outside", "--format", "json"],
+    );
+    let v: serde_json::Value = serde_json::from_str(&r.out()).expect(&r.err);
+    assert_ne!(hostile_row(&v)["status"], "error", "{}", hostile_row(&v));
+    // a symbolic link inside the folder that leads out of it is outside too
+    #[cfg(unix)]
+    {
+        std::os::unix::fs::symlink("../shared/ahu3.csv", hvac.join("link.csv")).unwrap();
+        survey_reading(&hvac, "link.csv");
+        let r = annulus(s.path(), &["review", "hvac", "--format", "json"]);
+        let v: serde_json::Value = serde_json::from_str(&r.out()).expect(&r.err);
+        assert_eq!(hostile_row(&v)["status"], "error", "{}", hostile_row(&v));
+    }
+    // reviewing the folder above takes `shared/` in: no flag needed
+    let r = annulus(s.path(), &["review", ".", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_str(&r.out()).expect(&r.err);
+    let hostile = hostile_row(&v);
+    assert_ne!(hostile["status"], "error", "{hostile}");
+}
+
+/// The review row of `hostile.toml`.
+fn hostile_row(v: &serde_json::Value) -> &serde_json::Value {
+    v["files"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["file"].as_str().unwrap().ends_with("hostile.toml"))
+        .expect("the survey is reviewed")
+}

@@ -91,6 +91,10 @@ pub struct ReviewArgs {
     /// Per-file size budget in MiB: a larger file (survey, readings or PDF) is an error row.
     #[arg(long, value_name = "MiB", default_value_t = 256)]
     pub file_size_limit: u64,
+    /// Also read files a survey names outside the reviewed folder (absolute paths, or `../` that
+    /// climbs out of it). Without it such a survey is an error row and the file is not opened.
+    #[arg(long)]
+    pub allow_outside: bool,
 }
 
 /// Reads a regular file of at most `cap` bytes; larger files give `FileTooLarge`, anything that
@@ -110,6 +114,41 @@ fn read_capped(path: &Path, cap: u64) -> std::io::Result<Vec<u8>> {
             e
         }
     })
+}
+
+/// `p` made absolute against the working folder, with `.` and `..` resolved by name.
+fn absolute(p: &Path) -> PathBuf {
+    use std::path::Component;
+    let joined = if p.is_absolute() {
+        p.to_path_buf()
+    } else {
+        std::env::current_dir().unwrap_or_default().join(p)
+    };
+    let mut out = PathBuf::new();
+    for c in joined.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                out.pop();
+            }
+            other => out.push(other.as_os_str()),
+        }
+    }
+    out
+}
+
+/// Whether a file a survey names lies inside the reviewed folder `root` (absolute): by name, and,
+/// when the file itself is a symbolic link, by where the link leads.
+fn inside(root: &Path, p: &Path) -> bool {
+    let abs = absolute(p);
+    if !abs.starts_with(root) {
+        return false;
+    }
+    match std::fs::symlink_metadata(&abs) {
+        Ok(m) if m.file_type().is_symlink() => std::fs::canonicalize(&abs)
+            .is_ok_and(|target| std::fs::canonicalize(root).is_ok_and(|r| target.starts_with(r))),
+        _ => true,
+    }
 }
 
 /// Every candidate file under `dir`, and the folders that could not be listed (as findings).
@@ -202,7 +241,25 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
         ..ReviewSettings::default()
     };
     let cap = args.file_size_limit << 20;
-    let source: SharedSource = Arc::new(move |p: &Path| read_capped(p, cap));
+    // a single file is reviewed with its own folder as the boundary
+    let boundary = if meta.is_dir() {
+        args.dir.clone()
+    } else {
+        args.dir.parent().map(Path::to_path_buf).unwrap_or_default()
+    };
+    let root = (!args.allow_outside).then(|| absolute(&boundary));
+    let shown = boundary.display().to_string();
+    let source: SharedSource = Arc::new(move |p: &Path| {
+        match &root {
+        Some(root) if !inside(root, p) => Err(std::io::Error::new(
+            std::io::ErrorKind::PermissionDenied,
+            format!(
+                "not read: it is outside the reviewed folder `{shown}` (review --allow-outside reads it)"
+            ),
+        )),
+        _ => read_capped(p, cap),
+    }
+    });
     let fail_on: Vec<ReviewStatus> = args.fail_on.iter().map(|s| s.status()).collect();
     let failing = |r: &Reviewed| fail_on.contains(&r.status);
 
