@@ -47,6 +47,7 @@ pub mod readings;
 pub mod report;
 pub mod results;
 pub mod survey;
+pub mod system;
 pub mod uncertainty;
 pub mod units;
 pub mod wording;
