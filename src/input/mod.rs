@@ -16,6 +16,8 @@ pub mod header;
 pub mod rata_file;
 pub mod readings;
 pub mod survey;
+pub mod system_file;
+pub mod terminals_file;
 pub mod text;
 pub mod toml_doc;
 
