@@ -46,6 +46,7 @@ pub mod rata;
 pub mod readings;
 pub mod report;
 pub mod results;
+pub mod submittal;
 pub mod survey;
 pub mod system;
 pub mod uncertainty;

@@ -15,6 +15,7 @@ pub mod relations;
 pub mod rules;
 pub mod spec;
 pub mod terminals;
+pub mod words;
 
 pub use evaluate::{evaluate, DuctResult, SystemResult};
 pub use spec::{
