@@ -218,20 +218,27 @@ impl Ctx<'_> {
 
     fn rpm(&mut self, v: &Option<Spanned<toml::Value>>, key: &str) -> Option<f64> {
         let v = v.as_ref()?;
+        // a plain number, or the same with its unit written out ("1150 rpm")
         let n = match v.get_ref() {
             toml::Value::Integer(i) => Some(*i as f64),
             toml::Value::Float(f) if f.is_finite() => Some(*f),
+            toml::Value::String(s) => s
+                .trim()
+                .strip_suffix("rpm")
+                .and_then(crate::units::parse_number)
+                .filter(|n| n.is_finite()),
             _ => None,
         };
         if n.is_none() {
+            let short = key.rsplit('.').next().unwrap_or(key);
             self.error(
                 v.span(),
                 key,
                 format!(
-                    "`{key}` must be a plain number of revolutions per minute, found `{}`",
+                    "`{key}` must be a number of revolutions per minute, found `{}`",
                     super::text::toml_text(v.get_ref())
                 ),
-                Some(format!("write e.g. {key} = 1150")),
+                Some(format!("write e.g. {short} = 1150")),
             );
         }
         n
@@ -689,10 +696,12 @@ pub fn load_system_with(path: &Path, source: FileSource) -> Result<LoadedSystem,
                         .with_context("`terminals.readings`"))
                     .hint("the readings path is relative to the system file"),
             ),
-            Ok((tbytes, ttext)) => match super::terminals_file::parse_terminals(&tname, &ttext) {
+            Ok((tbytes, ttext)) => match super::terminals_file::read_terminals(&tname, &ttext) {
                 Err(Error::Input(d)) => diags.extend(d),
                 Err(e) => return Err(e),
-                Ok(rows) => {
+                Ok((rows, cell_problems)) => {
+                    // the rows that were read are checked against the ducts too: one pass
+                    diags.extend(cell_problems);
                     spec.terminals = rows.terminals.clone();
                     for e in validate(&spec) {
                         if let Some(d) =
@@ -856,6 +865,17 @@ status = "open"
 
     #[test]
     fn every_problem_is_reported_in_one_pass() {
+        let text = SYSTEM
+            .replace("design = \"3000 cfm\"", "design = \"3000 cfn\"")
+            .replace("role = \"supply\"", "role = \"suply\"")
+            .replace("measured_rpm = 1100", "measured_rpm = \"fast\"");
+        let e = errors(&text);
+        assert_eq!(e.len(), 3, "{e:?}");
+        assert_eq!(e[2].hint.as_deref(), Some("write e.g. measured_rpm = 1150"));
+        // a speed may carry its unit
+        let text = SYSTEM.replace("measured_rpm = 1100", "measured_rpm = \"1100 rpm\"");
+        let p = parse_system("system.toml", &text).expect("valid");
+        assert_eq!(p.spec.fan.and_then(|f| f.measured_rpm), Some(1100.0));
         let text = SYSTEM
             .replace("design = \"3000 cfm\"", "design = \"3000 cfn\"")
             .replace("role = \"supply\"", "role = \"suply\"")

@@ -87,6 +87,13 @@ const HINT_CELL: &str = "use `.` as the decimal separator; put units in the head
 /// Parses a terminals CSV: `tag, branch, design[…]` and `measured[…]` or `velocity[…]` with
 /// `area[…]` (the terminal's area factor); `room` and `type` optional.
 pub fn parse_terminals(file: &str, text: &str) -> Result<TerminalRows, Error> {
+    let (rows, diags) = read_terminals(file, text)?;
+    diags.finish(rows)
+}
+
+/// [`parse_terminals`] that keeps the rows it could read beside the problems of the others, so
+/// the caller can check those rows too before stopping. Header problems end the reading.
+pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnostics), Error> {
     let empty = || {
         Error::input(
             Diagnostic::new("the terminals file has no readings")
@@ -322,11 +329,14 @@ pub fn parse_terminals(file: &str, text: &str) -> Result<TerminalRows, Error> {
     if terminals.is_empty() && diags.is_empty() {
         return Err(empty());
     }
-    diags.finish(TerminalRows {
-        terminals,
-        lines,
-        branch_column: branch_col.map(|i| i + 1).unwrap_or(1),
-    })
+    Ok((
+        TerminalRows {
+            terminals,
+            lines,
+            branch_column: branch_col.map(|i| i + 1).unwrap_or(1),
+        },
+        diags,
+    ))
 }
 
 /// The located diagnostic for a terminal problem [`crate::system::validate`] found (`None` for

@@ -1,0 +1,185 @@
+//! End-to-end: `annulus system` on the sample building and on bad system files, checking stdout,
+//! stderr and the exit code. Golden files under tests/golden/, regenerated with
+//! `UPDATE_GOLDEN=1 cargo test --test system` and reviewed in the diff.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn annulus(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
+        .args(args)
+        .current_dir(root())
+        .env("NO_COLOR", "1")
+        .env_remove("SOURCE_DATE_EPOCH")
+        .output()
+        .expect("binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+fn golden(name: &str, found: &str) {
+    let path = root().join("tests/golden").join(name);
+    if std::env::var_os("UPDATE_GOLDEN").is_some() {
+        std::fs::write(&path, found).unwrap();
+        return;
+    }
+    let want = std::fs::read_to_string(&path).unwrap_or_else(|_| {
+        panic!(
+            "missing golden file {}; run with UPDATE_GOLDEN=1",
+            path.display()
+        )
+    });
+    assert_eq!(found, want, "output differs from {}", path.display());
+}
+
+const SAMPLE: &str = "sample-data/building/ahu-2.toml";
+
+/// 1 cfm in m³/s (1 ft = 0.3048 m exactly).
+const CFM: f64 = 0.028_316_846_592 / 60.0;
+
+#[test]
+fn the_sample_building_prints_its_submittal_and_exits_3_for_the_failing_diffuser() {
+    let (code, out, err) = annulus(&["system", SAMPLE]);
+    // one diffuser (D-204, 410 of 500 cfm = 82 %) is outside ±10 %: exit code 3 (contract)
+    assert_eq!(code, 3, "{err}");
+    assert_eq!(err, "");
+    golden("system-building.txt", &out);
+}
+
+#[test]
+fn the_json_carries_the_contract_keys_and_hand_checkable_values() {
+    let (code, json, err) = annulus(&["system", SAMPLE, "--format", "json"]);
+    assert_eq!(code, 3, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).expect("JSON");
+    // contract.md, "System file": the keys of `annulus system --format json`
+    for k in [
+        "ducts",
+        "branches",
+        "outside_air",
+        "fan",
+        "terminals",
+        "verdict",
+    ] {
+        assert!(v.get(k).is_some(), "no `{k}`");
+    }
+    for k in [
+        "tag",
+        "role",
+        "design_flow_m3_s",
+        "design_basis",
+        "measured_flow_m3_s",
+        "percent_of_design",
+        "within_tolerance",
+    ] {
+        assert!(v["ducts"][0].get(k).is_some(), "no ducts[0].{k}");
+    }
+    for k in ["of", "sum_m3_s", "main_m3_s", "difference_percent"] {
+        assert!(v["branches"][0].get(k).is_some(), "no branches[0].{k}");
+    }
+    for k in ["flow_m3_s", "percent_of_supply", "method"] {
+        assert!(v["outside_air"].get(k).is_some(), "no outside_air.{k}");
+    }
+    for k in [
+        "measured_flow_m3_s",
+        "percent_of_design",
+        "rpm_for_design",
+        "static_at_design_rpm_pa",
+        "amps_at_design_rpm",
+    ] {
+        assert!(v["fan"].get(k).is_some(), "no fan.{k}");
+    }
+    for k in [
+        "tag",
+        "branch",
+        "design_flow_m3_s",
+        "measured_flow_m3_s",
+        "percent_of_design",
+        "within_tolerance",
+    ] {
+        assert!(v["terminals"][0].get(k).is_some(), "no terminals[0].{k}");
+    }
+    assert_eq!(v["verdict"], "fail");
+    assert_eq!(v["outside_air"]["method"], "measured");
+    // `cfm` in the system file is actual air (contract: flow units with a basis)
+    assert_eq!(v["ducts"][0]["design_basis"], "actual");
+    assert!((v["ducts"][0]["design_flow_m3_s"].as_f64().unwrap() - 6000.0 * CFM).abs() < 1e-12);
+
+    let num = |x: &serde_json::Value| x.as_f64().expect("number");
+    // contract: percent_of_design = measured / design · 100 (each duct)
+    for d in v["ducts"].as_array().unwrap() {
+        let p = 100.0 * num(&d["measured_flow_m3_s"]) / num(&d["design_flow_m3_s"]);
+        assert!((num(&d["percent_of_design"]) - p).abs() < 1e-9);
+        assert_eq!(d["within_tolerance"], (p - 100.0).abs() <= 10.0);
+    }
+    // contract: difference_percent = (sum − main)/main · 100, the sum being the branches'
+    let ducts = v["ducts"].as_array().unwrap();
+    let flow_of =
+        |tag: &str| num(&ducts.iter().find(|d| d["tag"] == tag).unwrap()["measured_flow_m3_s"]);
+    let b = &v["branches"][0];
+    let sum = flow_of("SA-1") + flow_of("SA-2") + flow_of("SA-3");
+    assert!((num(&b["sum_m3_s"]) - sum).abs() < 1e-12);
+    let main = flow_of("SA-main");
+    assert!((num(&b["difference_percent"]) - 100.0 * (sum - main) / main).abs() < 1e-9);
+    // contract: percent_of_supply = outside / supply · 100
+    let oa = &v["outside_air"];
+    assert!((num(&oa["percent_of_supply"]) - 100.0 * flow_of("OA") / main).abs() < 1e-9);
+    // fan laws: speed for design flow = measured speed · design flow / measured flow
+    let fan = &v["fan"];
+    assert!((num(&fan["rpm_for_design"]) - 1150.0 * 6000.0 * CFM / main).abs() < 1e-9);
+    // terminal D-203 read as velocity × area factor: 560 fpm × 0.90 ft² = 504 cfm (hand-worked)
+    let d203 = v["terminals"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|t| t["tag"] == "D-203")
+        .unwrap();
+    assert!((num(&d203["measured_flow_m3_s"]) / CFM - 504.0).abs() < 1e-9);
+    // D-204: 410/500 = 82 %, outside ±10 %
+    let d204 = v["terminals"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|t| t["tag"] == "D-204")
+        .unwrap();
+    assert!((num(&d204["percent_of_design"]) - 82.0).abs() < 1e-9);
+    assert_eq!(d204["within_tolerance"], false);
+}
+
+#[test]
+fn the_csv_has_one_row_per_judged_item_in_the_job_units() {
+    let (code, csv, _) = annulus(&["system", SAMPLE, "--format", "csv"]);
+    assert_eq!(code, 3);
+    let mut lines = csv.lines();
+    assert_eq!(
+        lines.next(),
+        Some("item,tag,role,of,basis,unit,design,measured,percent_of_design,compared_with,difference,difference_percent,tolerance_percent,status")
+    );
+    // 6 ducts, 1 branch sum, outside air, fan, 12 terminals, 3 terminal sums
+    assert_eq!(lines.clone().count(), 24);
+    assert!(lines.any(|l| l.starts_with("terminal,D-204,,SA-2,actual,acfm,500.0,410.0,82.00,")));
+    assert!(!csv.contains('\u{2212}'), "ASCII minus in CSV");
+}
+
+#[test]
+fn bad_system_files_are_rejected_with_located_diagnostics() {
+    for case in [
+        "missing-survey",
+        "unknown-branch",
+        "circle",
+        "design-no-unit",
+        "bad-terminals",
+    ] {
+        let file = format!("tests/data/system/{case}.toml");
+        let (code, out, err) = annulus(&["system", &file]);
+        assert_eq!(code, 1, "{case}: {err}");
+        assert_eq!(out, "", "{case}: nothing on stdout");
+        golden(&format!("system-bad-{case}.txt"), &err);
+    }
+}
