@@ -2,7 +2,7 @@
 //! and rounded as test-and-balance reports round them, the relations and the fan in sentences, the
 //! notes a reader needs. One wording for the terminal table and the submittal PDF.
 //!
-//! Formats only: every figure is computed in [`super::evaluate`] and friends.
+//! Formats only: every figure is computed in [`super::evaluate()`] and the modules it calls.
 
 use super::fan::{FanResult, MotorFinding};
 use super::relations::{BranchSum, OutsideAir, OutsideAirMethod};
