@@ -183,3 +183,66 @@ fn bad_system_files_are_rejected_with_located_diagnostics() {
         golden(&format!("system-bad-{case}.txt"), &err);
     }
 }
+
+mod never_panics {
+    //! Mutated system files and terminal CSVs through the reader and the whole evaluation: every
+    //! outcome is `Ok` or a diagnostic.
+    use annulus::input::system_file::load_system_with;
+    use annulus::submittal::evaluate_system;
+    use proptest::prelude::*;
+    use std::path::Path;
+
+    fn sample(name: &str) -> Vec<u8> {
+        std::fs::read(super::root().join("sample-data/building").join(name)).unwrap()
+    }
+
+    fn run(system: Vec<u8>, terminals: Vec<u8>) {
+        let dir = super::root().join("sample-data/building");
+        let sys_path = dir.join("ahu-2.toml");
+        let term_path = dir.join("terminals.csv");
+        let src = |p: &Path| {
+            if p == sys_path {
+                Ok(system.clone())
+            } else if p == term_path {
+                Ok(terminals.clone())
+            } else {
+                std::fs::read(p)
+            }
+        };
+        if let Ok(loaded) = load_system_with(&sys_path, &src) {
+            let _ = evaluate_system(loaded, None);
+        }
+    }
+
+    fn mutate(mut bytes: Vec<u8>, edits: &[(usize, u8)]) -> Vec<u8> {
+        for &(pos, b) in edits {
+            if !bytes.is_empty() {
+                let i = pos % bytes.len();
+                bytes[i] = b;
+            }
+        }
+        bytes
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 48, .. ProptestConfig::default() })]
+
+        #[test]
+        fn mutated_system_files_never_panic(edits in prop::collection::vec((any::<usize>(), prop::sample::select(b"0123456789.-=\"[] \nx%ASbranchof".to_vec())), 1..6)) {
+            run(mutate(sample("ahu-2.toml"), &edits), sample("terminals.csv"));
+        }
+
+        #[test]
+        fn mutated_terminals_never_panic(edits in prop::collection::vec((any::<usize>(), prop::sample::select(b"0123456789.,-e\n\"#xSA ".to_vec())), 1..8)) {
+            run(sample("ahu-2.toml"), mutate(sample("terminals.csv"), &edits));
+        }
+    }
+
+    #[test]
+    fn zero_and_huge_terminal_readings_do_not_panic() {
+        for v in ["0", "1e-300", "1e300"] {
+            let csv = format!("tag,branch,design[cfm],measured[cfm]\nD-1,SA-1,600,{v}\n");
+            run(sample("ahu-2.toml"), csv.into_bytes());
+        }
+    }
+}
