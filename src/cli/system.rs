@@ -74,7 +74,10 @@ fn table(e: &SystemEvaluation, ctx: &Ctx) -> String {
         "units",
         format!(
             "{}; flows rounded to {} {}, velocities to {} {} (TAB practice)",
-            dt.system.name(),
+            match dt.system {
+                UnitSystem::InchPound => "inch-pound",
+                UnitSystem::Si | UnitSystem::EpaMetric => "SI",
+            },
             fixed(dt.tab_step(Kind::ActualFlow).unwrap_or(1.0), 0),
             dt.get(Kind::ActualFlow).symbol.trim_start_matches('a'),
             tab_step_text(dt),
