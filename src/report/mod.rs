@@ -43,6 +43,7 @@ pub mod documents;
 pub mod engine;
 pub mod model;
 pub mod rata;
+pub mod submittal;
 
 pub use crate::write::{write_atomic, WriteError};
 pub use attach::{embedded_files, Attachment, AttachmentError, EmbeddedFile, ExtractError};

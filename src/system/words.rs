@@ -107,6 +107,15 @@ pub fn size(dt: &DisplayTable, duct: &Duct) -> String {
     }
 }
 
+/// The duct's inside size without its unit (`36 × 24`, `Ø 20`), for a table whose head names it.
+pub fn size_number(dt: &DisplayTable, duct: &Duct) -> String {
+    let text = size(dt, duct);
+    let unit = dt.get(Kind::Length).symbol;
+    text.strip_suffix(unit)
+        .map(|t| t.trim_end().to_string())
+        .unwrap_or(text)
+}
+
 /// The basis in words, saying that `cfm` is actual (`actual (cfm, acfm)`).
 pub fn basis(basis: FlowBasis) -> &'static str {
     match basis {

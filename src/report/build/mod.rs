@@ -86,6 +86,11 @@ pub fn report_data(e: &Evaluation, a: &Assessment, id: &Identity) -> ReportData 
     }
 }
 
+/// The HVAC safety cautions, for documents about air systems (the submittal).
+pub(crate) fn hvac_cautions() -> Vec<String> {
+    safety::cautions(Trade::Hvac)
+}
+
 /// One report being built: the results, the job's display table and its trade.
 pub(crate) struct Job<'a> {
     pub e: &'a Evaluation,
