@@ -151,6 +151,72 @@ pub struct LoadedSystem {
     pub terminals: Option<SourceFile>,
 }
 
+/// One file a system was read from: its role, its path relative to the system file's folder
+/// (`/`-separated), and its bytes as read. What a submittal embeds, and what it is re-read from.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SystemInput {
+    /// `system`, `survey`, `readings`, `calibration`, `calibration-readings` or `terminals`.
+    pub role: &'static str,
+    pub path: String,
+    pub bytes: Vec<u8>,
+}
+
+impl LoadedSystem {
+    /// Every file the system was read from, the system file first, each once.
+    pub fn inputs(&self) -> Vec<SystemInput> {
+        let dir = self.file.path.parent().unwrap_or(Path::new(""));
+        let rel = |p: &Path| -> String {
+            let r = p.strip_prefix(dir).unwrap_or(p);
+            r.components()
+                .map(|c| c.as_os_str().to_string_lossy().into_owned())
+                .collect::<Vec<_>>()
+                .join("/")
+        };
+        let mut out: Vec<SystemInput> = Vec::new();
+        let mut add = |role: &'static str, f: &SourceFile| {
+            let path = rel(&f.path);
+            if !out.iter().any(|x| x.path == path) {
+                out.push(SystemInput {
+                    role,
+                    path,
+                    bytes: f.bytes.clone(),
+                });
+            }
+        };
+        add("system", &self.file);
+        for d in &self.ducts {
+            add("survey", &d.survey_file);
+            for (f, _) in &d.runs {
+                add("readings", f);
+            }
+            if let Some((c, r)) = &d.calibration {
+                add("calibration", c);
+                add("calibration-readings", r);
+            }
+        }
+        if let Some(t) = &self.terminals {
+            add("terminals", t);
+        }
+        out
+    }
+}
+
+/// Reads a system again from its files held in memory (paths relative to the system file's
+/// folder, as [`LoadedSystem::inputs`] gives them): how a submittal is re-derived from what it
+/// embeds.
+pub fn load_system_from(inputs: &[SystemInput]) -> Result<LoadedSystem, Error> {
+    let Some(system) = inputs.iter().find(|i| i.role == "system") else {
+        return Err(Error::input(Diagnostic::new(
+            "no system file among the embedded files",
+        )));
+    };
+    let mut files = super::MemoryFiles::new();
+    for i in inputs {
+        files.insert(&i.path, i.bytes.clone());
+    }
+    load_system_with(Path::new(&system.path), &|p| files.read(p))
+}
+
 struct Ctx<'a> {
     file: &'a str,
     text: &'a str,
@@ -891,6 +957,23 @@ status = "open"
         assert_eq!(e.len(), 1);
         assert!(e[0].message.contains("organization"), "{}", e[0].message);
         assert_eq!(at(&e[0]).0, 6);
+    }
+
+    #[test]
+    fn a_system_reads_back_from_the_files_it_was_read_from() {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data/building/ahu-2.toml");
+        let loaded = load_system(&path).expect("sample loads");
+        let inputs = loaded.inputs();
+        let roles: Vec<(&str, &str)> = inputs.iter().map(|i| (i.role, i.path.as_str())).collect();
+        assert_eq!(roles[0], ("system", "ahu-2.toml"));
+        assert!(roles.contains(&("survey", "sa-main/survey.toml")));
+        assert!(roles.contains(&("readings", "sa-main/traverse.csv")));
+        assert_eq!(roles.last(), Some(&("terminals", "terminals.csv")));
+        // 1 system file, 6 surveys, 6 readings files, 1 terminals file
+        assert_eq!(inputs.len(), 14);
+        let again = load_system_from(&inputs).expect("reads back");
+        assert_eq!(again.spec, loaded.spec);
+        assert_eq!(again.inputs(), inputs);
     }
 
     #[test]
