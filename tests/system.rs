@@ -246,3 +246,84 @@ mod never_panics {
         }
     }
 }
+
+/// Text of a PDF via poppler's `pdftotext` (CI installs poppler-utils).
+fn pdf_text(path: &std::path::Path) -> String {
+    let out = Command::new("pdftotext")
+        .args(["-layout"])
+        .arg(path)
+        .arg("-")
+        .output()
+        .expect("pdftotext (poppler-utils) must be installed for the PDF tests");
+    assert!(out.status.success(), "pdftotext failed");
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+#[test]
+fn the_submittal_pdf_embeds_every_input_speaks_hvac_and_is_reproducible() {
+    let dir = std::env::temp_dir().join(format!("annulus-system-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let a = dir.join("a.pdf");
+    let b = dir.join("b.pdf");
+    let (code, out, err) = annulus(&["system", SAMPLE, "-o", a.to_str().unwrap()]);
+    // written, and still exit 3: a diffuser is outside tolerance
+    assert_eq!(code, 3, "{err}");
+    assert_eq!(out, "");
+    assert!(err.starts_with(&format!("wrote {}", a.display())), "{err}");
+    let (code, _, _) = annulus(&["system", SAMPLE, "-o", b.to_str().unwrap()]);
+    assert_eq!(code, 3);
+    let (pa, pb) = (std::fs::read(&a).unwrap(), std::fs::read(&b).unwrap());
+    assert_eq!(pa, pb, "the same inputs give the same bytes");
+
+    let files = annulus::report::embedded_files(&pa).expect("attachments readable");
+    let names: Vec<&str> = files.iter().map(|f| f.name.as_str()).collect();
+    for n in [
+        "ahu-2.toml",
+        "terminals.csv",
+        "sa-main-survey.toml",
+        "sa-main-traverse.csv",
+        "oa-traverse.csv",
+        "results.json",
+        "annulus-manifest.json",
+    ] {
+        assert!(names.contains(&n), "{n} not embedded: {names:?}");
+    }
+    // the embedded system file is the file as read
+    let system = files.iter().find(|f| f.name == "ahu-2.toml").unwrap();
+    assert_eq!(system.bytes, std::fs::read(root().join(SAMPLE)).unwrap());
+
+    let text = pdf_text(&a);
+    for phrase in [
+        "AHU-2 air system, test and balance",
+        "Saltmarsh Air Balance Ltd (fictional)",
+        "Tomasz Okafor-Lind",
+        "TAB-FIC-52210",
+        "Ducts against design",
+        "Relations between ducts",
+        "Fan SF-2",
+        "D-204",
+        "Duct traverses",
+        "Deficiencies",
+        "Balancing damper VD-204",
+        "Rotating equipment",
+        "Sign-off",
+    ] {
+        assert!(
+            text.contains(phrase),
+            "`{phrase}` missing from the PDF text"
+        );
+    }
+    // HVAC wording: no stack cautions or leak-check lines, no references to files the reader lacks
+    for word in ["toxic", "sampling platform", "leak check", "methods.md"] {
+        assert!(!text.contains(word), "`{word}` on an HVAC submittal");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn the_submittal_is_never_written_over_an_input() {
+    let (code, out, err) = annulus(&["system", SAMPLE, "-o", "sample-data/building/terminals.csv"]);
+    assert_eq!(code, 1, "{err}");
+    assert_eq!(out, "");
+    assert!(err.contains("is one of the submittal's inputs"), "{err}");
+}

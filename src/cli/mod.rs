@@ -79,7 +79,7 @@ pub enum Command {
     Report(report::ReportArgs),
     /// A test-and-balance submittal: an air system's ducts, branches, outside air, fan and terminals against design; exit 3 if any is outside tolerance.
     #[command(
-        after_help = "Examples:\n  annulus system sample-data/building/ahu-2.toml\n  annulus system sample-data/building/ahu-2.toml --format json"
+        after_help = "Examples:\n  annulus system sample-data/building/ahu-2.toml\n  annulus system sample-data/building/ahu-2.toml --format json\n  annulus system sample-data/building/ahu-2.toml -o ahu-2-submittal.pdf"
     )]
     System(system::SystemArgs),
     /// Re-derive a report's results from its embedded data and check its hashes and signature.

@@ -1,17 +1,22 @@
 //! `annulus system`: an air system against its design — every duct, the branch sums, the outside
-//! air, the fan and the terminals — as a table, JSON or CSV, or the submittal PDF. Exit code 3
-//! when anything is outside tolerance.
+//! air, the fan and the terminals — as a table, JSON or CSV, or the submittal PDF (`-o`). Exit
+//! code 3 when anything is outside tolerance, whether printed or written.
 
 use super::output::{csv_text, json_text, status, Ctx, Format, Table};
+use crate::archive::submittal::pack_system;
+use crate::archive::{SecretKey, Signature};
 use crate::checks::Status;
-use crate::diag::Error;
+use crate::diag::{Diagnostic, Error};
 use crate::display::{fixed, DisplayTable, Kind, UnitSystem};
 use crate::input::system_file::load_system;
+use crate::report::build::Identity;
+use crate::report::submittal::{submittal_data, People};
+use crate::report::{write_atomic, Engine, RenderOptions};
 use crate::submittal::{evaluate_system, SystemEvaluation};
 use crate::system::words;
 use crate::units::FlowBasis;
 use clap::Args;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 #[derive(Debug, Args)]
 pub struct SystemArgs {
@@ -23,6 +28,12 @@ pub struct SystemArgs {
     /// Print in SI units (m³/h, m/s, Pa) whatever the surveys' convention.
     #[arg(long)]
     pub si: bool,
+    /// Write the submittal PDF here (written atomically: never half a file) instead of printing.
+    #[arg(short, long, value_name = "OUT.pdf")]
+    pub output: Option<PathBuf>,
+    /// Sign the submittal's manifest with this Ed25519 secret key (see `annulus keygen`).
+    #[arg(long, value_name = "KEY", requires = "output")]
+    pub sign: Option<PathBuf>,
 }
 
 /// The word a judged item shows, coloured when asked.
@@ -36,20 +47,110 @@ fn mark(s: Status, color: bool) -> String {
 }
 
 pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
+    let key = args
+        .sign
+        .as_deref()
+        .map(super::report::read_key)
+        .transpose()?;
     let loaded = load_system(&args.system)?;
     let units = args.si.then_some(UnitSystem::Si);
     let e = evaluate_system(loaded, units)?;
+    let code = if e.result.verdict == Status::Fail {
+        3
+    } else {
+        0
+    };
+    if let Some(out) = &args.output {
+        write_pdf(&e, out, key.as_ref(), ctx)?;
+        return Ok(code);
+    }
     let text = match args.format {
         Format::Json => json_text(&e.doc()),
         Format::Csv => csv(&e),
         Format::Table => table(&e, ctx),
     };
     super::emit(&text)?;
-    Ok(if e.result.verdict == Status::Fail {
-        3
-    } else {
-        0
-    })
+    Ok(code)
+}
+
+/// Renders the submittal with every input embedded and writes it to `out`.
+fn write_pdf(
+    e: &SystemEvaluation,
+    out: &Path,
+    key: Option<&SecretKey>,
+    ctx: &Ctx,
+) -> Result<(), Error> {
+    let inputs = e.loaded.inputs();
+    let dir = e.loaded.file.path.parent().unwrap_or(Path::new(""));
+    let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => a == b,
+    };
+    if let Some(i) = inputs.iter().find(|i| same(&dir.join(&i.path), out)) {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "`{}` is one of the submittal's inputs ({} `{}`); it is never written over",
+                out.display(),
+                i.role,
+                i.path
+            ))
+            .hint("write the PDF to a new file, e.g. -o submittal.pdf"),
+        ));
+    }
+    let program = format!("annulus {}", env!("CARGO_PKG_VERSION"));
+    let convention = e
+        .ducts
+        .first()
+        .map(|(ev, _)| ev.loaded.survey.convention.name())
+        .unwrap_or_default();
+    let bundle = pack_system(
+        &e.loaded,
+        convention,
+        json_text(&e.doc()).into_bytes(),
+        &program,
+    );
+    let signature = key.map(|k| Signature::sign(&bundle.manifest, k));
+    let identity = Identity {
+        report_id: bundle.manifest.report_id(),
+        content_sha256: bundle.manifest.fingerprint(),
+        signer_key_fingerprint: signature.as_ref().map(|s| s.fingerprint.clone()),
+        signer_name: None,
+    };
+    let data = submittal_data(e, &identity, &People::default());
+    let attachments = bundle
+        .attachments(signature.as_ref())
+        .map_err(|err| Error::Environment(format!("cannot embed the data files: {err}")))?;
+    let options = RenderOptions {
+        date: super::report::document_date(e.loaded.spec.date)?,
+        attachments,
+    };
+    let rendered = Engine::new()
+        .render_submittal(&data, &options)
+        .map_err(|err| {
+            Error::Environment(format!("the built-in submittal template failed: {err}"))
+        })?;
+    write_atomic(out, &rendered.pdf)
+        .map_err(|err| Error::Environment(format!("cannot write `{}`: {err}", out.display())))?;
+    if !ctx.quiet {
+        for w in &rendered.warnings {
+            eprintln!("warning: {w}");
+        }
+        eprintln!(
+            "wrote {} — submittal {}{}; system: {}",
+            out.display(),
+            identity.report_id,
+            match &identity.signer_key_fingerprint {
+                Some(f) => format!(", signed by key {f}"),
+                None => ", unsigned".into(),
+            },
+            match e.result.verdict {
+                Status::Pass => "within tolerance",
+                Status::Warn => "within tolerance, with warnings",
+                _ => "OUTSIDE tolerance (see the summary page)",
+            }
+        );
+    }
+    Ok(())
 }
 
 fn table(e: &SystemEvaluation, ctx: &Ctx) -> String {

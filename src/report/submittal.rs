@@ -455,14 +455,65 @@ fn summary(e: &SystemEvaluation, organisation: &str, signoff: &SignOff) -> Submi
     }
 }
 
-/// Builds the submittal model. `organisation` and `signoff` are the identity the caller settled
-/// (system file, then the surveys, then the user's configuration).
-pub fn submittal_data(
+/// Who did the work when the system file and the surveys do not say: the user's configuration.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct People {
+    pub organisation: Option<String>,
+    pub technician: Option<String>,
+    pub certificate: Option<String>,
+}
+
+/// The value every duct's survey gives for a sign-off field, when they all give the same one.
+fn common(
     e: &SystemEvaluation,
-    id: &Identity,
-    organisation: &str,
-    signoff: SignOff,
-) -> Submittal {
+    field: fn(&crate::survey::Signoff) -> &Option<String>,
+) -> Option<String> {
+    let mut values = e
+        .ducts
+        .iter()
+        .map(|(ev, _)| field(&ev.loaded.survey.signoff).clone());
+    let first = values.next()??;
+    values
+        .all(|v| v.as_deref() == Some(first.as_str()))
+        .then_some(first)
+}
+
+/// The firm and the sign-off block: the system file first, then what every survey agrees on, then
+/// the user's configuration.
+pub fn identity_of(e: &SystemEvaluation, defaults: &People) -> (String, SignOff) {
+    let spec = &e.loaded.spec;
+    let so = &e.loaded.signoff;
+    let pick = |own: &Option<String>,
+                field: fn(&crate::survey::Signoff) -> &Option<String>,
+                fallback: &Option<String>| {
+        own.clone()
+            .or_else(|| common(e, field))
+            .or_else(|| fallback.clone())
+            .unwrap_or_default()
+    };
+    let organisation = spec
+        .organisation
+        .clone()
+        .or_else(|| defaults.organisation.clone())
+        .unwrap_or_default();
+    let signoff = SignOff {
+        tested_by: pick(&so.tested_by, |s| &s.tested_by, &defaults.technician),
+        certificate: pick(&so.certificate, |s| &s.certificate, &defaults.certificate),
+        tested_date: spec.date.to_string(),
+        reviewed_by: pick(&so.reviewed_by, |s| &s.reviewed_by, &None),
+        reviewed_date: String::new(),
+        organisation: organisation.clone(),
+        statement: "I confirm that this air system was tested as described, that the readings of                     every duct and terminal were recorded as attached, and that the results were                     computed from them by the methods stated."
+            .into(),
+    };
+    (organisation, signoff)
+}
+
+/// Builds the submittal model; `defaults` fill the firm and the sign-off where the system file and
+/// the surveys say nothing.
+pub fn submittal_data(e: &SystemEvaluation, id: &Identity, defaults: &People) -> Submittal {
+    let (organisation, signoff) = identity_of(e, defaults);
+    let organisation = organisation.as_str();
     let spec = &e.loaded.spec;
     let dt: &DisplayTable = &e.display;
     let traverses = e
@@ -627,29 +678,40 @@ mod tests {
             report_id: "AN-0123456789AB".into(),
             content_sha256: "ab".repeat(32),
             signer_key_fingerprint: None,
-        }
-    }
-
-    fn signoff() -> SignOff {
-        SignOff {
-            tested_by: "Tomasz Okafor-Lind".into(),
-            certificate: "TAB-FIC-52210".into(),
-            tested_date: "2026-11-20".into(),
-            reviewed_by: "Hollis Brandvold".into(),
-            reviewed_date: String::new(),
-            organisation: "Saltmarsh Air Balance Ltd (fictional)".into(),
-            statement: "statement".into(),
+            signer_name: None,
         }
     }
 
     #[test]
+    fn the_firm_and_technician_come_from_the_system_file_then_the_surveys_then_the_configuration() {
+        let e = building();
+        let config = People {
+            organisation: Some("Configured firm".into()),
+            technician: Some("Configured technician".into()),
+            certificate: Some("CFG-1".into()),
+        };
+        // the sample system file names the firm and its [signoff]
+        let (org, so) = identity_of(e, &config);
+        assert_eq!(org, "Saltmarsh Air Balance Ltd (fictional)");
+        assert_eq!(so.tested_by, "Tomasz Okafor-Lind");
+        assert_eq!(so.organisation, org);
+        // without them: the surveys agree on the technician; the firm comes from the configuration
+        let mut bare = e.clone();
+        bare.loaded.spec.organisation = None;
+        bare.loaded.signoff = Default::default();
+        let (org, so) = identity_of(&bare, &config);
+        assert_eq!(org, "Configured firm");
+        assert_eq!(so.tested_by, "Tomasz Okafor-Lind");
+        assert_eq!(so.certificate, "TAB-FIC-52210");
+        // surveys that disagree leave it to the configuration
+        bare.ducts[0].0.loaded.survey.signoff.tested_by = Some("Someone else".into());
+        let (_, so) = identity_of(&bare, &config);
+        assert_eq!(so.tested_by, "Configured technician");
+    }
+
+    #[test]
     fn the_model_carries_every_section_in_the_job_units() {
-        let s = submittal_data(
-            building(),
-            &identity(),
-            "Saltmarsh Air Balance Ltd (fictional)",
-            signoff(),
-        );
+        let s = submittal_data(building(), &identity(), &People::default());
         assert_eq!(s.summary.verdict, Status::Fail);
         assert_eq!(s.ducts.rows.len(), 6);
         assert_eq!(s.traverses.len(), 6);
@@ -676,12 +738,7 @@ mod tests {
 
     #[test]
     fn the_submittal_renders_with_no_warnings() {
-        let s = submittal_data(
-            building(),
-            &identity(),
-            "Saltmarsh Air Balance Ltd (fictional)",
-            signoff(),
-        );
+        let s = submittal_data(building(), &identity(), &People::default());
         let options = RenderOptions {
             date: building().loaded.spec.date,
             attachments: vec![],
