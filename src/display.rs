@@ -93,8 +93,7 @@ impl Shown {
         // `ascii` symbols are literals of this file, checked by the tests against the unit
         // table; a miss would be a programming error caught there.
         let (factor, offset) = match ascii {
-            // "rpm" is held as rpm (see Kind::FanSpeed)
-            "1" | "rpm" => (1.0, 0.0),
+            "1" => (1.0, 0.0),
             "%" => (100.0, 0.0),
             "g/mol" | "lb/lb-mol" => (1.0, 0.0),
             other => match lookup_unit(other) {
@@ -550,7 +549,7 @@ mod tests {
             for k in Kind::ALL {
                 let sh = t.get(k);
                 assert!(sh.factor.is_finite(), "{:?} {:?}: {}", t, k, sh.ascii);
-                if matches!(sh.ascii, "1" | "%" | "g/mol" | "lb/lb-mol" | "rpm") {
+                if matches!(sh.ascii, "1" | "%" | "g/mol" | "lb/lb-mol") {
                     continue;
                 }
                 let unit = lookup_unit(sh.ascii).expect("ascii symbol in the unit table");

@@ -6,7 +6,7 @@ use crate::assess::{Assessment, Verdict};
 use crate::checks::Status;
 use crate::diag::{Diagnostic, Diagnostics, Error};
 use crate::display::{DisplayTable, UnitSystem};
-use crate::flow::Convention;
+use crate::flow::design::{flow_on_basis, Flows};
 use crate::input::system_file::LoadedSystem;
 use crate::input::system_file::SystemSignoff;
 use crate::pipeline::{evaluate_and_assess, Evaluation};
@@ -31,29 +31,22 @@ pub struct SystemEvaluation {
     pub mixed_units: bool,
 }
 
-/// The factor from a convention's standard flow to the flow at normal conditions (0 °C,
-/// 101.325 kPa). HVAC standard flow is mass flow over the standard air density, so the normal
-/// flow is the mass flow over the density of dry air at normal conditions,
-/// ρ_N = 101 325 / (287.042 · 273.15) = 1.2923 kg/m³ (R_da from ASHRAE Handbook Fundamentals
-/// ch. 1); for a stack convention, the ideal gas law from its reference conditions.
-fn normal_factor(c: &Convention) -> f64 {
-    let (t_n, p_n) = FlowBasis::Normal.reference().unwrap_or((273.15, 101_325.0));
-    match c.standard_density_kg_m3 {
-        Some(rho_std) => rho_std / (p_n / (287.042 * t_n)),
-        None => (t_n / c.reference_temperature_k) * (c.reference_pressure_pa / p_n),
-    }
-}
-
 fn measurement(e: &Evaluation, a: &Assessment) -> Option<DuctMeasurement> {
     let avg = e.average.as_ref()?;
-    let k = normal_factor(&e.convention);
+    let flows = Flows {
+        actual_m3_s: avg.actual_flow_m3_s,
+        standard_m3_s: avg.standard_flow_m3_s,
+        dry_standard_m3_s: avg.dry_standard_flow_m3_s,
+    };
+    // every basis by the one rule a survey's design comparison uses
+    let on = |b: FlowBasis| flow_on_basis(flows, b, &e.convention);
     Some(DuctMeasurement {
         flows: FlowSet {
-            actual_m3_s: avg.actual_flow_m3_s,
-            standard_m3_s: avg.standard_flow_m3_s,
-            dry_standard_m3_s: avg.dry_standard_flow_m3_s,
-            normal_m3_s: avg.standard_flow_m3_s * k,
-            normal_dry_m3_s: avg.dry_standard_flow_m3_s * k,
+            actual_m3_s: on(FlowBasis::Actual),
+            standard_m3_s: on(FlowBasis::Standard),
+            dry_standard_m3_s: on(FlowBasis::DryStandard),
+            normal_m3_s: on(FlowBasis::Normal),
+            normal_dry_m3_s: on(FlowBasis::NormalDry),
         },
         mean_velocity_m_s: avg.mean_velocity_m_s,
         area_m2: e.loaded.survey.duct.area_m2(),
@@ -214,19 +207,5 @@ impl SystemEvaluation {
             result: &self.result,
             deficiencies: &spec.deficiencies,
         }
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::flow::EpaForm;
-
-    #[test]
-    fn normal_flow_from_hvac_standard_air() {
-        // hvac-si standard air 1.2 kg/m³ (ISO 5801); dry air at 0 °C and 101.325 kPa:
-        // 101325/(287.042 · 273.15) = 1.292 320 kg/m³ (R_da, ASHRAE Fundamentals ch. 1; derived)
-        let c = Convention::new(ConventionId::HvacSi, EpaForm::English, None);
-        assert!((normal_factor(&c) - 1.2 / 1.292_320).abs() < 1e-6);
     }
 }

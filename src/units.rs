@@ -64,6 +64,8 @@ pub enum Dimension {
     Current,
     /// Power (fan shaft or motor power).
     Power,
+    /// Rotational speed of a fan; held in rpm, the unit of nameplates and drives.
+    RotationalSpeed,
 }
 
 impl Dimension {
@@ -87,6 +89,7 @@ impl Dimension {
             Dimension::MolarMass => "molar mass",
             Dimension::Current => "current",
             Dimension::Power => "power",
+            Dimension::RotationalSpeed => "rotational speed",
         }
     }
 
@@ -109,6 +112,7 @@ impl Dimension {
             Dimension::MolarMass => "g/mol",
             Dimension::Current => "A",
             Dimension::Power => "W",
+            Dimension::RotationalSpeed => "rpm",
         }
     }
 
@@ -132,6 +136,7 @@ impl Dimension {
             Dimension::MolarMass => "29.0 g/mol",
             Dimension::Current => "18.4 A",
             Dimension::Power => "5 hp",
+            Dimension::RotationalSpeed => "1150 rpm",
         }
     }
 }
@@ -276,6 +281,8 @@ pub const UNITS: &[Unit] = &[
     u("W", Dimension::Power, 1.0),
     u("kW", Dimension::Power, 1000.0),
     u("hp", Dimension::Power, HP_W),
+    // fan speed, held in rpm (as molar mass is held in g/mol)
+    u("rpm", Dimension::RotationalSpeed, 1.0),
 ];
 
 /// Other spellings of symbols in [`UNITS`], as the trade writes them: `(spelling, symbol)`.

@@ -2,108 +2,31 @@
 //! survey, their roles and designs, the fan, the terminal readings and the deficiencies; then every
 //! duct's survey and the terminals CSV.
 //!
-//! Every problem of every file is reported in one pass: the system file's own values, the relations
-//! between ducts ([`crate::system::validate`], located at the key that makes them wrong), each
-//! survey's and readings file's problems, and the terminals CSV's cells ([`super::terminals_file`]).
+//! Every problem of every file is reported in one pass: the system file's own structure and values
+//! (through [`super::toml_doc`]), the relations between ducts ([`crate::system::validate`], located
+//! at the key that makes them wrong), each survey's and readings file's problems, and the terminals
+//! CSV's cells ([`super::terminals_file`]).
 
-use super::text::{span_location, Spanned};
-use super::{read_text_with, FileSource, Loaded, SourceFile};
-use crate::diag::{Diagnostic, Diagnostics, Error, Location};
+use super::survey::options::design_flow;
+use super::terminals_file::{locate_terminal_error, read_terminals};
+use super::toml_doc::{did_you_mean, Field, Table, TomlDoc};
+use super::{load_referenced, read_referenced, read_text_with, FileKind, FileSource, Loaded};
+use super::{MemoryFiles, SourceFile};
+use crate::diag::{Diagnostic, Error, Location};
+use crate::system::rules::DEFAULT_TOLERANCE;
 use crate::system::{
-    validate, Deficiency, DeficiencyStatus, DesignFlow, DuctSpec, FanSpec, Role, SpecError,
-    SystemSpec, Tolerance,
+    validate, Deficiency, DeficiencyStatus, DuctSpec, FanSpec, Role, SpecError, SystemSpec,
+    Tolerance,
 };
-use crate::units::{parse_flow, parse_quantity, Dimension};
-use serde::Deserialize;
-use std::ops::Range;
+use crate::units::Dimension;
 use std::path::Path;
+use toml::de::DeValue;
 
-type S = Spanned<String>;
+const HINT_FORMAT: &str =
+    "see the system file format in the README (sample-data/building/ahu-2.toml is a complete example)";
 
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFile {
-    system: RawSystem,
-    fan: Option<RawFan>,
-    #[serde(default, rename = "duct")]
-    ducts: Vec<RawDuct>,
-    terminals: Option<RawTerminals>,
-    #[serde(default, rename = "deficiency")]
-    deficiencies: Vec<RawDeficiency>,
-    signoff: Option<RawSignoff>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSystem {
-    title: String,
-    site: Option<String>,
-    date: Spanned<toml::Value>,
-    organisation: Option<String>,
-    tolerance: Option<S>,
-    tolerance_reason: Option<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(untagged)]
-enum OneOrMany {
-    One(String),
-    Many(Vec<String>),
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFan {
-    tag: S,
-    design_flow: S,
-    duct: Option<Spanned<OneOrMany>>,
-    design_rpm: Option<Spanned<toml::Value>>,
-    measured_rpm: Option<Spanned<toml::Value>>,
-    design_static: Option<S>,
-    measured_static: Option<S>,
-    motor_amps_rated: Option<S>,
-    measured_amps: Option<S>,
-    motor_power_rated: Option<S>,
-    measured_power: Option<S>,
-    tolerance: Option<S>,
-    tolerance_reason: Option<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawDuct {
-    tag: S,
-    survey: S,
-    role: S,
-    design: S,
-    of: Option<S>,
-    tolerance: Option<S>,
-    tolerance_reason: Option<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawTerminals {
-    readings: S,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawDeficiency {
-    item: String,
-    status: S,
-    note: Option<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSignoff {
-    tested_by: Option<String>,
-    certificate: Option<String>,
-    reviewed_by: Option<String>,
-}
-
-/// Who signs the submittal, as the system file says (the user configuration fills the gaps).
+/// Who signs the submittal, as the system file says (the surveys and the user's configuration
+/// fill the gaps).
 #[derive(Debug, Clone, Default, PartialEq, serde::Serialize)]
 pub struct SystemSignoff {
     pub tested_by: Option<String>,
@@ -111,20 +34,20 @@ pub struct SystemSignoff {
     pub reviewed_by: Option<String>,
 }
 
-/// Where the values that relations refer to sit in the system file, to place a relation's problem.
+/// Where the values that relations refer to are written, to place a relation's problem.
 #[derive(Debug, Clone, Default)]
-struct Spans {
-    duct_tag: Vec<Range<usize>>,
-    duct_role: Vec<Range<usize>>,
-    duct_of: Vec<Option<Range<usize>>>,
-    duct_design: Vec<Range<usize>>,
-    duct_tolerance: Vec<Option<Range<usize>>>,
-    system_tolerance: Option<Range<usize>>,
-    system_header: Range<usize>,
-    fan_tag: Option<Range<usize>>,
-    fan_duct: Option<Range<usize>>,
-    fan_keys: Vec<(&'static str, Range<usize>)>,
-    fan_tolerance: Option<Range<usize>>,
+struct Places {
+    duct_tag: Vec<Location>,
+    duct_role: Vec<Location>,
+    duct_of: Vec<Option<Location>>,
+    duct_design: Vec<Location>,
+    duct_tolerance: Vec<Option<Location>>,
+    system: Location,
+    system_tolerance: Option<Location>,
+    fan: Option<Location>,
+    fan_duct: Option<Location>,
+    fan_keys: Vec<(&'static str, Location)>,
+    fan_tolerance: Option<Location>,
 }
 
 /// A system file as read, before its surveys are loaded.
@@ -132,10 +55,11 @@ struct Spans {
 pub struct ParsedSystem {
     pub spec: SystemSpec,
     pub signoff: SystemSignoff,
-    /// The terminals CSV path as written, and where it is written (to place a read error).
-    terminals: Option<(String, Range<usize>)>,
-    survey_spans: Vec<Range<usize>>,
-    spans: Spans,
+    /// Where each duct's `survey` is written (its problems are reported there).
+    pub survey_locations: Vec<Location>,
+    /// The terminals CSV as written and where.
+    terminals: Option<(String, Location)>,
+    places: Places,
 }
 
 /// A system with every file it names, read and validated.
@@ -210,439 +134,383 @@ pub fn load_system_from(inputs: &[SystemInput]) -> Result<LoadedSystem, Error> {
             "no system file among the embedded files",
         )));
     };
-    let mut files = super::MemoryFiles::new();
+    let mut files = MemoryFiles::new();
     for i in inputs {
         files.insert(&i.path, i.bytes.clone());
     }
     load_system_with(Path::new(&system.path), &|p| files.read(p))
 }
 
-struct Ctx<'a> {
-    file: &'a str,
-    text: &'a str,
-    diags: Diagnostics,
-}
-
-impl Ctx<'_> {
-    fn loc(&self, span: Range<usize>, key: &str) -> Location {
-        span_location(self.file, self.text, span.start).with_context(format!("`{key}`"))
-    }
-
-    fn error(&mut self, span: Range<usize>, key: &str, msg: String, hint: Option<String>) {
-        let mut d = Diagnostic::new(msg).at(self.loc(span, key));
-        if let Some(h) = hint {
-            d = d.hint(h);
-        }
-        self.diags.push(d);
-    }
-
-    fn quantity(&mut self, v: &S, key: &str, dim: Dimension) -> Option<f64> {
-        match parse_quantity(v.get_ref(), dim) {
-            Ok(x) => Some(x),
-            Err(e) => {
-                self.error(v.span(), key, format!("`{key}`: {e}"), Some(e.hint()));
-                None
-            }
-        }
-    }
-
-    fn opt_quantity(&mut self, v: &Option<S>, key: &str, dim: Dimension) -> Option<f64> {
-        v.as_ref().and_then(|v| self.quantity(v, key, dim))
-    }
-
-    fn flow(&mut self, v: &S, key: &str) -> Option<DesignFlow> {
-        match parse_flow(v.get_ref()) {
-            Ok((flow_m3_s, basis)) => Some(DesignFlow { flow_m3_s, basis }),
-            Err(e) => {
-                self.error(
-                    v.span(),
-                    key,
-                    format!("`{key}`: {e}"),
-                    Some(format!(
-                        "{}; `cfm` is actual air, `scfm` standard air",
-                        e.hint()
-                    )),
-                );
-                None
-            }
-        }
-    }
-
-    fn tolerance(
-        &mut self,
-        v: &Option<S>,
-        reason: &Option<String>,
-        key: &str,
-    ) -> Option<Tolerance> {
-        let v = v.as_ref()?;
-        let fraction = self.quantity(v, key, Dimension::Fraction)?;
-        Some(Tolerance {
-            fraction,
-            reason: reason.clone(),
-        })
-    }
-
-    fn rpm(&mut self, v: &Option<Spanned<toml::Value>>, key: &str) -> Option<f64> {
-        let v = v.as_ref()?;
-        // a plain number, or the same with its unit written out ("1150 rpm")
-        let n = match v.get_ref() {
-            toml::Value::Integer(i) => Some(*i as f64),
-            toml::Value::Float(f) if f.is_finite() => Some(*f),
-            toml::Value::String(s) => s
-                .trim()
-                .strip_suffix("rpm")
-                .and_then(crate::units::parse_number)
-                .filter(|n| n.is_finite()),
-            _ => None,
-        };
-        if n.is_none() {
-            let short = key.rsplit('.').next().unwrap_or(key);
-            self.error(
-                v.span(),
-                key,
-                format!(
-                    "`{key}` must be a number of revolutions per minute, found `{}`",
-                    super::text::toml_text(v.get_ref())
-                ),
-                Some(format!("write e.g. {short} = 1150")),
+/// A ± tolerance on percent of design (`"10 %"`) with its optional reason.
+fn tolerance(t: &Table, key: &str) -> Option<Option<Tolerance>> {
+    let Some(f) = t.get(key) else {
+        if let Some(r) = t.get("tolerance_reason") {
+            r.error(
+                format!("`{}` explains a tolerance that is not given", r.path()),
+                Some(format!("add {key} = \"10 %\", or remove the reason")),
             );
         }
-        n
-    }
-
-    fn choice<T: Copy>(&mut self, v: &S, key: &str, options: &[(&str, T)]) -> Option<T> {
-        let found = v.get_ref().trim();
-        if let Some((_, t)) = options.iter().find(|(n, _)| *n == found) {
-            return Some(*t);
-        }
-        let names: Vec<&str> = options.iter().map(|(n, _)| *n).collect();
-        self.error(
-            v.span(),
-            key,
-            format!(
-                "`{key}` must be one of {}, found `{found}`",
-                names.join(" | ")
-            ),
-            None,
-        );
-        None
-    }
+        return Some(None);
+    };
+    let fraction = f.quantity(Dimension::Fraction)?;
+    let reason = t.opt_text("tolerance_reason");
+    Some(Some(Tolerance { fraction, reason }))
 }
 
-fn toml_error(file: &str, text: &str, e: toml::de::Error) -> Error {
-    let loc = match e.span() {
-        Some(span) => span_location(file, text, span.start),
-        None => Location::file(file),
-    };
-    Error::input(
-        Diagnostic::new(format!(
-            "the system file is not valid: {}",
-            e.message().trim()
-        ))
-        .at(loc)
-        .hint("see the system file format in the README (sample-data/building/ is a complete example)"),
-    )
-}
-
-/// Parses a system file's text (`file` names it in diagnostics). The relations between ducts are
-/// validated here; the surveys and the terminals CSV are not read ([`load_system`] does that).
-pub fn parse_system(file: &str, text: &str) -> Result<ParsedSystem, Error> {
-    let raw: RawFile = toml::from_str(text).map_err(|e| toml_error(file, text, e))?;
-    let mut cx = Ctx {
-        file,
-        text,
-        diags: Diagnostics::new(),
-    };
-    let parsed = build(&mut cx, raw);
-    if let Some(p) = &parsed {
-        for e in validate(&p.spec) {
-            // terminals are validated after their CSV is read
-            if let Some(d) = locate_spec_error(&cx, p, &e) {
-                cx.diags.push(d);
-            }
-        }
-    }
-    match parsed {
-        Some(p) if cx.diags.is_empty() => Ok(p),
+/// A fan speed: a plain number of rpm, or the same with its unit (`"1150 rpm"`).
+fn rpm(f: &Field) -> Option<f64> {
+    match f.value {
+        DeValue::String(_) => f.quantity(Dimension::RotationalSpeed),
+        DeValue::Integer(_) | DeValue::Float(_) => f.number(),
         _ => {
-            if cx.diags.is_empty() {
-                cx.diags.push(
-                    Diagnostic::new("the system file could not be read").at(Location::file(file)),
-                );
-            }
-            Err(Error::Input(cx.diags))
+            f.wrong_type(
+                "a number of revolutions per minute",
+                Some(format!(
+                    "write e.g. {} = 1150",
+                    f.path().rsplit('.').next().unwrap_or("rpm")
+                )),
+            );
+            None
         }
     }
 }
 
-fn build(cx: &mut Ctx, raw: RawFile) -> Option<ParsedSystem> {
-    let s = &raw.system;
-    let (date_text, date) = super::text::toml_date(s.date.get_ref());
-    if date.is_none() {
-        cx.error(
-            s.date.span(),
-            "system.date",
-            format!("`system.date` is not a date: `{date_text}`"),
-            Some("write the date as YYYY-MM-DD, e.g. \"2026-11-20\"".into()),
-        );
-    }
-    let system_tolerance = cx.tolerance(&s.tolerance, &s.tolerance_reason, "system.tolerance");
-    let mut spans = Spans {
-        system_tolerance: s.tolerance.as_ref().map(|t| t.span()),
-        system_header: s.date.span(),
-        ..Spans::default()
-    };
-    if raw.ducts.is_empty() {
-        cx.error(
-            s.date.span(),
-            "duct",
-            "a system file needs at least one [[duct]]".into(),
-            Some("add [[duct]] tables with tag, survey, role and design".into()),
-        );
-    }
-    let roles = Role::ALL.map(|r| (r.name(), r));
-    let mut ducts = Vec::new();
-    let mut survey_spans = Vec::new();
-    let mut complete = true;
-    for d in &raw.ducts {
-        let role = cx.choice(&d.role, "duct.role", &roles);
-        let design = cx.flow(&d.design, "duct.design");
-        let tolerance = cx.tolerance(&d.tolerance, &d.tolerance_reason, "duct.tolerance");
-        if d.tolerance.is_some() && tolerance.is_none() {
-            complete = false;
+/// The tags a fan's `duct` names: one string or a list of them.
+fn tags(f: &Field) -> Option<Vec<String>> {
+    match f.value {
+        DeValue::String(s) => Some(vec![s.trim().to_string()]),
+        DeValue::Array(_) => f
+            .strings()
+            .map(|v| v.into_iter().map(|t| t.trim().to_string()).collect()),
+        _ => {
+            f.wrong_type(
+                "a duct tag or a list of them",
+                Some("write e.g. duct = \"SA-main\" or duct = [\"SA-1\", \"SA-2\"]".into()),
+            );
+            None
         }
-        let tag = d.tag.get_ref().trim().to_string();
-        if tag.is_empty() {
-            cx.error(
-                d.tag.span(),
-                "duct.tag",
+    }
+}
+
+fn read_fan(t: &Table, places: &mut Places) -> Option<FanSpec> {
+    let doc = t.doc();
+    places.fan = Some(doc.location(t.span(), "fan"));
+    let tag = t.text("tag", "\"SF-1\"");
+    let design = t.required("design_flow", "\"8000 cfm\"");
+    if let Some(f) = &design {
+        places
+            .fan_keys
+            .push(("design_flow", doc.location(f.span.clone(), &f.path())));
+    }
+    let design = design.and_then(|f| design_flow(&f));
+    let ducts = match t.get("duct") {
+        None => Some(Vec::new()),
+        Some(f) => {
+            places.fan_duct = Some(doc.location(f.span.clone(), "fan.duct"));
+            tags(&f)
+        }
+    };
+    let mut speed = |key: &'static str| -> Option<Option<f64>> {
+        match t.get(key) {
+            None => Some(None),
+            Some(f) => {
+                places
+                    .fan_keys
+                    .push((key, doc.location(f.span.clone(), &f.path())));
+                rpm(&f).map(Some)
+            }
+        }
+    };
+    let design_rpm = speed("design_rpm");
+    let measured_rpm = speed("measured_rpm");
+    let mut figure = |key: &'static str, dim: Dimension| -> Option<Option<f64>> {
+        match t.get(key) {
+            None => Some(None),
+            Some(f) => {
+                places
+                    .fan_keys
+                    .push((key, doc.location(f.span.clone(), &f.path())));
+                f.quantity(dim).map(Some)
+            }
+        }
+    };
+    let design_static = figure("design_static", Dimension::Pressure);
+    let measured_static = figure("measured_static", Dimension::Pressure);
+    let amps_rated = figure("motor_amps_rated", Dimension::Current);
+    let amps = figure("measured_amps", Dimension::Current);
+    let power_rated = figure("motor_power_rated", Dimension::Power);
+    let power = figure("measured_power", Dimension::Power);
+    places.fan_tolerance = t
+        .get("tolerance")
+        .map(|f| doc.location(f.span, "fan.tolerance"));
+    let tolerance = tolerance(t, "tolerance");
+    Some(FanSpec {
+        tag: tag?,
+        design_flow: design?,
+        ducts: ducts?,
+        design_rpm: design_rpm?,
+        measured_rpm: measured_rpm?,
+        design_static_pa: design_static?,
+        measured_static_pa: measured_static?,
+        motor_amps_rated: amps_rated?,
+        measured_amps: amps?,
+        motor_power_rated_w: power_rated?,
+        measured_power_w: power?,
+        tolerance: tolerance?,
+    })
+}
+
+fn read_duct(t: &Table, places: &mut Places) -> (Option<DuctSpec>, Option<Location>) {
+    let doc = t.doc();
+    let at = |f: &Option<Field>, key: &str| {
+        f.as_ref()
+            .map(|f| doc.location(f.span.clone(), key))
+            .unwrap_or_else(|| doc.location(t.span(), key))
+    };
+    let tag_field = t.required("tag", "\"SA-1\"");
+    let role_field = t.required("role", "\"supply\"");
+    let design_field = t.required("design", "\"8000 cfm\"");
+    let survey_field = t.required("survey", "\"sa-1/survey.toml\"");
+    let of_field = t.get("of");
+    places.duct_tag.push(at(&tag_field, "duct.tag"));
+    places.duct_role.push(at(&role_field, "duct.role"));
+    places.duct_design.push(at(&design_field, "duct.design"));
+    places.duct_of.push(
+        of_field
+            .as_ref()
+            .map(|f| doc.location(f.span.clone(), "duct.of")),
+    );
+    places.duct_tolerance.push(
+        t.get("tolerance")
+            .map(|f| doc.location(f.span, "duct.tolerance")),
+    );
+    let survey_at = survey_field
+        .as_ref()
+        .map(|f| doc.location(f.span.clone(), "duct.survey"));
+    let tag = tag_field.and_then(|f| {
+        let s = f.str()?.trim().to_string();
+        if s.is_empty() {
+            f.error(
                 "`duct.tag` is empty".into(),
                 Some("give each duct a short tag such as \"SA-1\"".into()),
             );
+            return None;
         }
-        match (role, design) {
-            (Some(role), Some(design)) => ducts.push(DuctSpec {
-                tag,
-                survey: d.survey.get_ref().clone(),
-                role,
-                of: d.of.as_ref().map(|o| o.get_ref().trim().to_string()),
-                design,
-                tolerance,
-            }),
-            _ => complete = false,
-        }
-        spans.duct_tag.push(d.tag.span());
-        spans.duct_role.push(d.role.span());
-        spans.duct_of.push(d.of.as_ref().map(|o| o.span()));
-        spans.duct_design.push(d.design.span());
-        spans
-            .duct_tolerance
-            .push(d.tolerance.as_ref().map(|t| t.span()));
-        survey_spans.push(d.survey.span());
-    }
-    let fan = raw.fan.as_ref().and_then(|f| {
-        spans.fan_tag = Some(f.tag.span());
-        spans.fan_tolerance = f.tolerance.as_ref().map(|t| t.span());
-        let design_flow = cx.flow(&f.design_flow, "fan.design_flow");
-        let ducts = match &f.duct {
-            None => Vec::new(),
-            Some(d) => {
-                spans.fan_duct = Some(d.span());
-                match d.get_ref() {
-                    OneOrMany::One(t) => vec![t.trim().to_string()],
-                    OneOrMany::Many(v) => v.iter().map(|t| t.trim().to_string()).collect(),
-                }
-            }
-        };
-        let mut key = |k: &'static str, v: &Option<S>| {
-            if let Some(v) = v {
-                spans.fan_keys.push((k, v.span()));
-            }
-        };
-        key("design_static", &f.design_static);
-        key("measured_static", &f.measured_static);
-        key("motor_amps_rated", &f.motor_amps_rated);
-        key("measured_amps", &f.measured_amps);
-        key("motor_power_rated", &f.motor_power_rated);
-        key("measured_power", &f.measured_power);
-        key("design_flow", &Some(f.design_flow.clone()));
-        if let Some(v) = &f.design_rpm {
-            spans.fan_keys.push(("design_rpm", v.span()));
-        }
-        if let Some(v) = &f.measured_rpm {
-            spans.fan_keys.push(("measured_rpm", v.span()));
-        }
-        let spec = FanSpec {
-            tag: f.tag.get_ref().trim().to_string(),
-            design_flow: design_flow?,
-            ducts,
-            design_rpm: cx.rpm(&f.design_rpm, "fan.design_rpm"),
-            measured_rpm: cx.rpm(&f.measured_rpm, "fan.measured_rpm"),
-            design_static_pa: cx.opt_quantity(
-                &f.design_static,
-                "fan.design_static",
-                Dimension::Pressure,
-            ),
-            measured_static_pa: cx.opt_quantity(
-                &f.measured_static,
-                "fan.measured_static",
-                Dimension::Pressure,
-            ),
-            motor_amps_rated: cx.opt_quantity(
-                &f.motor_amps_rated,
-                "fan.motor_amps_rated",
-                Dimension::Current,
-            ),
-            measured_amps: cx.opt_quantity(
-                &f.measured_amps,
-                "fan.measured_amps",
-                Dimension::Current,
-            ),
-            motor_power_rated_w: cx.opt_quantity(
-                &f.motor_power_rated,
-                "fan.motor_power_rated",
-                Dimension::Power,
-            ),
-            measured_power_w: cx.opt_quantity(
-                &f.measured_power,
-                "fan.measured_power",
-                Dimension::Power,
-            ),
-            tolerance: cx.tolerance(&f.tolerance, &f.tolerance_reason, "fan.tolerance"),
-        };
-        Some(spec)
+        Some(s)
     });
-    if raw.fan.is_some() && fan.is_none() {
-        complete = false;
+    let role = role_field.and_then(|f| f.choice(&Role::ALL.map(|r| (r.name(), r))));
+    let design = design_field.and_then(|f| design_flow(&f));
+    let survey = survey_field.and_then(|f| f.str().map(|s| s.trim().to_string()));
+    let of = match &of_field {
+        None => Some(None),
+        Some(f) => f.str().map(|s| Some(s.trim().to_string())),
+    };
+    let tolerance = tolerance(t, "tolerance");
+    let spec = (|| {
+        Some(DuctSpec {
+            tag: tag?,
+            survey: survey?,
+            role: role?,
+            of: of?,
+            design: design?,
+            tolerance: tolerance?,
+        })
+    })();
+    (spec, survey_at)
+}
+
+/// Reads the system file's tables; relations are not checked here.
+fn read_system(root: &Table) -> Option<ParsedSystem> {
+    let doc = root.doc();
+    let s = root.table("system");
+    let mut places = Places {
+        system: doc.location(s.as_ref().map(|t| t.span()).unwrap_or(0..0), "system"),
+        ..Places::default()
+    };
+    let (title, date, organisation, site, sys_tolerance) = match &s {
+        Some(s) => {
+            places.system_tolerance = s
+                .get("tolerance")
+                .map(|f| doc.location(f.span, "system.tolerance"));
+            (
+                s.text("title", "\"AHU-1 air system\""),
+                s.date("date", "2026-11-20"),
+                s.opt_text("organisation"),
+                s.opt_text("site"),
+                tolerance(s, "tolerance"),
+            )
+        }
+        None => (None, None, None, None, None),
+    };
+    let signoff = root
+        .opt_table("signoff")
+        .map(|t| SystemSignoff {
+            tested_by: t.opt_text("tested_by"),
+            certificate: t.opt_text("certificate"),
+            reviewed_by: t.opt_text("reviewed_by"),
+        })
+        .unwrap_or_default();
+    let fan = match root.opt_table("fan") {
+        None => Some(None),
+        Some(t) => read_fan(&t, &mut places).map(Some),
+    };
+    let duct_tables = root.tables("duct");
+    if duct_tables.is_empty() {
+        doc.push(
+            Diagnostic::new("the system file has no [[duct]]")
+                .at(places.system.clone())
+                .hint("add one [[duct]] per traversed duct: tag, survey, role and design"),
+        );
     }
+    let mut ducts = Vec::new();
+    let mut survey_locations = Vec::new();
+    let mut complete = !duct_tables.is_empty();
+    for t in &duct_tables {
+        let (d, at) = read_duct(t, &mut places);
+        survey_locations.push(at.unwrap_or_else(|| doc.location(t.span(), "duct")));
+        match d {
+            Some(d) => ducts.push(d),
+            None => complete = false,
+        }
+    }
+    let terminals = root.opt_table("terminals").and_then(|t| {
+        let f = t.required("readings", "\"terminals.csv\"")?;
+        let path = f.str()?.trim().to_string();
+        Some((path, doc.location(f.span.clone(), "terminals.readings")))
+    });
     let statuses = [
         ("open", DeficiencyStatus::Open),
         ("resolved", DeficiencyStatus::Resolved),
     ];
-    let deficiencies: Vec<Deficiency> = raw
-        .deficiencies
-        .iter()
-        .filter_map(|d| {
-            let status = cx.choice(&d.status, "deficiency.status", &statuses)?;
-            Some(Deficiency {
-                item: d.item.clone(),
-                status,
-                note: d.note.clone(),
-            })
-        })
-        .collect();
-    let signoff = raw
-        .signoff
-        .as_ref()
-        .map(|s| SystemSignoff {
-            tested_by: s.tested_by.clone(),
-            certificate: s.certificate.clone(),
-            reviewed_by: s.reviewed_by.clone(),
-        })
-        .unwrap_or_default();
-    if !complete || date.is_none() || (s.tolerance.is_some() && system_tolerance.is_none()) {
+    let mut deficiencies = Vec::new();
+    for t in root.tables("deficiency") {
+        let item = t.text("item", "\"Damper VD-3 seized\"");
+        let status = t.choice("status", &statuses);
+        let note = t.opt_text("note");
+        if let (Some(item), Some(status)) = (item, status) {
+            deficiencies.push(Deficiency { item, status, note });
+        } else {
+            complete = false;
+        }
+    }
+    if !complete {
         return None;
     }
+    let tolerance = sys_tolerance?;
     Some(ParsedSystem {
         spec: SystemSpec {
-            title: s.title.clone(),
-            site: s.site.clone(),
+            title: title?,
+            site,
             date: date?,
-            organisation: s.organisation.clone(),
-            tolerance_given: system_tolerance.is_some(),
-            tolerance: system_tolerance
-                .unwrap_or_else(|| Tolerance::new(crate::system::rules::DEFAULT_TOLERANCE)),
-            fan,
+            organisation,
+            tolerance_given: tolerance.is_some(),
+            tolerance: tolerance.unwrap_or_else(|| Tolerance::new(DEFAULT_TOLERANCE)),
+            fan: fan?,
             ducts,
-            terminal_file: raw.terminals.as_ref().map(|t| t.readings.get_ref().clone()),
+            terminal_file: terminals.as_ref().map(|(p, _)| p.clone()),
             terminals: Vec::new(),
             deficiencies,
         },
         signoff,
-        terminals: raw
-            .terminals
-            .as_ref()
-            .map(|t| (t.readings.get_ref().clone(), t.readings.span())),
-        survey_spans,
-        spans,
+        survey_locations,
+        terminals,
+        places,
     })
 }
 
-/// The located diagnostic for a relation problem of the system file (`None` for terminal
-/// problems, which belong to the terminals CSV).
-fn locate_spec_error(cx: &Ctx, p: &ParsedSystem, e: &SpecError) -> Option<Diagnostic> {
-    let sp = &p.spans;
+/// Parses a system file's text (`file` names it in diagnostics) and checks the relations between
+/// its ducts; the surveys and the terminals CSV are not read ([`load_system`] does that).
+pub fn parse_system(file: &str, text: &str) -> Result<ParsedSystem, Error> {
+    let doc = TomlDoc::parse(file, text, "system file")?;
+    let parsed = read_checked(&doc);
+    doc.finish(parsed)
+}
+
+/// Reads the tables and records every relation problem in `doc`.
+fn read_checked(doc: &TomlDoc) -> Option<ParsedSystem> {
+    let parsed = {
+        let root = doc.root();
+        read_system(&root)
+    };
+    if let Some(p) = &parsed {
+        for e in validate(&p.spec) {
+            if let Some(d) = locate_spec_error(p, &e) {
+                doc.push(d);
+            }
+        }
+    }
+    if parsed.is_none() && !doc.has_errors() {
+        doc.push(
+            Diagnostic::new("the system file could not be read")
+                .at(Location::file(doc.file()))
+                .hint(HINT_FORMAT),
+        );
+    }
+    parsed
+}
+
+/// Why a relation does not stand, at the key that makes it wrong (`None` for terminal problems,
+/// which belong to the terminals CSV).
+fn locate_spec_error(p: &ParsedSystem, e: &SpecError) -> Option<Diagnostic> {
+    let pl = &p.places;
     let ducts = &p.spec.ducts;
-    let at = |span: &Range<usize>, key: &str| cx.loc(span.clone(), key);
+    let tags: Vec<&str> = ducts.iter().map(|d| d.tag.as_str()).collect();
+    let suggest = |found: &str| match did_you_mean(found, &tags) {
+        Some(t) => format!("did you mean `{t}`?"),
+        None => format!("the ducts are: {}", tags.join(", ")),
+    };
+    let of_or_role = |i: usize| pl.duct_of[i].clone().unwrap_or(pl.duct_role[i].clone());
     let d = match e {
         SpecError::DuplicateTag { index, first } => Diagnostic::new(format!(
             "two ducts are tagged `{}`",
             ducts[*index].tag
         ))
-        .at(at(&sp.duct_tag[*index], "duct.tag"))
+        .at(pl.duct_tag[*index].clone())
         .hint(format!(
             "the first is at line {}; give every duct its own tag",
-            super::text::line_column(cx.text, sp.duct_tag[*first].start).0
+            pl.duct_tag[*first].line.unwrap_or(0)
         )),
         SpecError::BranchWithoutParent { index } => Diagnostic::new(format!(
             "duct `{}` is a branch but does not say which duct it branches from",
             ducts[*index].tag
         ))
-        .at(at(&sp.duct_role[*index], "duct.role"))
+        .at(pl.duct_role[*index].clone())
         .hint("add `of = \"TAG\"` naming the duct it is taken off"),
         SpecError::ParentOnNonBranch { index } => Diagnostic::new(format!(
             "duct `{}` has `of` but its role is `{}`, not `branch`",
             ducts[*index].tag,
             ducts[*index].role.name()
         ))
-        .at(at(
-            sp.duct_of[*index].as_ref().unwrap_or(&sp.duct_role[*index]),
-            "duct.of",
-        ))
+        .at(of_or_role(*index))
         .hint("set role = \"branch\", or remove `of`"),
         SpecError::UnknownParent { index } => {
             let of = ducts[*index].of.clone().unwrap_or_default();
-            let tags: Vec<&str> = ducts.iter().map(|d| d.tag.as_str()).collect();
             Diagnostic::new(format!(
                 "duct `{}` is a branch of `{of}`, which is not a duct of this system",
                 ducts[*index].tag
             ))
-            .at(at(
-                sp.duct_of[*index].as_ref().unwrap_or(&sp.duct_role[*index]),
-                "duct.of",
-            ))
-            .hint(match closest(&of, &tags) {
-                Some(t) => format!("did you mean `{t}`?"),
-                None => format!("the ducts are: {}", tags.join(", ")),
-            })
+            .at(of_or_role(*index))
+            .hint(suggest(&of))
         }
         SpecError::Circle { index, path } => Diagnostic::new(format!(
             "the branches go round in a circle: {}",
             path.join(" → ")
         ))
-        .at(at(
-            sp.duct_of[*index].as_ref().unwrap_or(&sp.duct_role[*index]),
-            "duct.of",
-        ))
+        .at(of_or_role(*index))
         .hint("a branch is taken off a duct nearer the fan; one duct of the circle must be a supply, return or other main"),
         SpecError::DesignNotPositive { index } => Diagnostic::new(format!(
             "the design flow of duct `{}` must be positive",
             ducts[*index].tag
         ))
-        .at(at(&sp.duct_design[*index], "duct.design"))
+        .at(pl.duct_design[*index].clone())
         .hint("write the design airflow, e.g. \"8000 cfm\""),
         SpecError::ToleranceOutOfRange { duct } => {
-            let (span, key) = match duct {
-                Some(i) => (sp.duct_tolerance[*i].clone(), "duct.tolerance"),
-                None => (
-                    sp.system_tolerance
-                        .clone()
-                        .or_else(|| sp.fan_tolerance.clone()),
-                    "tolerance",
-                ),
+            let at = match duct {
+                Some(i) => pl.duct_tolerance[*i].clone(),
+                None => pl.system_tolerance.clone().or(pl.fan_tolerance.clone()),
             };
             Diagnostic::new("a tolerance must be more than 0 % and less than 100 % of design")
-                .at(at(&span.unwrap_or(sp.system_header.clone()), key))
+                .at(at.unwrap_or(pl.system.clone()))
                 .hint("write e.g. tolerance = \"10 %\"")
         }
         SpecError::FanDuctUnknown { index } => {
@@ -653,64 +521,30 @@ fn locate_spec_error(cx: &Ctx, p: &ParsedSystem, e: &SpecError) -> Option<Diagno
                 .and_then(|f| f.ducts.get(*index))
                 .cloned()
                 .unwrap_or_default();
-            let tags: Vec<&str> = ducts.iter().map(|d| d.tag.as_str()).collect();
             Diagnostic::new(format!("the fan's duct `{tag}` is not a duct of this system"))
-                .at(at(
-                    sp.fan_duct.as_ref().unwrap_or(&sp.system_header),
-                    "fan.duct",
-                ))
-                .hint(match closest(&tag, &tags) {
-                    Some(t) => format!("did you mean `{t}`?"),
-                    None => format!("the ducts are: {}", tags.join(", ")),
-                })
+                .at(pl.fan_duct.clone().unwrap_or(pl.system.clone()))
+                .hint(suggest(&tag))
         }
         SpecError::FanWithoutDuct => Diagnostic::new(
             "the fan's flow is taken from the supply ducts, and this system has none",
         )
-        .at(at(sp.fan_tag.as_ref().unwrap_or(&sp.system_header), "fan.tag"))
+        .at(pl.fan.clone().unwrap_or(pl.system.clone()))
         .hint("name the duct(s) that carry the fan's air: duct = \"RA-main\""),
-        SpecError::FanValueNotPositive { key } => {
-            let span = sp
-                .fan_keys
-                .iter()
-                .find(|(k, _)| k == key)
-                .map(|(_, s)| s.clone())
-                .unwrap_or(sp.system_header.clone());
-            Diagnostic::new(format!("`fan.{key}` must be positive"))
-                .at(at(&span, &format!("fan.{key}")))
-                .hint("leave out a figure that was not read")
-        }
+        SpecError::FanValueNotPositive { key } => Diagnostic::new(format!(
+            "`fan.{key}` must be positive"
+        ))
+        .at(pl
+            .fan_keys
+            .iter()
+            .find(|(k, _)| k == key)
+            .map(|(_, l)| l.clone())
+            .unwrap_or(pl.system.clone()))
+        .hint("leave out a figure that was not read"),
         SpecError::TerminalBranchUnknown { .. }
         | SpecError::TerminalValueNotPositive { .. }
         | SpecError::DuplicateTerminal { .. } => return None,
     };
     Some(d)
-}
-
-/// The closest of `known` to `found` by edit distance (at most 2 edits), for did-you-mean hints.
-pub(super) fn closest<'k>(found: &str, known: &[&'k str]) -> Option<&'k str> {
-    fn distance(a: &str, b: &str) -> usize {
-        let b: Vec<char> = b.chars().collect();
-        let mut prev: Vec<usize> = (0..=b.len()).collect();
-        for (i, ca) in a.chars().enumerate() {
-            let mut cur = vec![i + 1];
-            for (j, cb) in b.iter().enumerate() {
-                cur.push(
-                    (prev[j] + usize::from(ca != *cb))
-                        .min(prev[j + 1] + 1)
-                        .min(cur[j] + 1),
-                );
-            }
-            prev = cur;
-        }
-        prev[b.len()]
-    }
-    known
-        .iter()
-        .map(|k| (distance(found, k), *k))
-        .filter(|(d, _)| *d <= 2)
-        .min()
-        .map(|(_, k)| k)
 }
 
 /// Reads a system file and every file it names; reports every problem of every file.
@@ -722,70 +556,58 @@ pub fn load_system(path: &Path) -> Result<LoadedSystem, Error> {
 pub fn load_system_with(path: &Path, source: FileSource) -> Result<LoadedSystem, Error> {
     let name = path.display().to_string();
     let (bytes, text) = read_text_with(path, &name, source)?;
-    let parsed = parse_system(&name, &text)?;
+    let doc = TomlDoc::parse(&name, &text, "system file")?;
+    let parsed = read_checked(&doc);
     let dir = path.parent().unwrap_or(Path::new("."));
-    let mut diags = Diagnostics::new();
     let mut ducts = Vec::new();
-    let mut survey_locations = Vec::new();
-    for (d, span) in parsed.spec.ducts.iter().zip(&parsed.survey_spans) {
-        let at = span_location(&name, &text, span.start)
-            .with_context(format!("duct {}, `survey`", d.tag));
-        survey_locations.push(at.clone());
-        let spath = dir.join(&d.survey);
-        if let Err(e) = source(&spath) {
-            diags.push(
-                Diagnostic::new(format!(
-                    "the survey of duct `{}` cannot be read: `{}`: {e}",
-                    d.tag,
-                    spath.display()
-                ))
-                .at(at)
-                .hint("survey paths are relative to the system file"),
-            );
-            continue;
-        }
-        match super::load_with(&spath, source) {
-            Ok(l) => ducts.push(l),
-            Err(Error::Input(d)) => diags.extend(d),
-            Err(e) => return Err(e),
-        }
-    }
-    let mut spec = parsed.spec;
     let mut terminals_file = None;
-    if let Some((rel, span)) = &parsed.terminals {
-        let tpath = dir.join(rel);
-        let tname = tpath.display().to_string();
-        match read_text_with(&tpath, &tname, source) {
-            Err(e) => diags.push(
-                Diagnostic::new(format!("the terminals file cannot be read: {}", e.message))
-                    .at(span_location(&name, &text, span.start)
-                        .with_context("`terminals.readings`"))
-                    .hint("the readings path is relative to the system file"),
-            ),
-            Ok((tbytes, ttext)) => match super::terminals_file::read_terminals(&tname, &ttext) {
-                Err(Error::Input(d)) => diags.extend(d),
-                Err(e) => return Err(e),
-                Ok((rows, cell_problems)) => {
-                    // the rows that were read are checked against the ducts too: one pass
-                    diags.extend(cell_problems);
-                    spec.terminals = rows.terminals.clone();
-                    for e in validate(&spec) {
-                        if let Some(d) =
-                            super::terminals_file::locate_terminal_error(&tname, &spec, &rows, &e)
-                        {
-                            diags.push(d);
+    let loaded = parsed.map(|mut p| {
+        for (d, at) in p.spec.ducts.iter().zip(&p.survey_locations) {
+            let at = at.clone().with_context(format!("duct {}, `survey`", d.tag));
+            match load_referenced(
+                &dir.join(&d.survey),
+                &d.survey,
+                &at,
+                FileKind::SystemSurvey,
+                source,
+            ) {
+                Ok(l) => ducts.push(l),
+                Err(Error::Input(diags)) => doc.extend(diags),
+                Err(e) => doc.push(Diagnostic::new(e.to_string()).at(at)),
+            }
+        }
+        if let Some((rel, at)) = &p.terminals {
+            let tpath = dir.join(rel);
+            match read_referenced(&tpath, rel, at, FileKind::Terminals, source) {
+                Err(d) => doc.push(d),
+                Ok((tbytes, ttext)) => {
+                    let tname = tpath.display().to_string();
+                    match read_terminals(&tname, &ttext) {
+                        Err(Error::Input(d)) => doc.extend(d),
+                        Err(e) => doc.push(Diagnostic::new(e.to_string()).at(at.clone())),
+                        Ok((rows, cell_problems)) => {
+                            // the rows that were read are checked against the ducts too: one pass
+                            doc.extend(cell_problems);
+                            p.spec.terminals = rows.terminals.clone();
+                            for e in validate(&p.spec) {
+                                if let Some(d) = locate_terminal_error(&tname, &p.spec, &rows, &e) {
+                                    doc.push(d);
+                                }
+                            }
+                            terminals_file = Some(SourceFile {
+                                name: rel.clone(),
+                                path: tpath,
+                                bytes: tbytes,
+                            });
                         }
                     }
-                    terminals_file = Some(SourceFile {
-                        name: rel.clone(),
-                        path: tpath,
-                        bytes: tbytes,
-                    });
                 }
-            },
+            }
         }
-    }
-    diags.finish(LoadedSystem {
+        p
+    });
+    let p = doc.finish(loaded)?;
+    Ok(LoadedSystem {
         file: SourceFile {
             name: path
                 .file_name()
@@ -794,10 +616,10 @@ pub fn load_system_with(path: &Path, source: FileSource) -> Result<LoadedSystem,
             path: path.to_path_buf(),
             bytes,
         },
-        spec,
-        signoff: parsed.signoff,
+        spec: p.spec,
+        signoff: p.signoff,
         ducts,
-        survey_locations,
+        survey_locations: p.survey_locations,
         terminals: terminals_file,
     })
 }
@@ -937,7 +759,8 @@ status = "open"
             .replace("measured_rpm = 1100", "measured_rpm = \"fast\"");
         let e = errors(&text);
         assert_eq!(e.len(), 3, "{e:?}");
-        assert_eq!(e[2].hint.as_deref(), Some("write e.g. measured_rpm = 1150"));
+        // in the order of the file: the fan's speed (line 12) first
+        assert!(e[0].message.contains("fan.measured_rpm"), "{e:?}");
         // a speed may carry its unit
         let text = SYSTEM.replace("measured_rpm = 1100", "measured_rpm = \"1100 rpm\"");
         let p = parse_system("system.toml", &text).expect("valid");
@@ -989,11 +812,15 @@ status = "open"
             other => panic!("{other:?}"),
         };
         assert_eq!(e.len(), 3, "{e:?}");
-        assert!(e[0]
-            .message
-            .contains("survey of duct `SA-main` cannot be read"));
+        // the survey, located at the system file's line naming it
+        assert!(
+            e[0].message
+                .contains("cannot read the survey `sa/survey.toml`"),
+            "{}",
+            e[0].message
+        );
         assert_eq!(at(&e[0]), (20, 10));
-        assert!(e[1].message.contains("SA-1"));
+        assert!(e[1].message.contains("sa1/survey.toml"), "{}", e[1].message);
         assert!(e[2].message.contains("`SA-2`"), "{}", e[2].message);
         assert_eq!(at(&e[2]), (2, 2));
         assert_eq!(e[2].hint.as_deref(), Some("did you mean `SA-1`?"));

@@ -2,11 +2,11 @@
 //! measured flow or the face velocity with the terminal's area factor. Header units name the flows'
 //! basis; every bad cell is reported with file, line, column, the raw value and a hint.
 
+use super::header::{Header, HeaderError};
+use super::toml_doc::did_you_mean;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::system::{SpecError, SystemSpec, TerminalReading, TerminalSpec};
-use crate::units::{
-    convert_in, flow_basis, lookup_unit, parse_number, symbols_for, Dimension, FlowBasis, Unit,
-};
+use crate::units::{convert_in, flow_basis, parse_number, Dimension, FlowBasis, Unit};
 
 /// One terminals CSV column.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -21,57 +21,36 @@ enum Col {
     Area(&'static Unit),
 }
 
-fn terminal_column(h: &str) -> Result<Col, (String, String)> {
-    let h = h.trim();
-    let (name, unit) = match h.split_once('[') {
-        Some((n, rest)) => match rest.strip_suffix(']') {
-            Some(u) => (n.trim(), Some(u.trim())),
-            None => {
-                return Err((
-                    format!("header `{h}` has no closing `]`"),
-                    "write units as name[unit], e.g. design[cfm]".into(),
-                ))
-            }
-        },
-        None => (h, None),
-    };
-    let unit_of = |dim: Dimension, example: &str| -> Result<&'static Unit, (String, String)> {
-        let Some(u) = unit else {
-            return Err((
-                format!("column `{name}` needs a unit in its header"),
-                format!("write e.g. `{example}`"),
-            ));
-        };
-        match lookup_unit(u) {
-            Some(found) if found.dimension == dim => Ok(found),
-            _ => Err((
-                format!("unit `{u}` cannot be used for column `{name}`"),
-                format!("`{name}` takes one of: {}", symbols_for(dim).join(", ")),
-            )),
-        }
-    };
-    let plain = |col: Col| match unit {
-        None => Ok(col),
-        Some(u) => Err((
-            format!("column `{name}` takes no unit `{u}`"),
-            format!("write `{name}`"),
-        )),
-    };
-    match name {
+fn terminal_column(h: &str) -> Result<Col, HeaderError> {
+    let header = Header::parse(h)?;
+    let plain = |col: Col| header.no_unit(None).map(|_| col);
+    match header.name {
         "tag" => plain(Col::Tag),
         "branch" => plain(Col::Branch),
         "room" => plain(Col::Room),
         "type" => plain(Col::Type),
-        "design" => Ok(Col::Design(unit_of(Dimension::Flow, "design[cfm]")?)),
-        "measured" => Ok(Col::Measured(unit_of(Dimension::Flow, "measured[cfm]")?)),
-        "velocity" => Ok(Col::Velocity(unit_of(Dimension::Velocity, "velocity[fpm]")?)),
-        "area" => Ok(Col::Area(unit_of(Dimension::Area, "area[ft2]")?)),
+        "design" => Ok(Col::Design(header.unit_of(&[Dimension::Flow], "design[cfm]")?)),
+        "measured" => Ok(Col::Measured(
+            header.unit_of(&[Dimension::Flow], "measured[cfm]")?,
+        )),
+        "velocity" => Ok(Col::Velocity(
+            header.unit_of(&[Dimension::Velocity], "velocity[fpm]")?,
+        )),
+        "area" => Ok(Col::Area(header.unit_of(&[Dimension::Area], "area[ft2]")?)),
         other => Err((
             format!("unknown column `{other}`"),
-            "columns are tag, branch, design[…], and measured[…] or velocity[…] with area[…]; optionally room, type".into(),
+            match did_you_mean(other, &COLUMNS) {
+                Some(c) => format!("did you mean `{c}`?"),
+                None => "columns are tag, branch, design[…], and measured[…] or velocity[…] with area[…]; optionally room, type".into(),
+            },
         )),
     }
 }
+
+/// The column names a terminals CSV takes.
+const COLUMNS: [&str; 8] = [
+    "tag", "branch", "room", "type", "design", "measured", "velocity", "area",
+];
 
 /// The terminals as read, and the line of each (for later problems).
 #[derive(Debug, Clone, PartialEq)]
@@ -358,7 +337,7 @@ pub fn locate_terminal_error(
                 ))
                 .at(Location::at(file, rows.lines[*index], rows.branch_column)
                     .with_context(format!("terminal {}, column `branch`", t.tag)))
-                .hint(match super::system_file::closest(&t.branch, &tags) {
+                .hint(match did_you_mean(&t.branch, &tags) {
                     Some(c) => format!("did you mean `{c}`?"),
                     None => format!("the ducts are: {}", tags.join(", ")),
                 }),

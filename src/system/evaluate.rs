@@ -109,7 +109,7 @@ pub fn evaluate(
                 None => (&spec.tolerance, "default"),
             };
             let flow = m.flows.on(d.design.basis);
-            let pct = percent_of(flow, d.design.flow_m3_s);
+            let pct = percent_of(flow, d.design.m3_s);
             let status = pct
                 .map(|p| judge_percent_of_design(p, tolerance.fraction))
                 .unwrap_or(Status::NotApplicable);
@@ -117,7 +117,7 @@ pub fn evaluate(
                 tag: d.tag.clone(),
                 role: d.role,
                 of: d.of.clone(),
-                design_flow_m3_s: d.design.flow_m3_s,
+                design_flow_m3_s: d.design.m3_s,
                 design_basis: d.design.basis,
                 measured_flow_m3_s: flow,
                 percent_of_design: pct,

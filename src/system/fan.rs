@@ -74,12 +74,12 @@ pub fn fan(spec: &SystemSpec, measured: &[DuctMeasurement]) -> Option<FanResult>
         .collect();
     let flow: f64 = ducts.iter().map(|&i| measured[i].flows.on(basis)).sum();
     let tolerance = f.tolerance.as_ref().unwrap_or(&spec.tolerance).fraction;
-    let pct = percent_of(flow, f.design_flow.flow_m3_s);
+    let pct = percent_of(flow, f.design_flow.m3_s);
     let status = pct
         .map(|p| judge_percent_of_design(p, tolerance))
         .unwrap_or(Status::NotApplicable);
     // Fan laws: N2/N1 = Q2/Q1, p2/p1 = (N2/N1)², P2/P1 = (N2/N1)³.
-    let ratio = (flow > 0.0).then(|| f.design_flow.flow_m3_s / flow);
+    let ratio = (flow > 0.0).then(|| f.design_flow.m3_s / flow);
     let law = |exp: i32, v: Option<f64>| -> Option<f64> { Some(v? * ratio?.powi(exp)) };
     let amps = law(FAN_LAW_POWER_EXPONENT, f.measured_amps);
     let power = law(FAN_LAW_POWER_EXPONENT, f.measured_power_w);
@@ -120,7 +120,7 @@ pub fn fan(spec: &SystemSpec, measured: &[DuctMeasurement]) -> Option<FanResult>
         tag: f.tag.clone(),
         basis,
         ducts: ducts.iter().map(|&i| spec.ducts[i].tag.clone()).collect(),
-        design_flow_m3_s: f.design_flow.flow_m3_s,
+        design_flow_m3_s: f.design_flow.m3_s,
         measured_flow_m3_s: flow,
         percent_of_design: pct,
         tolerance_percent: 100.0 * tolerance,
@@ -165,8 +165,9 @@ mod tests {
         FanSpec {
             tag: "SF-1".into(),
             design_flow: DesignFlow {
-                flow_m3_s: 8000.0 * CFM,
+                m3_s: 8000.0 * CFM,
                 basis: FlowBasis::Actual,
+                raw: "8000 cfm".into(),
             },
             ducts: vec![],
             design_rpm: Some(1150.0),
@@ -259,7 +260,7 @@ mod tests {
         ]);
         let mut f = contract_fan();
         f.ducts = vec!["RA".into()];
-        f.design_flow.flow_m3_s = 6400.0 * CFM;
+        f.design_flow.m3_s = 6400.0 * CFM;
         f.measured_rpm = None;
         f.measured_static_pa = None;
         f.measured_amps = None;

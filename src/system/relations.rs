@@ -156,7 +156,7 @@ pub fn outside_air(spec: &SystemSpec, measured: &[DuctMeasurement]) -> Option<Ou
     let mut design_on_basis = |i: usize| {
         let d = &spec.ducts[i].design;
         converted |= d.basis != basis;
-        measured[i].flows.convert(d.flow_m3_s, d.basis, basis)
+        measured[i].flows.convert(d.m3_s, d.basis, basis)
     };
     let flow = |set: &[usize]| {
         set.iter()

@@ -55,12 +55,9 @@ impl Role {
     }
 }
 
-/// A design flow and the basis its unit names (`8000 cfm` actual, `8000 scfm` standard).
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct DesignFlow {
-    pub flow_m3_s: f64,
-    pub basis: FlowBasis,
-}
+/// A design flow and the basis its unit names (`8000 cfm` actual, `8000 scfm` standard): the
+/// survey's own type, so a duct's design and a survey's `[design] flow` are one concept.
+pub use crate::survey::DesignFlow;
 
 /// A ± tolerance on percent of design, as a fraction (0.10 = ±10 %).
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -267,7 +264,7 @@ pub fn validate(spec: &SystemSpec) -> Vec<SpecError> {
         if let Some(first) = spec.ducts[..i].iter().position(|e| e.tag == d.tag) {
             errors.push(SpecError::DuplicateTag { index: i, first });
         }
-        if !positive(d.design.flow_m3_s) {
+        if !positive(d.design.m3_s) {
             errors.push(SpecError::DesignNotPositive { index: i });
         }
         if d.tolerance.as_ref().is_some_and(|t| !tolerance_ok(t)) {
@@ -295,7 +292,7 @@ pub fn validate(spec: &SystemSpec) -> Vec<SpecError> {
             errors.push(SpecError::FanWithoutDuct);
         }
         let figures = [
-            ("design_flow", Some(fan.design_flow.flow_m3_s)),
+            ("design_flow", Some(fan.design_flow.m3_s)),
             ("design_rpm", fan.design_rpm),
             ("measured_rpm", fan.measured_rpm),
             ("motor_amps_rated", fan.motor_amps_rated),
@@ -385,8 +382,9 @@ pub(crate) mod testkit {
             role,
             of: of.map(String::from),
             design: DesignFlow {
-                flow_m3_s: design_cfm * CFM,
+                m3_s: design_cfm * CFM,
                 basis: FlowBasis::Actual,
+                raw: format!("{design_cfm} cfm"),
             },
             tolerance: None,
         }
@@ -496,8 +494,9 @@ mod tests {
         s.fan = Some(FanSpec {
             tag: "SF-1".into(),
             design_flow: DesignFlow {
-                flow_m3_s: 1.0,
+                m3_s: 1.0,
                 basis: FlowBasis::Actual,
+                raw: "1 m3/s".into(),
             },
             ducts: vec![],
             design_rpm: None,
