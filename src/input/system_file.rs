@@ -25,14 +25,9 @@ use toml::de::DeValue;
 const HINT_FORMAT: &str =
     "see the system file format in the README (sample-data/building/ahu-2.toml is a complete example)";
 
-/// Who signs the submittal, as the system file says (the surveys and the user's configuration
-/// fill the gaps).
-#[derive(Debug, Clone, Default, PartialEq, serde::Serialize)]
-pub struct SystemSignoff {
-    pub tested_by: Option<String>,
-    pub certificate: Option<String>,
-    pub reviewed_by: Option<String>,
-}
+/// Who signs the submittal, as the system file's `[signoff]` says (the surveys and the user's
+/// configuration fill the gaps): the survey's own sign-off type.
+pub use crate::survey::Signoff as SystemSignoff;
 
 /// Where the values that relations refer to are written, to place a relation's problem.
 #[derive(Debug, Clone, Default)]
@@ -342,14 +337,7 @@ fn read_system(root: &Table) -> Option<ParsedSystem> {
         }
         None => (None, None, None, None, None),
     };
-    let signoff = root
-        .opt_table("signoff")
-        .map(|t| SystemSignoff {
-            tested_by: t.opt_text("tested_by"),
-            certificate: t.opt_text("certificate"),
-            reviewed_by: t.opt_text("reviewed_by"),
-        })
-        .unwrap_or_default();
+    let signoff = super::survey::options::read_signoff(root);
     let fan = match root.opt_table("fan") {
         None => Some(None),
         Some(t) => read_fan(&t, &mut places).map(Some),

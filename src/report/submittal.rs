@@ -494,6 +494,8 @@ pub fn identity_of(e: &SystemEvaluation, defaults: &People) -> (String, SignOff)
     let organisation = spec
         .organisation
         .clone()
+        .or_else(|| so.organisation.clone())
+        .or_else(|| common(e, |s| &s.organisation))
         .or_else(|| defaults.organisation.clone())
         .unwrap_or_default();
     let signoff = SignOff {

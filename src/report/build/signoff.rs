@@ -11,7 +11,7 @@ pub(super) fn section(job: &Job) -> SignOff {
         tested_date: s.date.to_string(),
         reviewed_by: s.signoff.reviewed_by.clone().unwrap_or_default(),
         reviewed_date: String::new(),
-        organisation: String::new(),
+        organisation: s.signoff.organisation.clone().unwrap_or_default(),
         statement: "I confirm that this test was carried out and its data recorded as described, \
                     and that the results were computed from the attached readings by the method \
                     stated."
