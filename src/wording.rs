@@ -149,7 +149,7 @@ impl Kind {
             | Kind::DryStandardFlow
             | Kind::NormalFlow
             | Kind::NormalDryFlow => Dimension::Flow,
-            Kind::FanSpeed => return None,
+            Kind::FanSpeed => Dimension::RotationalSpeed,
             Kind::Current => Dimension::Current,
             Kind::Power => Dimension::Power,
             Kind::MassFlow => Dimension::MassFlow,
