@@ -177,6 +177,16 @@ pub struct SystemDoc<'a> {
 }
 
 impl SystemEvaluation {
+    /// The system's verdict in the words of a survey's checks (`fail` when anything is outside
+    /// tolerance).
+    pub fn verdict(&self) -> Verdict {
+        match self.result.verdict {
+            Status::Fail => Verdict::Fail,
+            Status::Warn => Verdict::Warn,
+            _ => Verdict::Pass,
+        }
+    }
+
     /// The results document.
     pub fn doc(&self) -> SystemDoc<'_> {
         let spec = &self.loaded.spec;

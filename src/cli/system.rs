@@ -3,15 +3,14 @@
 //! code 3 when anything is outside tolerance, whether printed or written.
 
 use super::output::{csv_text, json_text, status, Ctx, Format, Table};
-use crate::archive::submittal::pack_system;
-use crate::archive::{SecretKey, Signature};
+use crate::archive::make::MakeError;
+use crate::archive::submittal::{make_submittal, SubmittalSettings};
+use crate::archive::SecretKey;
 use crate::checks::Status;
 use crate::diag::{Diagnostic, Error};
 use crate::display::{fixed, DisplayTable, Kind, UnitSystem};
 use crate::input::system_file::load_system;
-use crate::report::build::Identity;
-use crate::report::submittal::{submittal_data, People};
-use crate::report::{write_atomic, Engine, RenderOptions};
+use crate::report::{write_atomic, Engine};
 use crate::submittal::{evaluate_system, SystemEvaluation};
 use crate::system::words;
 use crate::units::FlowBasis;
@@ -31,9 +30,11 @@ pub struct SystemArgs {
     /// Write the submittal PDF here (written atomically: never half a file) instead of printing.
     #[arg(short, long, value_name = "OUT.pdf")]
     pub output: Option<PathBuf>,
-    /// Sign the submittal's manifest with this Ed25519 secret key (see `annulus keygen`).
-    #[arg(long, value_name = "KEY", requires = "output")]
-    pub sign: Option<PathBuf>,
+    /// Sign the submittal with this Ed25519 secret key (see `annulus keygen`); its name is printed
+    /// in the sign-off block. `--sign` without a path uses `signing_key` of the configuration file.
+    #[arg(long, value_name = "KEY", num_args = 0..=1, requires = "output")]
+    #[allow(clippy::option_option)]
+    pub sign: Option<Option<PathBuf>>,
 }
 
 /// The word a judged item shows, coloured when asked.
@@ -49,8 +50,8 @@ fn mark(s: Status, color: bool) -> String {
 pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
     let key = args
         .sign
-        .as_deref()
-        .map(super::report::read_key)
+        .as_ref()
+        .map(super::report::signing_key)
         .transpose()?;
     let loaded = load_system(&args.system)?;
     let units = args.si.then_some(UnitSystem::Si);
@@ -73,11 +74,12 @@ pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
     Ok(code)
 }
 
-/// Renders the submittal with every input embedded and writes it to `out`.
+/// Renders, seals and (with a key) signs the submittal, every input embedded, and writes it to
+/// `out`.
 fn write_pdf(
     e: &SystemEvaluation,
     out: &Path,
-    key: Option<&SecretKey>,
+    key: Option<&(SecretKey, PathBuf)>,
     ctx: &Ctx,
 ) -> Result<(), Error> {
     let inputs = e.loaded.inputs();
@@ -97,51 +99,34 @@ fn write_pdf(
             .hint("write the PDF to a new file, e.g. -o submittal.pdf"),
         ));
     }
-    let program = format!("annulus {}", env!("CARGO_PKG_VERSION"));
-    let convention = e
-        .ducts
-        .first()
-        .map(|(ev, _)| ev.loaded.survey.convention.name())
-        .unwrap_or_default();
-    let bundle = pack_system(
-        &e.loaded,
-        convention,
-        json_text(&e.doc()).into_bytes(),
-        &program,
-    );
-    let signature = key.map(|k| Signature::sign(&bundle.manifest, k));
-    let identity = Identity {
-        report_id: bundle.manifest.report_id(),
-        content_sha256: bundle.manifest.fingerprint(),
-        signer_key_fingerprint: signature.as_ref().map(|s| s.fingerprint.clone()),
-        signer_name: None,
+    let signer = key.map(|(k, path)| super::report::signer_entry(k, path));
+    let settings = SubmittalSettings {
+        document_date: super::report::document_date(e.loaded.spec.date)?,
+        signer: signer.clone(),
+        defaults: super::report::signoff_defaults()?,
     };
-    let data = submittal_data(e, &identity, &People::default());
-    let attachments = bundle
-        .attachments(signature.as_ref())
-        .map_err(|err| Error::Environment(format!("cannot embed the data files: {err}")))?;
-    let options = RenderOptions {
-        date: super::report::document_date(e.loaded.spec.date)?,
-        attachments,
-    };
-    let rendered = Engine::new()
-        .render_submittal(&data, &options)
-        .map_err(|err| {
-            Error::Environment(format!("the built-in submittal template failed: {err}"))
-        })?;
-    write_atomic(out, &rendered.pdf)
+    let made = make_submittal(&Engine::new(), e, &settings, key.map(|(k, _)| k)).map_err(
+        |err| match err {
+            MakeError::Render(r) => {
+                Error::Environment(format!("the built-in submittal template failed: {r}"))
+            }
+            other => Error::Environment(other.to_string()),
+        },
+    )?;
+    write_atomic(out, &made.pdf)
         .map_err(|err| Error::Environment(format!("cannot write `{}`: {err}", out.display())))?;
     if !ctx.quiet {
-        for w in &rendered.warnings {
+        for w in &made.warnings {
             eprintln!("warning: {w}");
         }
         eprintln!(
             "wrote {} — submittal {}{}; system: {}",
             out.display(),
-            identity.report_id,
-            match &identity.signer_key_fingerprint {
-                Some(f) => format!(", signed by key {f}"),
-                None => ", unsigned".into(),
+            made.manifest.report_id(),
+            match (&signer, key) {
+                (Some(s), Some((k, _))) =>
+                    format!(", signed by {} (key {})", s.name, k.public().fingerprint()),
+                _ => ", unsigned".into(),
             },
             match e.result.verdict {
                 Status::Pass => "within tolerance",

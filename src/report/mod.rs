@@ -24,6 +24,7 @@
 //!     content_sha256: "0".repeat(64),
 //!     signer_key_fingerprint: None,
 //!     signer_name: None,
+//!     defaults: Default::default(),
 //! };
 //! let options = RenderOptions {
 //!     date: e.loaded.survey.date,

@@ -12,6 +12,7 @@ use super::engine::{meta_attachments, meta_date, report_charts, to_json, Engine,
 use super::model::{Paper, ReportData, SignOff};
 use super::{RenderError, RenderOptions, Rendered};
 use crate::checks::Status;
+use crate::config::SignoffDefaults;
 use crate::display::{DisplayTable, Kind, UnitSystem};
 use crate::submittal::SystemEvaluation;
 use crate::system::relations::OutsideAirMethod;
@@ -455,14 +456,6 @@ fn summary(e: &SystemEvaluation, organisation: &str, signoff: &SignOff) -> Submi
     }
 }
 
-/// Who did the work when the system file and the surveys do not say: the user's configuration.
-#[derive(Debug, Clone, Default, PartialEq)]
-pub struct People {
-    pub organisation: Option<String>,
-    pub technician: Option<String>,
-    pub certificate: Option<String>,
-}
-
 /// The value every duct's survey gives for a sign-off field, when they all give the same one.
 fn common(
     e: &SystemEvaluation,
@@ -480,7 +473,7 @@ fn common(
 
 /// The firm and the sign-off block: the system file first, then what every survey agrees on, then
 /// the user's configuration.
-pub fn identity_of(e: &SystemEvaluation, defaults: &People) -> (String, SignOff) {
+pub fn identity_of(e: &SystemEvaluation, defaults: &SignoffDefaults) -> (String, SignOff) {
     let spec = &e.loaded.spec;
     let so = &e.loaded.signoff;
     let pick = |own: &Option<String>,
@@ -511,10 +504,10 @@ pub fn identity_of(e: &SystemEvaluation, defaults: &People) -> (String, SignOff)
     (organisation, signoff)
 }
 
-/// Builds the submittal model; `defaults` fill the firm and the sign-off where the system file and
-/// the surveys say nothing.
-pub fn submittal_data(e: &SystemEvaluation, id: &Identity, defaults: &People) -> Submittal {
-    let (organisation, signoff) = identity_of(e, defaults);
+/// Builds the submittal model; `id.defaults` fill the firm and the sign-off where the system file
+/// and the surveys say nothing.
+pub fn submittal_data(e: &SystemEvaluation, id: &Identity) -> Submittal {
+    let (organisation, signoff) = identity_of(e, &id.defaults);
     let organisation = organisation.as_str();
     let spec = &e.loaded.spec;
     let dt: &DisplayTable = &e.display;
@@ -681,13 +674,14 @@ mod tests {
             content_sha256: "ab".repeat(32),
             signer_key_fingerprint: None,
             signer_name: None,
+            defaults: Default::default(),
         }
     }
 
     #[test]
     fn the_firm_and_technician_come_from_the_system_file_then_the_surveys_then_the_configuration() {
         let e = building();
-        let config = People {
+        let config = SignoffDefaults {
             organisation: Some("Configured firm".into()),
             technician: Some("Configured technician".into()),
             certificate: Some("CFG-1".into()),
@@ -713,7 +707,7 @@ mod tests {
 
     #[test]
     fn the_model_carries_every_section_in_the_job_units() {
-        let s = submittal_data(building(), &identity(), &People::default());
+        let s = submittal_data(building(), &identity());
         assert_eq!(s.summary.verdict, Status::Fail);
         assert_eq!(s.ducts.rows.len(), 6);
         assert_eq!(s.traverses.len(), 6);
@@ -740,7 +734,7 @@ mod tests {
 
     #[test]
     fn the_submittal_renders_with_no_warnings() {
-        let s = submittal_data(building(), &identity(), &People::default());
+        let s = submittal_data(building(), &identity());
         let options = RenderOptions {
             date: building().loaded.spec.date,
             attachments: vec![],

@@ -541,8 +541,14 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
         });
     }
     let kind = manifest.doc_kind();
+    let mut system = None;
     let (recomputation, recomputed) = match kind {
         DocKind::Report => recompute::recompute(&manifest, &by_name),
+        DocKind::Submittal => {
+            let (r, e) = crate::archive::submittal::recompute(&manifest, &by_name);
+            system = e;
+            (r, None)
+        }
         other => (documents::recompute(other, &manifest, &by_name), None),
     };
 
@@ -563,6 +569,12 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
                 manifest.program
             ),
         },
+        _ if kind == DocKind::Submittal => crate::archive::submittal::rerender(
+            &manifest,
+            system.as_deref(),
+            &actual,
+            rerender::RERENDER_TIME_LIMIT,
+        ),
         _ => rerender::rerender(
             &manifest,
             &by_name,
@@ -595,7 +607,8 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
     };
     let identity = recomputed
         .as_ref()
-        .map(|r| documents::Identity::of_survey(&r.evaluation.loaded.survey));
+        .map(|r| documents::Identity::of_survey(&r.evaluation.loaded.survey))
+        .or_else(|| system.as_ref().map(|e| documents::Identity::of_system(e)));
     let inputs = manifest
         .files
         .iter()
@@ -618,7 +631,10 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
         files,
         recomputation,
         rerendering,
-        checks_verdict: recomputed.as_ref().map(|r| r.assessment.verdict),
+        checks_verdict: recomputed
+            .as_ref()
+            .map(|r| r.assessment.verdict)
+            .or_else(|| system.as_ref().map(|e| e.verdict())),
         verified: false,
         recomputed,
         identity,
