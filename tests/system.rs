@@ -325,5 +325,84 @@ fn the_submittal_is_never_written_over_an_input() {
     let (code, out, err) = annulus(&["system", SAMPLE, "-o", "sample-data/building/terminals.csv"]);
     assert_eq!(code, 1, "{err}");
     assert_eq!(out, "");
-    assert!(err.contains("is one of the submittal's inputs"), "{err}");
+    // the output rules' refusal (src/write.rs), before anything is computed
+    assert!(err.contains("it is one of this command's inputs"), "{err}");
+    assert!(err.contains("nothing was computed"), "{err}");
+}
+
+#[test]
+fn a_signed_submittal_verifies_recomputes_and_re_renders_and_an_edit_is_caught() {
+    let dir = std::env::temp_dir().join(format!("annulus-system-signed-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let key = dir.join("balancer");
+    let (code, _, err) = annulus(&["keygen", key.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let (secret, public) = (dir.join("balancer.key"), dir.join("balancer.pub"));
+    // a folder as the destination: the PDF is named after the system file
+    let (code, _, err) = annulus(&[
+        "system",
+        SAMPLE,
+        "-o",
+        &format!("{}/", dir.display()),
+        "--sign",
+        secret.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 3, "{err}");
+    let pdf = dir.join("ahu-2.pdf");
+    assert!(err.contains("signed by balancer"), "{err}");
+
+    let (code, out, err) = annulus(&[
+        "verify",
+        pdf.to_str().unwrap(),
+        "--key",
+        public.to_str().unwrap(),
+        "--rerender",
+        "always",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{out}{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).expect("verify JSON");
+    assert_eq!(v["kind"], "submittal");
+    assert_eq!(v["content"], "intact");
+    assert_eq!(v["signature"]["status"], "trusted");
+    assert_eq!(v["signature"]["signer"], "balancer");
+    assert_eq!(v["pages"], "rerendered");
+    // every value of the embedded results re-derived from the embedded inputs, and the pages
+    // laid out again byte for byte
+    assert_eq!(v["recomputation"]["state"], "matches");
+    assert!(v["recomputation"]["compared"].as_u64().unwrap() > 100);
+    assert_eq!(v["rerendering"]["state"], "matches");
+    assert_eq!(v["checks_verdict"], "fail", "the failing diffuser");
+
+    // one byte of the document changed (the first `AHU-` is in the document title): the seal
+    // no longer matches
+    let mut bytes = std::fs::read(&pdf).unwrap();
+    let at = bytes
+        .windows(4)
+        .position(|w| w == b"AHU-")
+        .expect("the title is in the PDF");
+    bytes[at] = b'X';
+    let edited = dir.join("edited.pdf");
+    std::fs::write(&edited, &bytes).unwrap();
+    let (code, out, _) = annulus(&["verify", edited.to_str().unwrap(), "--format", "json"]);
+    assert_ne!(code, 0, "an edited submittal must not verify: {out}");
+    let v: serde_json::Value = serde_json::from_str(&out).expect("verify JSON");
+    assert_eq!(v["content"], "altered", "{out}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn the_submittal_goes_to_standard_output_with_a_dash() {
+    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
+        .args(["system", SAMPLE, "-o", "-", "--quiet"])
+        .current_dir(root())
+        .env_remove("SOURCE_DATE_EPOCH")
+        .output()
+        .expect("binary runs");
+    assert_eq!(out.status.code(), Some(3));
+    assert!(out.stdout.starts_with(b"%PDF-"), "a PDF on standard output");
+    let files = annulus::report::embedded_files(&out.stdout).expect("attachments readable");
+    assert!(files.iter().any(|f| f.name == "ahu-2.toml"));
 }

@@ -7,15 +7,16 @@ use crate::archive::make::MakeError;
 use crate::archive::submittal::{make_submittal, SubmittalSettings};
 use crate::archive::SecretKey;
 use crate::checks::Status;
-use crate::diag::{Diagnostic, Error};
+use crate::diag::Error;
 use crate::display::{fixed, DisplayTable, Kind, UnitSystem};
 use crate::input::system_file::load_system;
-use crate::report::{write_atomic, Engine};
+use crate::report::Engine;
 use crate::submittal::{evaluate_system, SystemEvaluation};
 use crate::system::words;
 use crate::units::FlowBasis;
+use crate::write::Destination;
 use clap::Args;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 #[derive(Debug, Args)]
 pub struct SystemArgs {
@@ -27,7 +28,9 @@ pub struct SystemArgs {
     /// Print in SI units (m³/h, m/s, Pa) whatever the surveys' convention.
     #[arg(long)]
     pub si: bool,
-    /// Write the submittal PDF here (written atomically: never half a file) instead of printing.
+    /// Write the submittal PDF instead of printing: a file (written whole or not at all, never
+    /// over an input), a folder (the PDF is named after the system file), or `-` for standard
+    /// output.
     #[arg(short, long, value_name = "OUT.pdf")]
     pub output: Option<PathBuf>,
     /// Sign the submittal with this Ed25519 secret key (see `annulus keygen`); its name is printed
@@ -54,6 +57,20 @@ pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
         .map(super::report::signing_key)
         .transpose()?;
     let loaded = load_system(&args.system)?;
+    for d in &loaded.ducts {
+        super::files::note_outside(d, ctx);
+    }
+    // the destination is checked before any work, against every input and the key
+    let out = match &args.output {
+        Some(arg) => {
+            loaded.check_embeddable()?;
+            let mut inputs = loaded.input_paths();
+            inputs.extend(key.iter().map(|(_, p)| p.clone()));
+            let dest = super::files::destination(arg, &args.system, &inputs)?;
+            Some((dest, inputs))
+        }
+        None => None,
+    };
     let units = args.si.then_some(UnitSystem::Si);
     let e = evaluate_system(loaded, units)?;
     let code = if e.result.verdict == Status::Fail {
@@ -61,8 +78,8 @@ pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
     } else {
         0
     };
-    if let Some(out) = &args.output {
-        write_pdf(&e, out, key.as_ref(), ctx)?;
+    if let Some((dest, inputs)) = &out {
+        write_pdf(&e, dest, inputs, key.as_ref(), ctx)?;
         return Ok(code);
     }
     let text = match args.format {
@@ -75,30 +92,14 @@ pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
 }
 
 /// Renders, seals and (with a key) signs the submittal, every input embedded, and writes it to
-/// `out`.
+/// `out` under the output rules (never over one of `inputs`).
 fn write_pdf(
     e: &SystemEvaluation,
-    out: &Path,
+    out: &Destination,
+    inputs: &[PathBuf],
     key: Option<&(SecretKey, PathBuf)>,
     ctx: &Ctx,
 ) -> Result<(), Error> {
-    let inputs = e.loaded.inputs();
-    let dir = e.loaded.file.path.parent().unwrap_or(Path::new(""));
-    let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
-        (Ok(a), Ok(b)) => a == b,
-        _ => a == b,
-    };
-    if let Some(i) = inputs.iter().find(|i| same(&dir.join(&i.path), out)) {
-        return Err(Error::input(
-            Diagnostic::new(format!(
-                "`{}` is one of the submittal's inputs ({} `{}`); it is never written over",
-                out.display(),
-                i.role,
-                i.path
-            ))
-            .hint("write the PDF to a new file, e.g. -o submittal.pdf"),
-        ));
-    }
     let signer = key.map(|(k, path)| super::report::signer_entry(k, path));
     let settings = SubmittalSettings {
         document_date: super::report::document_date(e.loaded.spec.date)?,
@@ -113,15 +114,13 @@ fn write_pdf(
             other => Error::Environment(other.to_string()),
         },
     )?;
-    write_atomic(out, &made.pdf)
-        .map_err(|err| Error::Environment(format!("cannot write `{}`: {err}", out.display())))?;
+    crate::write::write(out, &made.pdf, inputs)?;
     if !ctx.quiet {
         for w in &made.warnings {
             eprintln!("warning: {w}");
         }
         eprintln!(
-            "wrote {} — submittal {}{}; system: {}",
-            out.display(),
+            "wrote {out} — submittal {}{}; system: {}",
             made.manifest.report_id(),
             match (&signer, key) {
                 (Some(s), Some((k, _))) =>

@@ -142,8 +142,9 @@ impl FileKind {
             FileKind::Readings => limits::FileKind::Readings,
             FileKind::Calibration => limits::FileKind::Calibration,
             FileKind::CalibrationReadings => limits::FileKind::CalibrationReadings,
-            FileKind::Survey => limits::FileKind::Survey,
+            FileKind::Survey | FileKind::SystemSurvey => limits::FileKind::Survey,
             FileKind::WallReadings => limits::FileKind::Readings,
+            FileKind::Terminals => limits::FileKind::Terminals,
         }
     }
 }

@@ -13,6 +13,7 @@ use super::toml_doc::{did_you_mean, Field, Table, TomlDoc};
 use super::{load_referenced, read_referenced, read_text_with, FileKind, FileSource, Loaded};
 use super::{MemoryFiles, SourceFile};
 use crate::diag::{Diagnostic, Error, Location};
+use crate::limits::MAX_SYSTEM_DUCTS;
 use crate::system::rules::DEFAULT_TOLERANCE;
 use crate::system::{
     validate, Deficiency, DeficiencyStatus, DuctSpec, FanSpec, Role, SpecError, SystemSpec,
@@ -81,6 +82,55 @@ pub struct SystemInput {
 }
 
 impl LoadedSystem {
+    /// Every file the system was read from, as paths on this machine: the files an output must
+    /// never replace.
+    pub fn input_paths(&self) -> Vec<std::path::PathBuf> {
+        let mut v = vec![self.file.path.clone()];
+        for d in &self.ducts {
+            v.extend(super::fs::input_paths(d));
+        }
+        v.extend(self.terminals.iter().map(|t| t.path.clone()));
+        v
+    }
+
+    /// A submittal embeds every input under its path relative to the system file; an absolute
+    /// path (in the system file or in a duct's survey) would carry this machine's folder names
+    /// into the submittal and could not be laid out again by `verify`, so it is refused, every
+    /// such path in one pass.
+    pub fn check_embeddable(&self) -> Result<(), Error> {
+        let mut diags = crate::diag::Diagnostics::new();
+        let system = self.file.path.display().to_string();
+        let absolute = |w: &str| super::fs::classify_reference(w) == super::fs::Place::Absolute;
+        for (d, at) in self.spec.ducts.iter().zip(&self.survey_locations) {
+            if absolute(&d.survey) {
+                diags.push(
+                    Diagnostic::new(format!(
+                        "duct {}'s survey `{}` is an absolute path, which a submittal does not carry",
+                        d.tag, d.survey
+                    ))
+                    .at(at.clone())
+                    .hint("write the path relative to the system file (e.g. `supply-main/survey.toml`)"),
+                );
+            }
+        }
+        if let Some(t) = self.terminals.as_ref().filter(|t| absolute(&t.name)) {
+            diags.push(
+                Diagnostic::new(format!(
+                    "the terminals file `{}` is an absolute path, which a submittal does not carry",
+                    t.name
+                ))
+                .at(Location::file(&system))
+                .hint("write the path relative to the system file (e.g. `terminals.csv`)"),
+            );
+        }
+        for d in &self.ducts {
+            if let Err(Error::Input(more)) = super::fs::check_embeddable(d) {
+                diags.extend(more);
+            }
+        }
+        diags.finish(())
+    }
+
     /// Every file the system was read from, the system file first, each once.
     pub fn inputs(&self) -> Vec<SystemInput> {
         let dir = self.file.path.parent().unwrap_or(Path::new(""));
@@ -537,15 +587,19 @@ fn locate_spec_error(p: &ParsedSystem, e: &SpecError) -> Option<Diagnostic> {
 
 /// Reads a system file and every file it names; reports every problem of every file.
 pub fn load_system(path: &Path) -> Result<LoadedSystem, Error> {
-    load_system_with(path, &|p| std::fs::read(p))
+    load_system_with(path, &|p| super::fs::read_file(p))
 }
 
 /// [`load_system`] with the bytes of each file supplied by `source`.
 pub fn load_system_with(path: &Path, source: FileSource) -> Result<LoadedSystem, Error> {
     let name = path.display().to_string();
-    let (bytes, text) = read_text_with(path, &name, source)?;
+    let (bytes, text) = read_text_with(path, &name, crate::limits::FileKind::System, source)?;
     let doc = TomlDoc::parse(&name, &text, "system file")?;
     let parsed = read_checked(&doc);
+    if let Some(p) = &parsed {
+        // before any survey is read: each duct is a survey evaluated and drawn in the submittal
+        super::fs::check_count(&name, "ducts", p.spec.ducts.len(), MAX_SYSTEM_DUCTS)?;
+    }
     let dir = path.parent().unwrap_or(Path::new("."));
     let mut ducts = Vec::new();
     let mut terminals_file = None;

@@ -5,6 +5,7 @@
 use super::header::{Header, HeaderError};
 use super::toml_doc::did_you_mean;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
+use crate::limits::MAX_TERMINAL_ROWS;
 use crate::system::{SpecError, SystemSpec, TerminalReading, TerminalSpec};
 use crate::units::{convert_in, flow_basis, parse_number, Dimension, FlowBasis, Unit};
 
@@ -80,7 +81,17 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
                 .hint("write a header such as `tag,branch,design[cfm],measured[cfm]` and one row per terminal"),
         )
     };
-    let mut rows = super::readings::csv_rows(text).into_iter();
+    let all = super::readings::csv_rows(text, MAX_TERMINAL_ROWS + 2);
+    if all.len() > MAX_TERMINAL_ROWS + 1 {
+        return Err(Error::input(
+            Diagnostic::new(format!(
+                "the terminals file has more than {MAX_TERMINAL_ROWS} rows; annulus accepts at most {MAX_TERMINAL_ROWS}"
+            ))
+            .at(Location::at(file, all[MAX_TERMINAL_ROWS + 1].0, 1))
+            .hint("a terminals file holds one row per grille or diffuser; check that the path names the right file"),
+        ));
+    }
+    let mut rows = all.into_iter();
     let (header_line, header) = match rows.next() {
         Some((l, Ok(h))) => (l, h),
         Some((l, Err(e))) => {
