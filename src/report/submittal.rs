@@ -54,6 +54,8 @@ pub struct SubmittalHeader {
     pub report_id: String,
     pub content_sha256: String,
     pub signer_key_fingerprint: Option<String>,
+    /// The signing key's name, printed with its fingerprint.
+    pub signer_name: Option<String>,
     pub software: String,
     pub paper: Paper,
 }
@@ -498,7 +500,9 @@ pub fn identity_of(e: &SystemEvaluation, defaults: &SignoffDefaults) -> (String,
         reviewed_by: pick(&so.reviewed_by, |s| &s.reviewed_by, &None),
         reviewed_date: String::new(),
         organisation: organisation.clone(),
-        statement: "I confirm that this air system was tested as described, that the readings of                     every duct and terminal were recorded as attached, and that the results were                     computed from them by the methods stated."
+        statement: "I confirm that this air system was tested as described, that the readings of \
+                    every duct and terminal were recorded as attached, and that the results were \
+                    computed from them by the methods stated."
             .into(),
     };
     (organisation, signoff)
@@ -550,6 +554,7 @@ pub fn submittal_data(e: &SystemEvaluation, id: &Identity) -> Submittal {
             report_id: id.report_id.clone(),
             content_sha256: id.content_sha256.clone(),
             signer_key_fingerprint: id.signer_key_fingerprint.clone(),
+            signer_name: id.signer_name.clone(),
             software: software(),
             paper: match dt.system {
                 UnitSystem::InchPound => Paper::UsLetter,
