@@ -141,6 +141,8 @@ pub struct FanSheet {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct TerminalTable {
     pub file: String,
+    /// The flow units of the table (`acfm`), each naming its basis.
+    pub flow_units: String,
     pub rows: Vec<TerminalRow>,
     pub sums: Vec<Relation>,
 }
@@ -281,8 +283,16 @@ fn terminals(e: &SystemEvaluation) -> Option<TerminalTable> {
             status: t.status,
         })
         .collect();
+    let mut units: Vec<&str> = Vec::new();
+    for t in &r.terminals {
+        let u = dt.get(Kind::flow(t.basis)).symbol;
+        if !units.contains(&u) {
+            units.push(u);
+        }
+    }
     Some(TerminalTable {
         file: e.loaded.spec.terminal_file.clone().unwrap_or_default(),
+        flow_units: units.join(", "),
         rows,
         sums: r
             .terminal_sums
