@@ -10,10 +10,17 @@ fn root() -> PathBuf {
 }
 
 fn annulus(args: &[&str]) -> (i32, String, String) {
+    annulus_cfg(args, "")
+}
+
+/// Runs the binary with the configuration file `config` (empty: no configuration at all, so a
+/// configuration on the machine running the tests changes nothing).
+fn annulus_cfg(args: &[&str], config: &str) -> (i32, String, String) {
     let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
         .args(args)
         .current_dir(root())
         .env("NO_COLOR", "1")
+        .env("ANNULUS_CONFIG", config)
         .env_remove("SOURCE_DATE_EPOCH")
         .output()
         .expect("binary runs");
@@ -398,6 +405,7 @@ fn the_submittal_goes_to_standard_output_with_a_dash() {
     let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
         .args(["system", SAMPLE, "-o", "-", "--quiet"])
         .current_dir(root())
+        .env("ANNULUS_CONFIG", "")
         .env_remove("SOURCE_DATE_EPOCH")
         .output()
         .expect("binary runs");
@@ -405,4 +413,109 @@ fn the_submittal_goes_to_standard_output_with_a_dash() {
     assert!(out.stdout.starts_with(b"%PDF-"), "a PDF on standard output");
     let files = annulus::report::embedded_files(&out.stdout).expect("attachments readable");
     assert!(files.iter().any(|f| f.name == "ahu-2.toml"));
+}
+
+#[test]
+fn the_user_configuration_names_the_firm_signs_and_sets_the_convention_of_new_surveys() {
+    let dir = std::env::temp_dir().join(format!("annulus-system-config-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let (code, _, err) = annulus(&["keygen", dir.join("crew").to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let cfg = dir.join("config.toml");
+    std::fs::write(
+        &cfg,
+        "organisation = \"Configured Balancing Co (fictional)\"\ntechnician = \"Ada \\\"Q\\\" Tester\"\n\
+         certificate = \"CFG-0001\"\nsigning_key = \"crew.key\"\nconvention = \"hvac-ip\"\n",
+    )
+    .unwrap();
+    let cfg = cfg.to_str().unwrap();
+
+    // init: the configured convention when none is given, the configured names in the sign-off
+    let job = dir.join("job");
+    let (code, _, err) = annulus_cfg(
+        &[
+            "init",
+            job.to_str().unwrap(),
+            "--round",
+            "18in",
+            "--date",
+            "2026-11-20",
+        ],
+        cfg,
+    );
+    assert_eq!(code, 0, "{err}");
+    let survey = std::fs::read_to_string(job.join("survey.toml")).unwrap();
+    assert!(survey.contains("convention = \"hvac-ip\""), "{survey}");
+    // quoted as TOML (a literal string keeps the double quotes of the name)
+    assert!(
+        survey.contains("tested_by = 'Ada \"Q\" Tester'"),
+        "{survey}"
+    );
+    assert!(survey.contains("certificate = \"CFG-0001\""), "{survey}");
+    assert!(
+        survey.contains("organisation = \"Configured Balancing Co (fictional)\""),
+        "{survey}"
+    );
+    // a --convention given on the command line wins
+    let (code, _, err) = annulus_cfg(
+        &[
+            "init",
+            dir.join("stack").to_str().unwrap(),
+            "--round",
+            "60in",
+            "--convention",
+            "epa-method-2",
+        ],
+        cfg,
+    );
+    assert_eq!(code, 0, "{err}");
+    let stack = std::fs::read_to_string(dir.join("stack/survey.toml")).unwrap();
+    assert!(stack.contains("convention = \"epa-method-2\""));
+
+    // the single HVAC report: the sample names its technician but no firm, so the
+    // configuration's firm is printed and the survey's technician kept
+    let report = dir.join("hvac.pdf");
+    let (code, _, err) = annulus_cfg(
+        &[
+            "report",
+            "sample-data/hvac/survey.toml",
+            "-o",
+            report.to_str().unwrap(),
+        ],
+        cfg,
+    );
+    assert_eq!(code, 0, "{err}");
+    let text = pdf_text(&report);
+    assert!(
+        text.contains("Configured Balancing Co (fictional)"),
+        "{text}"
+    );
+    assert!(text.contains("Sam Adeyemi-Hart"));
+    assert!(
+        !text.contains("Ada"),
+        "the survey's technician is not replaced"
+    );
+    // what the configuration filled is recorded, so the report re-renders identically
+    let (code, out, err) = annulus(&[
+        "verify",
+        report.to_str().unwrap(),
+        "--rerender",
+        "always",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{out}{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["rerendering"]["state"], "matches", "{out}");
+
+    // `system --sign` without a path signs with the configured key
+    let pdf = dir.join("sub.pdf");
+    let (code, _, err) = annulus_cfg(
+        &["system", SAMPLE, "-o", pdf.to_str().unwrap(), "--sign"],
+        cfg,
+    );
+    assert_eq!(code, 3, "{err}");
+    assert!(err.contains("signed by crew"), "{err}");
+    let _ = std::fs::remove_dir_all(&dir);
 }
