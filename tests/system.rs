@@ -314,6 +314,8 @@ fn the_submittal_pdf_embeds_every_input_speaks_hvac_and_is_reproducible() {
         "Balancing damper VD-204",
         "Rotating equipment",
         "Sign-off",
+        "Flows in acfm; a velocity reading is the face",
+        "that the readings of every duct and terminal were",
     ] {
         assert!(
             text.contains(phrase),
@@ -492,6 +494,11 @@ fn the_user_configuration_names_the_firm_signs_and_sets_the_convention_of_new_su
         "{text}"
     );
     assert!(text.contains("Sam Adeyemi-Hart"));
+    // the design sentence names the flow it compares (sample-data/hvac: design 6,500 acfm)
+    assert!(
+        text.contains("Design flow 6,500 acfm; measured actual flow"),
+        "{text}"
+    );
     assert!(
         !text.contains("Ada"),
         "the survey's technician is not replaced"
