@@ -399,6 +399,30 @@ fn a_signed_submittal_verifies_recomputes_and_re_renders_and_an_edit_is_caught()
     assert_ne!(code, 0, "an edited submittal must not verify: {out}");
     let v: serde_json::Value = serde_json::from_str(&out).expect("verify JSON");
     assert_eq!(v["content"], "altered", "{out}");
+
+    // review names the kind and fails the submittal on its system verdict, re-derived
+    let archive = dir.join("archive");
+    std::fs::create_dir_all(&archive).unwrap();
+    std::fs::copy(&pdf, archive.join("ahu-2.pdf")).unwrap();
+    let (code, out, err) = annulus(&[
+        "review",
+        archive.to_str().unwrap(),
+        "--key",
+        public.to_str().unwrap(),
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 3, "{out}{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).expect("review JSON");
+    let f = &v["files"][0];
+    assert_eq!(f["kind"], "submittal");
+    assert_eq!(f["status"], "fail");
+    assert_eq!(f["title"], "AHU-2 air system, test and balance");
+    assert_eq!(f["tested_by"], "Tomasz Okafor-Lind");
+    assert!(
+        f["findings"].to_string().contains("system-tolerance"),
+        "{f}"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
 
