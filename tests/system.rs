@@ -550,3 +550,45 @@ fn the_user_configuration_names_the_firm_signs_and_sets_the_convention_of_new_su
     assert!(err.contains("signed by crew"), "{err}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn a_submittal_refuses_an_absolute_survey_path_before_any_work() {
+    let dir = std::env::temp_dir().join(format!("annulus-system-abs-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let survey = root().join("sample-data/building/sa-main/survey.toml");
+    let system = dir.join("abs.toml");
+    std::fs::write(
+        &system,
+        format!(
+            "[system]\ntitle = \"absolute\"\ndate = \"2026-11-20\"\n\n[[duct]]\ntag = \"SA-main\"\n\
+             survey = {}\nrole = \"supply\"\ndesign = \"6000 cfm\"\n",
+            toml_string(survey.to_str().unwrap())
+        ),
+    )
+    .unwrap();
+    // printed: an absolute path is only a note's matter
+    let (code, _, err) = annulus(&["system", system.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    // written: refused at the line that names it, and no PDF
+    let pdf = dir.join("abs.pdf");
+    let (code, _, err) = annulus(&[
+        "system",
+        system.to_str().unwrap(),
+        "-o",
+        pdf.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 1, "{err}");
+    assert!(
+        err.contains("is an absolute path, which a submittal does not carry"),
+        "{err}"
+    );
+    assert!(err.contains("abs.toml:7:10"), "{err}");
+    assert!(!pdf.exists());
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// A TOML literal string (paths on Windows hold backslashes).
+fn toml_string(s: &str) -> String {
+    format!("'{s}'")
+}
