@@ -177,117 +177,9 @@ fn table(e: &SystemEvaluation, ctx: &Ctx) -> String {
         .map(|l| format!("{l}\n"))
         .collect::<String>();
 
-    out += "\nducts\n";
-    let mut t = Table::new(&[
-        "tag",
-        "role",
-        "of",
-        "size",
-        "design",
-        "measured",
-        "% design",
-        "tolerance",
-        "velocity",
-        "static",
-        "verdict",
-    ])
-    .right(&[4, 5, 6, 8, 9]);
-    let sp = dt.get(Kind::StaticPressure);
-    for (d, (ev, _)) in r.ducts.iter().zip(&e.ducts) {
-        t.row(vec![
-            d.tag.clone(),
-            d.role.words().to_string(),
-            d.of.clone().unwrap_or_default(),
-            words::size(dt, &ev.loaded.survey.duct),
-            words::flow(dt, d.design_basis, d.design_flow_m3_s),
-            words::flow(dt, d.design_basis, d.measured_flow_m3_s),
-            words::percent(d.percent_of_design),
-            words::tolerance(d.tolerance_percent),
-            dt.tab_format(Kind::Velocity, d.mean_velocity_m_s),
-            d.static_pa.map(|p| sp.format(p)).unwrap_or_default(),
-            mark(d.status, ctx.color),
-        ]);
-    }
-    out += &t.render();
-    let bases: Vec<FlowBasis> = {
-        let mut v: Vec<FlowBasis> = r.ducts.iter().map(|d| d.design_basis).collect();
-        v.dedup();
-        v
-    };
-    for b in bases {
-        out += &format!("{}: {}\n", dt.get(Kind::flow(b)).symbol, words::basis(b));
-    }
-
-    if !r.branches.is_empty() || r.outside_air.is_some() {
-        out += "\nrelations\n";
-        for b in &r.branches {
-            out += &format!(
-                "{}  {}\n",
-                mark(b.status, ctx.color),
-                words::branch_sum(dt, b)
-            );
-        }
-        if let Some(o) = &r.outside_air {
-            for (i, l) in words::outside_air(dt, o).into_iter().enumerate() {
-                let m = if i == 0 {
-                    mark(o.status, ctx.color)
-                } else {
-                    String::new()
-                };
-                out += &format!("{m:4}  {l}\n");
-            }
-        }
-    }
-
-    if let Some(f) = &r.fan {
-        out += &format!("\nfan {}\n", f.tag);
-        let mut ft = Table::new(&["", ""]);
-        for (k, v) in words::fan(dt, f) {
-            ft.row(vec![k, v]);
-        }
-        out += &ft
-            .render()
-            .lines()
-            .skip(2)
-            .map(|l| format!("{l}\n"))
-            .collect::<String>();
-        if !ctx.quiet {
-            for s in words::fan_sources() {
-                out += &format!("  note: {s}\n");
-            }
-        }
-    }
-
-    if !r.terminals.is_empty() {
-        out += &format!(
-            "\nterminals ({})\n",
-            spec.terminal_file.as_deref().unwrap_or("")
-        );
-        let mut t = Table::new(&[
-            "tag", "branch", "room", "design", "measured", "% design", "verdict",
-        ])
-        .right(&[3, 4, 5]);
-        for x in &r.terminals {
-            t.row(vec![
-                x.tag.clone(),
-                x.branch.clone(),
-                x.room.clone().unwrap_or_default(),
-                words::flow(dt, x.basis, x.design_flow_m3_s),
-                words::flow(dt, x.basis, x.measured_flow_m3_s),
-                words::percent(x.percent_of_design),
-                mark(x.status, ctx.color),
-            ]);
-        }
-        out += &t.render();
-        for s in &r.terminal_sums {
-            out += &format!(
-                "{}  {}\n",
-                mark(s.status, ctx.color),
-                words::terminal_sum(dt, s)
-            );
-        }
-    }
-
+    out += &duct_table(e, ctx);
+    out += &relations_and_fan(e, ctx);
+    out += &terminal_table(e, ctx);
     if !spec.deficiencies.is_empty() {
         out += "\ndeficiencies\n";
         for d in &spec.deficiencies {
@@ -338,6 +230,142 @@ fn table(e: &SystemEvaluation, ctx: &Ctx) -> String {
             String::new()
         }
     );
+    out
+}
+
+/// The ducts against design, with what each flow unit means.
+fn duct_table(e: &SystemEvaluation, ctx: &Ctx) -> String {
+    let dt = &e.display;
+    let r = &e.result;
+    let mut out = String::new();
+    out += "\nducts\n";
+    let mut t = Table::new(&[
+        "tag",
+        "role",
+        "of",
+        "size",
+        "design",
+        "measured",
+        "% design",
+        "tolerance",
+        "velocity",
+        "static",
+        "verdict",
+    ])
+    .right(&[4, 5, 6, 8, 9]);
+    let sp = dt.get(Kind::StaticPressure);
+    for (d, (ev, _)) in r.ducts.iter().zip(&e.ducts) {
+        t.row(vec![
+            d.tag.clone(),
+            d.role.words().to_string(),
+            d.of.clone().unwrap_or_default(),
+            words::size(dt, &ev.loaded.survey.duct),
+            words::flow(dt, d.design_basis, d.design_flow_m3_s),
+            words::flow(dt, d.design_basis, d.measured_flow_m3_s),
+            words::percent(d.percent_of_design),
+            words::tolerance(d.tolerance_percent),
+            dt.tab_format(Kind::Velocity, d.mean_velocity_m_s),
+            d.static_pa.map(|p| sp.format(p)).unwrap_or_default(),
+            mark(d.status, ctx.color),
+        ]);
+    }
+    out += &t.render();
+    let bases: Vec<FlowBasis> = {
+        let mut v: Vec<FlowBasis> = r.ducts.iter().map(|d| d.design_basis).collect();
+        v.dedup();
+        v
+    };
+    for b in bases {
+        out += &format!("{}: {}\n", dt.get(Kind::flow(b)).symbol, words::basis(b));
+    }
+
+    out
+}
+
+/// The branch sums, the outside air and the fan sheet.
+fn relations_and_fan(e: &SystemEvaluation, ctx: &Ctx) -> String {
+    let dt = &e.display;
+    let r = &e.result;
+    let mut out = String::new();
+    if !r.branches.is_empty() || r.outside_air.is_some() {
+        out += "\nrelations\n";
+        for b in &r.branches {
+            out += &format!(
+                "{}  {}\n",
+                mark(b.status, ctx.color),
+                words::branch_sum(dt, b)
+            );
+        }
+        if let Some(o) = &r.outside_air {
+            for (i, l) in words::outside_air(dt, o).into_iter().enumerate() {
+                let m = if i == 0 {
+                    mark(o.status, ctx.color)
+                } else {
+                    String::new()
+                };
+                out += &format!("{m:4}  {l}\n");
+            }
+        }
+    }
+
+    if let Some(f) = &r.fan {
+        out += &format!("\nfan {}\n", f.tag);
+        let mut ft = Table::new(&["", ""]);
+        for (k, v) in words::fan(dt, f) {
+            ft.row(vec![k, v]);
+        }
+        out += &ft
+            .render()
+            .lines()
+            .skip(2)
+            .map(|l| format!("{l}\n"))
+            .collect::<String>();
+        if !ctx.quiet {
+            for s in words::fan_sources() {
+                out += &format!("  note: {s}\n");
+            }
+        }
+    }
+
+    out
+}
+
+/// The terminals against design and their sums per branch.
+fn terminal_table(e: &SystemEvaluation, ctx: &Ctx) -> String {
+    let dt = &e.display;
+    let r = &e.result;
+    let spec = &e.loaded.spec;
+    let mut out = String::new();
+    if !r.terminals.is_empty() {
+        out += &format!(
+            "\nterminals ({})\n",
+            spec.terminal_file.as_deref().unwrap_or("")
+        );
+        let mut t = Table::new(&[
+            "tag", "branch", "room", "design", "measured", "% design", "verdict",
+        ])
+        .right(&[3, 4, 5]);
+        for x in &r.terminals {
+            t.row(vec![
+                x.tag.clone(),
+                x.branch.clone(),
+                x.room.clone().unwrap_or_default(),
+                words::flow(dt, x.basis, x.design_flow_m3_s),
+                words::flow(dt, x.basis, x.measured_flow_m3_s),
+                words::percent(x.percent_of_design),
+                mark(x.status, ctx.color),
+            ]);
+        }
+        out += &t.render();
+        for s in &r.terminal_sums {
+            out += &format!(
+                "{}  {}\n",
+                mark(s.status, ctx.color),
+                words::terminal_sum(dt, s)
+            );
+        }
+    }
+
     out
 }
 

@@ -102,98 +102,8 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
         }
         None => return Err(empty()),
     };
+    let c = Columns::read(file, header_line, &header)?;
     let mut diags = Diagnostics::new();
-    let mut cols = Vec::new();
-    for (i, h) in header.iter().enumerate() {
-        match terminal_column(h) {
-            Ok(c) => cols.push(c),
-            Err((msg, hint)) => diags.push(
-                Diagnostic::new(msg)
-                    .at(Location::at(file, header_line, i + 1)
-                        .with_context(format!("header `{h}`")))
-                    .hint(hint),
-            ),
-        }
-    }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
-    }
-    let find = |f: fn(&Col) -> bool| cols.iter().position(f);
-    let tag_col = find(|c| matches!(c, Col::Tag));
-    let branch_col = find(|c| matches!(c, Col::Branch));
-    let design_col = find(|c| matches!(c, Col::Design(_)));
-    let measured_col = find(|c| matches!(c, Col::Measured(_)));
-    let velocity_col = find(|c| matches!(c, Col::Velocity(_)));
-    let area_col = find(|c| matches!(c, Col::Area(_)));
-    let header_error = |msg: &str, hint: &str| {
-        Diagnostic::new(msg.to_string())
-            .at(Location::at(file, header_line, 1).with_context("header"))
-            .hint(hint.to_string())
-    };
-    for (missing, name) in [
-        (tag_col.is_none(), "tag"),
-        (branch_col.is_none(), "branch"),
-        (design_col.is_none(), "design[…]"),
-    ] {
-        if missing {
-            diags.push(header_error(
-                &format!("the terminals file has no `{name}` column"),
-                "columns are tag, branch, design[…], and measured[…] or velocity[…] with area[…]",
-            ));
-        }
-    }
-    if measured_col.is_none() && (velocity_col.is_none() || area_col.is_none()) {
-        diags.push(header_error(
-            "the terminals file needs `measured[…]`, or `velocity[…]` and `area[…]`",
-            "a capture-hood reading goes in measured[cfm]; a face velocity in velocity[fpm] with the terminal's area factor in area[ft2]",
-        ));
-    }
-    if velocity_col.is_some() != area_col.is_some() {
-        diags.push(header_error(
-            "`velocity[…]` and `area[…]` go together",
-            "the flow is the face velocity times the terminal's area factor",
-        ));
-    }
-    // Every terminal flow is on the design's basis: the measured column must name the same one,
-    // and velocity × area is an actual flow.
-    let unit_of = |i: Option<usize>| match i.map(|i| cols[i]) {
-        Some(Col::Design(u) | Col::Measured(u) | Col::Velocity(u) | Col::Area(u)) => Some(u),
-        _ => None,
-    };
-    let basis = unit_of(design_col)
-        .and_then(flow_basis)
-        .unwrap_or(FlowBasis::Actual);
-    if let (Some(mi), Some(mu)) = (measured_col, unit_of(measured_col)) {
-        let mb = flow_basis(mu).unwrap_or(FlowBasis::Actual);
-        if mb != basis {
-            diags.push(
-                Diagnostic::new(format!(
-                    "the measured flows are {} but the designs are {}",
-                    mb.words(),
-                    basis.words()
-                ))
-                .at(Location::at(file, header_line, mi + 1)
-                    .with_context(format!("header `{}`", &header[mi])))
-                .hint("give design and measured flows in units of the same basis (cfm and cfm, or scfm and scfm)"),
-            );
-        }
-    }
-    if let Some(vi) = velocity_col {
-        if basis != FlowBasis::Actual {
-            diags.push(
-                Diagnostic::new(format!(
-                    "velocity × area gives actual flow but the designs are {}",
-                    basis.words()
-                ))
-                .at(Location::at(file, header_line, vi + 1)
-                    .with_context(format!("header `{}`", &header[vi])))
-                .hint("write the designs in an actual-flow unit (cfm, m3/h, L/s)"),
-            );
-        }
-    }
-    if !diags.is_empty() {
-        return Err(Error::Input(diags));
-    }
     let mut terminals = Vec::new();
     let mut lines = Vec::new();
     for (line, rec) in rows {
@@ -207,8 +117,162 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
                 continue;
             }
         };
+        let at = RowPlace {
+            file,
+            line,
+            header: &header,
+        };
+        if let Some(t) = c.terminal(&at, &rec, &mut diags) {
+            terminals.push(t);
+            lines.push(line);
+        }
+    }
+    if terminals.is_empty() && diags.is_empty() {
+        return Err(empty());
+    }
+    Ok((
+        TerminalRows {
+            terminals,
+            lines,
+            branch_column: c.branch.map(|i| i + 1).unwrap_or(1),
+        },
+        diags,
+    ))
+}
+
+/// The columns a terminals header names, checked together, and the basis of its flows.
+struct Columns {
+    cols: Vec<Col>,
+    tag: Option<usize>,
+    branch: Option<usize>,
+    design: Option<usize>,
+    measured: Option<usize>,
+    velocity: Option<usize>,
+    area: Option<usize>,
+    basis: FlowBasis,
+}
+
+/// Where a data row is: its file, line and the header naming its columns.
+struct RowPlace<'a> {
+    file: &'a str,
+    line: usize,
+    header: &'a csv::StringRecord,
+}
+
+impl Columns {
+    /// Reads and checks the header: every problem of it in one pass.
+    fn read(file: &str, header_line: usize, header: &csv::StringRecord) -> Result<Columns, Error> {
+        let mut diags = Diagnostics::new();
+        let mut cols = Vec::new();
+        for (i, h) in header.iter().enumerate() {
+            match terminal_column(h) {
+                Ok(c) => cols.push(c),
+                Err((msg, hint)) => diags.push(
+                    Diagnostic::new(msg)
+                        .at(Location::at(file, header_line, i + 1)
+                            .with_context(format!("header `{h}`")))
+                        .hint(hint),
+                ),
+            }
+        }
+        if !diags.is_empty() {
+            return Err(Error::Input(diags));
+        }
+        let find = |f: fn(&Col) -> bool| cols.iter().position(f);
+        let mut c = Columns {
+            tag: find(|c| matches!(c, Col::Tag)),
+            branch: find(|c| matches!(c, Col::Branch)),
+            design: find(|c| matches!(c, Col::Design(_))),
+            measured: find(|c| matches!(c, Col::Measured(_))),
+            velocity: find(|c| matches!(c, Col::Velocity(_))),
+            area: find(|c| matches!(c, Col::Area(_))),
+            cols: cols.clone(),
+            basis: FlowBasis::Actual,
+        };
+        let header_error = |msg: &str, hint: &str| {
+            Diagnostic::new(msg.to_string())
+                .at(Location::at(file, header_line, 1).with_context("header"))
+                .hint(hint.to_string())
+        };
+        for (missing, name) in [
+            (c.tag.is_none(), "tag"),
+            (c.branch.is_none(), "branch"),
+            (c.design.is_none(), "design[…]"),
+        ] {
+            if missing {
+                diags.push(header_error(
+                    &format!("the terminals file has no `{name}` column"),
+                    "columns are tag, branch, design[…], and measured[…] or velocity[…] with area[…]",
+                ));
+            }
+        }
+        if c.measured.is_none() && (c.velocity.is_none() || c.area.is_none()) {
+            diags.push(header_error(
+                "the terminals file needs `measured[…]`, or `velocity[…]` and `area[…]`",
+                "a capture-hood reading goes in measured[cfm]; a face velocity in velocity[fpm] with the terminal's area factor in area[ft2]",
+            ));
+        }
+        if c.velocity.is_some() != c.area.is_some() {
+            diags.push(header_error(
+                "`velocity[…]` and `area[…]` go together",
+                "the flow is the face velocity times the terminal's area factor",
+            ));
+        }
+        // Every terminal flow is on the design's basis: the measured column must name the same
+        // one, and velocity × area is an actual flow.
+        c.basis = c
+            .unit(c.design)
+            .and_then(flow_basis)
+            .unwrap_or(FlowBasis::Actual);
+        if let (Some(mi), Some(mu)) = (c.measured, c.unit(c.measured)) {
+            let mb = flow_basis(mu).unwrap_or(FlowBasis::Actual);
+            if mb != c.basis {
+                diags.push(
+                    Diagnostic::new(format!(
+                        "the measured flows are {} but the designs are {}",
+                        mb.words(),
+                        c.basis.words()
+                    ))
+                    .at(Location::at(file, header_line, mi + 1)
+                        .with_context(format!("header `{}`", &header[mi])))
+                    .hint("give design and measured flows in units of the same basis (cfm and cfm, or scfm and scfm)"),
+                );
+            }
+        }
+        if let Some(vi) = c.velocity {
+            if c.basis != FlowBasis::Actual {
+                diags.push(
+                    Diagnostic::new(format!(
+                        "velocity × area gives actual flow but the designs are {}",
+                        c.basis.words()
+                    ))
+                    .at(Location::at(file, header_line, vi + 1)
+                        .with_context(format!("header `{}`", &header[vi])))
+                    .hint("write the designs in an actual-flow unit (cfm, m3/h, L/s)"),
+                );
+            }
+        }
+        diags.finish(c)
+    }
+
+    /// The unit a quantity column names.
+    fn unit(&self, i: Option<usize>) -> Option<&'static Unit> {
+        match i.map(|i| self.cols[i]) {
+            Some(Col::Design(u) | Col::Measured(u) | Col::Velocity(u) | Col::Area(u)) => Some(u),
+            _ => None,
+        }
+    }
+
+    /// One data row as a terminal, or `None` with its problems added to `diags`.
+    fn terminal(
+        &self,
+        at: &RowPlace<'_>,
+        rec: &csv::StringRecord,
+        diags: &mut Diagnostics,
+    ) -> Option<TerminalSpec> {
+        let (file, line, header) = (at.file, at.line, at.header);
         let cell = |i: Option<usize>| i.and_then(|i| rec.get(i)).unwrap_or("").trim();
-        let tag = cell(tag_col).to_string();
+        let tag = cell(self.tag).to_string();
         let who = if tag.is_empty() {
             String::new()
         } else {
@@ -221,7 +285,7 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
             if raw.is_empty() {
                 return None;
             }
-            let unit = unit_of(Some(i))?;
+            let unit = self.unit(Some(i))?;
             match parse_number(raw).filter(|v| v.is_finite() && !raw.contains('/')) {
                 Some(v) if v >= 0.0 => convert_in(v, unit, dim).ok(),
                 Some(_) => {
@@ -246,10 +310,10 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
                 }
             }
         };
-        let design = number(design_col, "the design flow", Dimension::Flow);
-        let measured = number(measured_col, "the measured flow", Dimension::Flow);
-        let velocity = number(velocity_col, "the face velocity", Dimension::Velocity);
-        let area = number(area_col, "the area factor", Dimension::Area);
+        let design = number(self.design, "the design flow", Dimension::Flow);
+        let measured = number(self.measured, "the measured flow", Dimension::Flow);
+        let velocity = number(self.velocity, "the face velocity", Dimension::Velocity);
+        let area = number(self.area, "the area factor", Dimension::Area);
         let place = |i: Option<usize>| {
             Location::at(file, line, i.map(|i| i + 1).unwrap_or(1)).with_context(format!(
                 "{who}column `{}`",
@@ -259,24 +323,24 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
         if tag.is_empty() {
             diags.push(
                 Diagnostic::new("a terminal has no tag")
-                    .at(place(tag_col))
+                    .at(place(self.tag))
                     .hint("give each terminal its tag as drawn, e.g. `D-101`"),
             );
             row_ok = false;
         }
-        let branch = cell(branch_col).to_string();
+        let branch = cell(self.branch).to_string();
         if branch.is_empty() {
             diags.push(
                 Diagnostic::new("a terminal does not say which duct serves it")
-                    .at(place(branch_col))
+                    .at(place(self.branch))
                     .hint("write the tag of the branch (a duct of the system file) in `branch`"),
             );
             row_ok = false;
         }
-        if design.is_none() && row_ok && cell(design_col).is_empty() {
+        if design.is_none() && row_ok && cell(self.design).is_empty() {
             diags.push(
                 Diagnostic::new("a terminal has no design flow")
-                    .at(place(design_col))
+                    .at(place(self.design))
                     .hint("fill in the design airflow from the drawings"),
             );
             row_ok = false;
@@ -294,39 +358,26 @@ pub fn read_terminals(file: &str, text: &str) -> Result<(TerminalRows, Diagnosti
                 Diagnostic::new(
                     "a terminal has no reading: no measured flow, or no velocity and area",
                 )
-                .at(place(measured_col.or(velocity_col)))
+                .at(place(self.measured.or(self.velocity)))
                 .hint("fill in the measured flow, or the face velocity and the area factor"),
             );
             row_ok = false;
         }
-        if let (true, Some(design), Some(reading)) = (row_ok, design, reading) {
-            terminals.push(TerminalSpec {
+        let find = |f: fn(&Col) -> bool| self.cols.iter().position(f);
+        let text = |i: Option<usize>| Some(cell(i)).filter(|s| !s.is_empty()).map(String::from);
+        match (row_ok, design, reading) {
+            (true, Some(design), Some(reading)) => Some(TerminalSpec {
                 tag,
                 branch,
-                room: Some(cell(find(|c| matches!(c, Col::Room))))
-                    .filter(|s| !s.is_empty())
-                    .map(String::from),
-                kind: Some(cell(find(|c| matches!(c, Col::Type))))
-                    .filter(|s| !s.is_empty())
-                    .map(String::from),
+                room: text(find(|c| matches!(c, Col::Room))),
+                kind: text(find(|c| matches!(c, Col::Type))),
                 design_flow_m3_s: design,
-                basis,
+                basis: self.basis,
                 reading,
-            });
-            lines.push(line);
+            }),
+            _ => None,
         }
     }
-    if terminals.is_empty() && diags.is_empty() {
-        return Err(empty());
-    }
-    Ok((
-        TerminalRows {
-            terminals,
-            lines,
-            branch_column: branch_col.map(|i| i + 1).unwrap_or(1),
-        },
-        diags,
-    ))
 }
 
 /// The located diagnostic for a terminal problem [`crate::system::validate`] found (`None` for
