@@ -570,6 +570,10 @@ fn a_submittal_refuses_an_absolute_survey_path_before_any_work() {
     // printed: an absolute path is only a note's matter
     let (code, _, err) = annulus(&["system", system.to_str().unwrap()]);
     assert_eq!(code, 0, "{err}");
+    assert!(
+        err.contains("(duct SA-main's survey) is an absolute path"),
+        "{err}"
+    );
     // written: refused at the line that names it, and no PDF
     let pdf = dir.join("abs.pdf");
     let (code, _, err) = annulus(&[

@@ -9,6 +9,7 @@ use crate::archive::SecretKey;
 use crate::checks::Status;
 use crate::diag::Error;
 use crate::display::{fixed, DisplayTable, Kind, UnitSystem};
+use crate::input::fs::Place;
 use crate::input::system_file::load_system;
 use crate::report::Engine;
 use crate::submittal::{evaluate_system, SystemEvaluation};
@@ -57,9 +58,7 @@ pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
         .map(super::report::signing_key)
         .transpose()?;
     let loaded = load_system(&args.system)?;
-    for d in &loaded.ducts {
-        super::files::note_outside(d, ctx);
-    }
+    note_outside(&loaded, ctx);
     // the destination is checked before any work, against every input and the key
     let out = match &args.output {
         Some(arg) => {
@@ -89,6 +88,36 @@ pub fn run(args: SystemArgs, ctx: &Ctx) -> Result<i32, Error> {
     };
     super::emit(&text)?;
     Ok(code)
+}
+
+/// Prints a note (unless `--quiet`) for each file read from outside the system file's folder
+/// (a duct's survey, the terminals CSV) and from outside a survey's own folder.
+fn note_outside(loaded: &crate::input::system_file::LoadedSystem, ctx: &Ctx) {
+    if !ctx.quiet {
+        let written = loaded
+            .spec
+            .ducts
+            .iter()
+            .map(|d| (format!("duct {}'s survey", d.tag), d.survey.as_str()))
+            .chain(
+                loaded
+                    .terminals
+                    .iter()
+                    .map(|t| ("the terminals file".to_string(), t.name.as_str())),
+            );
+        for (what, path) in written {
+            match crate::input::fs::classify_reference(path) {
+                Place::Inside => {}
+                Place::Absolute => eprintln!("note: `{path}` ({what}) is an absolute path"),
+                Place::Above => {
+                    eprintln!("note: `{path}` ({what}) is outside the system file's folder")
+                }
+            }
+        }
+    }
+    for d in &loaded.ducts {
+        super::files::note_outside(d, ctx);
+    }
 }
 
 /// Renders, seals and (with a key) signs the submittal, every input embedded, and writes it to
