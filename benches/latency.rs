@@ -112,6 +112,7 @@ fn bench_latency(c: &mut Criterion) {
                 template: None,
                 document_date: e.loaded.survey.date,
                 signer: Some(SignerEntry::new("bench", &key.public())),
+                defaults: Default::default(),
             };
             black_box(make_report(&engine, &e, &a, &settings, Some(&key)).expect("renders"))
         })

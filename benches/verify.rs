@@ -99,6 +99,7 @@ fn report(engine: &Engine, big: bool, key: &SecretKey) -> Vec<u8> {
         template: None,
         document_date: e.loaded.survey.date,
         signer: Some(SignerEntry::new("bench-signer", &key.public())),
+        defaults: Default::default(),
     };
     make_report(engine, &e, &a, &settings, Some(key))
         .expect("renders")

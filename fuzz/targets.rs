@@ -118,3 +118,102 @@ pub fn rata(data: &[u8]) {
         rejected(e);
     }
 }
+
+/// The sample building's files besides its system file and terminals CSV, by their paths
+/// relative to the system file.
+const BUILDING: [(&str, &[u8]); 12] = [
+    (
+        "sa-main/survey.toml",
+        include_bytes!("../sample-data/building/sa-main/survey.toml"),
+    ),
+    (
+        "sa-main/traverse.csv",
+        include_bytes!("../sample-data/building/sa-main/traverse.csv"),
+    ),
+    (
+        "sa-1/survey.toml",
+        include_bytes!("../sample-data/building/sa-1/survey.toml"),
+    ),
+    (
+        "sa-1/traverse.csv",
+        include_bytes!("../sample-data/building/sa-1/traverse.csv"),
+    ),
+    (
+        "sa-2/survey.toml",
+        include_bytes!("../sample-data/building/sa-2/survey.toml"),
+    ),
+    (
+        "sa-2/traverse.csv",
+        include_bytes!("../sample-data/building/sa-2/traverse.csv"),
+    ),
+    (
+        "sa-3/survey.toml",
+        include_bytes!("../sample-data/building/sa-3/survey.toml"),
+    ),
+    (
+        "sa-3/traverse.csv",
+        include_bytes!("../sample-data/building/sa-3/traverse.csv"),
+    ),
+    (
+        "ra-main/survey.toml",
+        include_bytes!("../sample-data/building/ra-main/survey.toml"),
+    ),
+    (
+        "ra-main/traverse.csv",
+        include_bytes!("../sample-data/building/ra-main/traverse.csv"),
+    ),
+    (
+        "oa/survey.toml",
+        include_bytes!("../sample-data/building/oa/survey.toml"),
+    ),
+    (
+        "oa/traverse.csv",
+        include_bytes!("../sample-data/building/oa/traverse.csv"),
+    ),
+];
+const BUILDING_SYSTEM: &[u8] = include_bytes!("../sample-data/building/ahu-2.toml");
+const BUILDING_TERMINALS: &[u8] = include_bytes!("../sample-data/building/terminals.csv");
+
+/// The sample building with `system` and `terminals` in their places, read and evaluated: on
+/// success every duct's and terminal's measured flow and percent of design are finite.
+fn building(system: &[u8], terminals: &[u8]) {
+    let mut files = MemoryFiles::new();
+    files.insert("bldg/ahu-2.toml", system);
+    files.insert("bldg/terminals.csv", terminals);
+    for (path, bytes) in BUILDING {
+        files.insert(format!("bldg/{path}"), bytes);
+    }
+    let result =
+        annulus::input::system_file::load_system_with(Path::new("bldg/ahu-2.toml"), &|p| {
+            files.read(p)
+        })
+        .and_then(|l| annulus::submittal::evaluate_system(l, None));
+    match result {
+        Ok(e) => {
+            let doc = serde_json_value(&e.doc());
+            for key in ["ducts", "terminals"] {
+                for item in doc[key].as_array().into_iter().flatten() {
+                    for field in ["measured_flow_m3_s", "percent_of_design"] {
+                        assert!(
+                            item[field].as_f64().is_some_and(f64::is_finite),
+                            "{key} {}: {field} is {}",
+                            item["tag"],
+                            item[field]
+                        );
+                    }
+                }
+            }
+        }
+        Err(e) => rejected(e),
+    }
+}
+
+/// Any bytes as a system file (with the sample building's surveys and terminals).
+pub fn system(data: &[u8]) {
+    building(data, BUILDING_TERMINALS);
+}
+
+/// Any bytes as the sample building's terminals CSV.
+pub fn terminals(data: &[u8]) {
+    building(BUILDING_SYSTEM, data);
+}

@@ -42,3 +42,75 @@ pub struct Config {
     /// The convention new surveys take when none is given.
     pub convention: Option<ConventionId>,
 }
+
+/// Who did the work, when the inputs name nobody: the configuration's firm, technician and
+/// certificate. A survey's (or a system file's) `[signoff]` overrides each of them.
+#[derive(Debug, Clone, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+pub struct SignoffDefaults {
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub organisation: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub technician: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub certificate: Option<String>,
+}
+
+impl SignoffDefaults {
+    /// True when there is nothing to fill in.
+    pub fn is_empty(&self) -> bool {
+        self.organisation.is_none() && self.technician.is_none() && self.certificate.is_none()
+    }
+
+    /// `signoff` with every field it leaves empty taken from these defaults.
+    pub fn fill(&self, signoff: &crate::survey::Signoff) -> crate::survey::Signoff {
+        let pick = |own: &Option<String>, default: &Option<String>| {
+            own.clone()
+                .filter(|s| !s.trim().is_empty())
+                .or_else(|| default.clone())
+        };
+        crate::survey::Signoff {
+            tested_by: pick(&signoff.tested_by, &self.technician),
+            certificate: pick(&signoff.certificate, &self.certificate),
+            reviewed_by: signoff.reviewed_by.clone(),
+            organisation: pick(&signoff.organisation, &self.organisation),
+        }
+    }
+}
+
+impl Config {
+    /// The sign-off defaults this configuration gives.
+    pub fn signoff_defaults(&self) -> SignoffDefaults {
+        SignoffDefaults {
+            organisation: self.organisation.clone(),
+            technician: self.technician.clone(),
+            certificate: self.certificate.clone(),
+        }
+    }
+}
+
+#[cfg(test)]
+mod signoff_tests {
+    use super::*;
+    use crate::survey::Signoff;
+
+    #[test]
+    fn the_inputs_override_the_configuration_field_by_field() {
+        let d = SignoffDefaults {
+            organisation: Some("Configured firm".into()),
+            technician: Some("Configured technician".into()),
+            certificate: Some("CFG-1".into()),
+        };
+        let own = Signoff {
+            tested_by: Some("Survey technician".into()),
+            certificate: None,
+            reviewed_by: Some("Reviewer".into()),
+            organisation: Some(" ".into()),
+        };
+        let f = d.fill(&own);
+        assert_eq!(f.tested_by.as_deref(), Some("Survey technician"));
+        assert_eq!(f.certificate.as_deref(), Some("CFG-1"));
+        assert_eq!(f.organisation.as_deref(), Some("Configured firm"));
+        assert_eq!(f.reviewed_by.as_deref(), Some("Reviewer"));
+        assert!(SignoffDefaults::default().is_empty());
+    }
+}

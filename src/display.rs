@@ -276,6 +276,12 @@ impl DisplayTable {
             (Kind::Mass, _) => s("g", "g", 1, "mass"),
             (Kind::GasVolume, InchPound) => s("ft³", "ft3", 3, "gas volume"),
             (Kind::GasVolume, _) => s("m³", "m3", 4, "gas volume"),
+            (Kind::NormalFlow, _) => s("Nm³/h", "Nm3/h", 0, "normal flow, wet"),
+            (Kind::NormalDryFlow, _) => s("dNm³/h", "dNm3/h", 0, "normal flow, dry"),
+            (Kind::FanSpeed, _) => s("rpm", "rpm", 0, "fan speed"),
+            (Kind::Current, _) => s("A", "A", 1, "motor current"),
+            (Kind::Power, InchPound) => s("hp", "hp", 2, "power"),
+            (Kind::Power, _) => s("kW", "kW", 2, "power"),
         }
     }
 
@@ -369,6 +375,48 @@ impl DisplayTable {
             self.format(Kind::Temperature, temperature_k),
             self.format(Kind::AbsolutePressure, pressure_pa)
         )
+    }
+
+    /// The step a test-and-balance report rounds `kind` to, in the shown unit, or `None` where
+    /// the table's decimals already are the rule. Common practice (TAB reports): airflow to the
+    /// nearest 5 cfm (5 m³/h), duct velocities to the nearest 5 fpm (0.05 m/s); instruments
+    /// read flow to a few percent, and finer figures suggest a precision the test does not have.
+    /// Only HVAC jobs round this way.
+    pub fn tab_step(&self, kind: Kind) -> Option<f64> {
+        if !self.convention.is_hvac() {
+            return None;
+        }
+        let ip = self.system.is_inch_pound();
+        match kind {
+            k if k.is_flow() => Some(5.0),
+            Kind::Velocity if ip => Some(5.0),
+            Kind::Velocity => Some(0.05),
+            _ => None,
+        }
+    }
+
+    /// The number as a test-and-balance report prints it: rounded to [`DisplayTable::tab_step`],
+    /// flows grouped in thousands (`8,015`), velocities not (`1090`).
+    pub fn tab_number(&self, kind: Kind, si: f64) -> String {
+        let shown = self.get(kind);
+        let (value, decimals) = match self.tab_step(kind) {
+            Some(step) => (
+                (shown.value(si) / step).round() * step,
+                if step >= 1.0 { 0 } else { shown.decimals },
+            ),
+            None => (shown.value(si), shown.decimals),
+        };
+        if kind.is_flow() {
+            grouped(value, decimals)
+        } else {
+            fixed(value, decimals)
+        }
+    }
+
+    /// [`DisplayTable::tab_number`] with the unit (`8,015 acfm`).
+    pub fn tab_format(&self, kind: Kind, si: f64) -> String {
+        let shown = self.get(kind);
+        shown.with_unit(self.tab_number(kind, si))
     }
 
     /// Shorthand: `get(kind).format(si)`.
@@ -695,6 +743,32 @@ mod tests {
             ip.si().quote(Kind::Area, 113.0 * 0.0254 * 0.0254),
             "0.0729 m²"
         );
+    }
+
+    #[test]
+    fn tab_reports_round_flows_and_velocities_to_the_trade_step() {
+        use crate::units::FlowBasis;
+        let ip = DisplayTable::new(ConventionId::HvacIp, UnitSystem::InchPound);
+        // 1 cfm = 0.028316846592/60 m³/s; common practice: airflow to 5 cfm, velocity to 5 fpm
+        let cfm = 0.028_316_846_592 / 60.0;
+        assert_eq!(ip.tab_format(Kind::ActualFlow, 8013.0 * cfm), "8,015 acfm");
+        assert_eq!(ip.tab_number(Kind::StandardFlow, 1087.4 * cfm), "1,085");
+        // 1 fpm = 0.00508 m/s
+        assert_eq!(ip.tab_format(Kind::Velocity, 1088.0 * 0.00508), "1090 fpm");
+        let si = DisplayTable::new(ConventionId::HvacSi, UnitSystem::Si);
+        assert_eq!(si.tab_format(Kind::Velocity, 5.437), "5.45 m/s");
+        // stack jobs keep the table's own decimals
+        let stack = DisplayTable::new(ConventionId::EpaMethod2, UnitSystem::InchPound);
+        assert_eq!(stack.tab_step(Kind::ActualFlow), None);
+        assert_eq!(
+            ip.tab_format(Kind::FanSpeed, 1147.6),
+            "1148 rpm",
+            "fan speeds have no TAB step"
+        );
+        assert_eq!(Kind::flow(FlowBasis::DryStandard), Kind::DryStandardFlow);
+        // NIST SP 811 B.8: 1 hp (550 ft·lbf/s) = 745.6999 W
+        assert_eq!(ip.format(Kind::Power, 745.699_872 * 7.5), "7.50 hp");
+        assert_eq!(si.format(Kind::Power, 5500.0), "5.50 kW");
     }
 
     #[test]

@@ -15,8 +15,12 @@
 //! 6. **Present** — [`report`] renders Typst PDFs; [`archive`] signs, verifies and reviews them;
 //!    [`cli`] prints tables, JSON and CSV.
 //!
+//! A test-and-balance submittal runs this pipeline once per duct of an air system and then
+//! [`system`] compares the ducts with their design and with each other ([`submittal`] joins the two).
+//!
 //! The calculation modules ([`units`], [`geometry`], [`layout`], [`gas`], [`flow`], [`checks`],
-//! [`uncertainty`], [`calibration`], [`rata`]) never read files, print, or look at the clock.
+//! [`uncertainty`], [`calibration`], [`rata`], [`system`]) never read files, print, or look at the
+//! clock.
 
 // Diagnostics carry file, line, column, context and a hint by value; boxing them would buy nothing
 // on paths that end the command.
@@ -46,7 +50,9 @@ pub mod rata;
 pub mod readings;
 pub mod report;
 pub mod results;
+pub mod submittal;
 pub mod survey;
+pub mod system;
 pub mod uncertainty;
 pub mod units;
 pub mod wording;

@@ -27,6 +27,10 @@ pub enum FileKind {
     CalibrationReadings,
     /// A RATA TOML.
     Rata,
+    /// A system file TOML (`annulus system`).
+    System,
+    /// A system's terminal readings CSV.
+    Terminals,
     /// A firm's Typst report template.
     Template,
     /// A signing key or a public key.
@@ -39,12 +43,14 @@ pub enum FileKind {
 
 impl FileKind {
     /// Every kind.
-    pub const ALL: [FileKind; 9] = [
+    pub const ALL: [FileKind; 11] = [
         FileKind::Survey,
         FileKind::Readings,
         FileKind::Calibration,
         FileKind::CalibrationReadings,
         FileKind::Rata,
+        FileKind::System,
+        FileKind::Terminals,
         FileKind::Template,
         FileKind::Key,
         FileKind::Settings,
@@ -59,6 +65,8 @@ impl FileKind {
             FileKind::Calibration => "a calibration file",
             FileKind::CalibrationReadings => "a calibration readings file",
             FileKind::Rata => "a RATA file",
+            FileKind::System => "a system file",
+            FileKind::Terminals => "a terminals file",
             FileKind::Template => "a report template",
             FileKind::Key => "a key file",
             FileKind::Settings => "a configuration or trust list file",
@@ -72,6 +80,10 @@ impl FileKind {
             // A complete survey is about 3 KiB; 1 MiB leaves room for long notes and the
             // largest run count (MAX_RUNS) many times over.
             FileKind::Survey | FileKind::Calibration | FileKind::Rata => MIB,
+            // A system file of a large air handler (dozens of ducts, deficiencies) is a few KiB.
+            FileKind::System => MIB,
+            // MAX_TERMINAL_ROWS rows of a few dozen bytes each.
+            FileKind::Terminals => MIB,
             // MAX_READING_ROWS rows of up to ~400 bytes (all optional columns, a long time stamp).
             FileKind::Readings => MIB,
             // A Method 2 §10.1 calibration has 6 pairs; MAX_CALIBRATION_PAIRS pairs fit in 1 MiB.
@@ -125,6 +137,8 @@ pub fn largest_limit() -> u64 {
         FileKind::Calibration,
         FileKind::CalibrationReadings,
         FileKind::Rata,
+        FileKind::System,
+        FileKind::Terminals,
     ]
     .iter()
     .map(|k| k.limit())
@@ -151,6 +165,14 @@ pub const MAX_RATA_RUNS: usize = 100;
 /// is an error) and the largest layouts have 8 × 100 (round) or 40 × 40 = 1,600 (rectangular)
 /// points, so no valid file has more than 1,600 rows.
 pub const MAX_READING_ROWS: usize = 2_000;
+
+/// Data rows (grilles, diffusers) in one terminals file. A large air handler serves a few hundred
+/// terminals; 5,000 leaves a wide margin and keeps the submittal's terminal table bounded.
+pub const MAX_TERMINAL_ROWS: usize = 5_000;
+
+/// Ducts in one system file: an air handler's mains, branches, returns and outside air are a few
+/// dozen at most, and each duct is a survey evaluated and drawn in the submittal.
+pub const MAX_SYSTEM_DUCTS: usize = 200;
 
 /// Pairs in one calibration readings file: Method 2 §10.1 asks for 3 per leg; 1,000 leaves room
 /// for repeated sessions.

@@ -376,6 +376,9 @@ pub struct Signoff {
     pub tested_by: Option<String>,
     pub certificate: Option<String>,
     pub reviewed_by: Option<String>,
+    /// The firm the test was done for or by, printed in the sign-off block.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub organisation: Option<String>,
 }
 
 /// The requested layout.

@@ -60,6 +60,12 @@ pub enum Dimension {
     MassFlow,
     /// Mass per mole; held in g/mol (numerically equal to lb/lb-mol).
     MolarMass,
+    /// Electric current (motor amps).
+    Current,
+    /// Power (fan shaft or motor power).
+    Power,
+    /// Rotational speed of a fan; held in rpm, the unit of nameplates and drives.
+    RotationalSpeed,
 }
 
 impl Dimension {
@@ -81,6 +87,9 @@ impl Dimension {
             Dimension::Area => "area",
             Dimension::MassFlow => "mass flow",
             Dimension::MolarMass => "molar mass",
+            Dimension::Current => "current",
+            Dimension::Power => "power",
+            Dimension::RotationalSpeed => "rotational speed",
         }
     }
 
@@ -101,6 +110,9 @@ impl Dimension {
             Dimension::Area => "m2",
             Dimension::MassFlow => "kg/s",
             Dimension::MolarMass => "g/mol",
+            Dimension::Current => "A",
+            Dimension::Power => "W",
+            Dimension::RotationalSpeed => "rpm",
         }
     }
 
@@ -122,6 +134,9 @@ impl Dimension {
             Dimension::Area => "4 ft2",
             Dimension::MassFlow => "1200 lb/h",
             Dimension::MolarMass => "29.0 g/mol",
+            Dimension::Current => "18.4 A",
+            Dimension::Power => "5 hp",
+            Dimension::RotationalSpeed => "1150 rpm",
         }
     }
 }
@@ -149,6 +164,9 @@ pub const PA_PER_INHG: f64 = 13595.1 * G_N * INCH_M;
 /// Conventional millimetre of mercury (NIST SP 811 B.8: 1.333224E+02 Pa).
 pub const PA_PER_MMHG: f64 = 13595.1 * G_N * 0.001;
 const LB_KG: f64 = 0.45359237; // exact
+/// Horsepower (550 ft·lbf/s), the mechanical horsepower of US motor nameplates: 550 · 0.3048 m ·
+/// 0.45359237 kg · 9.80665 m/s² per s = 745.699 872 W (NIST SP 811 B.8: 7.456999 E+02 W).
+const HP_W: f64 = 550.0 * FOOT_M * LB_KG * G_N;
 const FT3_M3: f64 = FOOT_M * FOOT_M * FOOT_M;
 
 const fn u(symbol: &'static str, dimension: Dimension, factor: f64) -> Unit {
@@ -258,6 +276,13 @@ pub const UNITS: &[Unit] = &[
     u("g/mol", Dimension::MolarMass, 1.0),
     u("kg/kmol", Dimension::MolarMass, 1.0),
     u("lb/lb-mol", Dimension::MolarMass, 1.0),
+    // electric current and power (fan motors)
+    u("A", Dimension::Current, 1.0),
+    u("W", Dimension::Power, 1.0),
+    u("kW", Dimension::Power, 1000.0),
+    u("hp", Dimension::Power, HP_W),
+    // fan speed, held in rpm (as molar mass is held in g/mol)
+    u("rpm", Dimension::RotationalSpeed, 1.0),
 ];
 
 /// Other spellings of symbols in [`UNITS`], as the trade writes them: `(spelling, symbol)`.

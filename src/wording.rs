@@ -61,10 +61,20 @@ pub enum Kind {
     Mass,
     /// Dry gas meter volume.
     GasVolume,
+    /// Flow at normal conditions (0 °C, 101.325 kPa), wet.
+    NormalFlow,
+    /// Flow at normal conditions, dry.
+    NormalDryFlow,
+    /// Fan speed (held in rpm, the unit of nameplates and drives).
+    FanSpeed,
+    /// Motor current.
+    Current,
+    /// Fan shaft or motor power.
+    Power,
 }
 
 impl Kind {
-    pub const ALL: [Kind; 23] = [
+    pub const ALL: [Kind; 28] = [
         Kind::Length,
         Kind::Position,
         Kind::Diameters,
@@ -88,7 +98,36 @@ impl Kind {
         Kind::LiquidVolume,
         Kind::Mass,
         Kind::GasVolume,
+        Kind::NormalFlow,
+        Kind::NormalDryFlow,
+        Kind::FanSpeed,
+        Kind::Current,
+        Kind::Power,
     ];
+
+    /// A volume flow of any basis.
+    pub fn is_flow(self) -> bool {
+        matches!(
+            self,
+            Kind::ActualFlow
+                | Kind::StandardFlow
+                | Kind::DryStandardFlow
+                | Kind::NormalFlow
+                | Kind::NormalDryFlow
+        )
+    }
+
+    /// The flow kind that shows a flow on `basis`.
+    pub fn flow(basis: crate::units::FlowBasis) -> Kind {
+        use crate::units::FlowBasis;
+        match basis {
+            FlowBasis::Actual => Kind::ActualFlow,
+            FlowBasis::Standard => Kind::StandardFlow,
+            FlowBasis::DryStandard => Kind::DryStandardFlow,
+            FlowBasis::Normal => Kind::NormalFlow,
+            FlowBasis::NormalDry => Kind::NormalDryFlow,
+        }
+    }
 
     /// The dimension a value of this kind is parsed as (`None` for molar masses, which are
     /// plain numbers in input).
@@ -105,7 +144,14 @@ impl Kind {
             Kind::Temperature => Dimension::Temperature,
             Kind::TemperatureDifference => Dimension::TemperatureDifference,
             Kind::Velocity => Dimension::Velocity,
-            Kind::ActualFlow | Kind::StandardFlow | Kind::DryStandardFlow => Dimension::Flow,
+            Kind::ActualFlow
+            | Kind::StandardFlow
+            | Kind::DryStandardFlow
+            | Kind::NormalFlow
+            | Kind::NormalDryFlow => Dimension::Flow,
+            Kind::FanSpeed => Dimension::RotationalSpeed,
+            Kind::Current => Dimension::Current,
+            Kind::Power => Dimension::Power,
             Kind::MassFlow => Dimension::MassFlow,
             Kind::Density => Dimension::Density,
             Kind::MolarMass => return None,

@@ -231,7 +231,7 @@ fn calibrate_bad_file_is_located() {
         "error: `calibration.date` is not a date: `2026-13-11`
  --> tests/data/calibration/bad-file.toml:4:8 (`calibration.date`)
    = hint: write the date as YYYY-MM-DD, e.g. \"2026-05-11\"
-error: `calibration.velocity`: unknown unit `rpm` in `3000 rpm`
+error: `calibration.velocity`: expected a velocity, found `3000 rpm` (`rpm` is a unit of rotational speed)
  --> tests/data/calibration/bad-file.toml:6:12 (`calibration.velocity`)
    = hint: a velocity takes one of: m/s, ft/s, fpm, ft/min
 error: a standard pitot coefficient of 0.099 is not plausible

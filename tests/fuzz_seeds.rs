@@ -11,12 +11,14 @@ use std::path::{Path, PathBuf};
 
 type Target = fn(&[u8]);
 
-const TARGETS: [(&str, Target); 5] = [
+const TARGETS: [(&str, Target); 7] = [
     ("survey", targets::survey),
     ("readings", targets::readings),
     ("calibration", targets::calibration),
     ("calibration_readings", targets::calibration_readings),
     ("rata", targets::rata),
+    ("system", targets::system),
+    ("terminals", targets::terminals),
 ];
 
 fn seeds(target: &str) -> Vec<(PathBuf, Vec<u8>)> {

@@ -31,6 +31,7 @@ fn model(name: &str) -> ReportData {
         content_sha256: bundle.manifest.fingerprint(),
         signer_key_fingerprint: None,
         signer_name: None,
+        defaults: Default::default(),
     };
     report_data(&e, &a, &id)
 }

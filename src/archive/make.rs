@@ -35,6 +35,7 @@ pub fn renderer_id(kind: DocKind) -> String {
         DocKind::Report => REPORT_TEMPLATE,
         DocKind::Calibration => Certificate::TEMPLATE,
         DocKind::Rata => RataSummary::TEMPLATE,
+        DocKind::Submittal => crate::report::submittal::SUBMITTAL_TEMPLATE,
     };
     format!(
         "{} (built-in {} template {})",
@@ -60,6 +61,9 @@ pub struct ReportSettings<'a> {
     pub document_date: chrono::NaiveDate,
     /// Who signs: the name printed in the sign-off block and the public key.
     pub signer: Option<SignerEntry>,
+    /// The user configuration's firm, technician and certificate for a sign-off the inputs leave
+    /// empty (recorded in the manifest when any is given).
+    pub defaults: crate::config::SignoffDefaults,
 }
 
 /// A report laid out with a placeholder seal.
@@ -124,6 +128,7 @@ pub fn render_report(
     m.renderer = Some(renderer_id(DocKind::Report));
     m.document_date = Some(settings.document_date.to_string());
     m.signer = settings.signer.clone();
+    m.defaults = (!settings.defaults.is_empty()).then(|| settings.defaults.clone());
     let manifest = bundle.manifest.clone();
     let identity = Identity {
         report_id: manifest.report_id(),
@@ -134,6 +139,7 @@ pub fn render_report(
             .and_then(SignerEntry::key)
             .map(|k| k.fingerprint()),
         signer_name: settings.signer.as_ref().map(|s| s.name.clone()),
+        defaults: settings.defaults.clone(),
     };
     let data = report_data(e, a, &identity);
     let mut attachments = bundle.attachments().map_err(MakeError::Attachment)?;

@@ -39,6 +39,8 @@ pub enum DocKind {
     Calibration,
     /// A RATA summary (`annulus rata -o`).
     Rata,
+    /// A test-and-balance submittal (`annulus system -o`).
+    Submittal,
 }
 
 impl DocKind {
@@ -47,6 +49,7 @@ impl DocKind {
             DocKind::Report => "report",
             DocKind::Calibration => "calibration",
             DocKind::Rata => "rata",
+            DocKind::Submittal => "submittal",
         }
     }
 
@@ -56,6 +59,7 @@ impl DocKind {
             DocKind::Report => "flow test report",
             DocKind::Calibration => "calibration certificate",
             DocKind::Rata => "RATA summary",
+            DocKind::Submittal => "test and balance submittal",
         }
     }
 }
@@ -102,6 +106,10 @@ pub struct Manifest {
     /// The signer the sign-off block names, when the document is signed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub signer: Option<SignerEntry>,
+    /// The user configuration's firm, technician and certificate the sign-off block took where the
+    /// inputs name nobody; recorded so a re-render prints the same names.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub defaults: Option<crate::config::SignoffDefaults>,
     pub files: Vec<FileEntry>,
 }
 
@@ -118,6 +126,7 @@ impl Manifest {
             survey_date: survey_date.to_string(),
             document_date: None,
             signer: None,
+            defaults: None,
             files,
         }
     }

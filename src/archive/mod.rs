@@ -19,6 +19,7 @@ pub mod make;
 pub mod manifest;
 pub mod review;
 pub mod seal;
+pub mod submittal;
 pub mod trust;
 pub mod verify;
 

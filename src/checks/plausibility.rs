@@ -151,7 +151,7 @@ pub static PROBE_REACH: CheckDef = CheckDef {
     id: "probe-reach",
     group: Group::Plane,
     description: "the deepest probe mark against the probe's stated length",
-    source: "common practice (a probe must reach every mark; large stacks are traversed to the centre from ports round the stack)",
+    source: "common practice (a probe must reach every mark; a plane too wide for the probe is traversed to the centre from ports on opposite sides)",
     criterion: "deepest insertion (point + port) ≤ [probe] length",
     limits: &[],
     conventions: ALL,

@@ -3,6 +3,7 @@
 use super::layout::plane_for;
 use super::output::Ctx;
 use super::plane_args::{PlaneArgs, PlaneSetting};
+use crate::config::SignoffDefaults;
 use crate::diag::{Diagnostic, Error, Location};
 use crate::display::{Kind, UnitSystem};
 use crate::geometry::Shape;
@@ -36,13 +37,15 @@ pub struct InitArgs {
 
 /// The survey text for a plane: every section present, values to fill left empty, quantities
 /// and examples in the job's units (`--units` / `--si` choose others; `epa-metric` makes an EPA
-/// Method 2 survey reduce in the method's metric units).
+/// Method 2 survey reduce in the method's metric units). The sign-off is filled from `signoff`
+/// (the user configuration's technician, certificate and firm), else left empty.
 pub fn survey_text(
     s: &PlaneSetting,
     plane: &Plane,
     runs: usize,
     title: &str,
     date: &str,
+    signoff: &SignoffDefaults,
 ) -> String {
     let t = &s.table;
     let len = |m: f64| t.get(Kind::Position).input(m);
@@ -120,7 +123,15 @@ static = ""                      # duct static (gauge), e.g. "{static_p}"
     } else {
         t += "rh = \"\"                         # or wet_bulb / dew_point; remove for dry air\n";
     }
-    t += "\n[signoff]\ntested_by = \"\"\ncertificate = \"\"\nreviewed_by = \"\"\n";
+    // a TOML basic string, escaped as the toml crate writes it
+    let quoted =
+        |v: &Option<String>| toml::Value::String(v.clone().unwrap_or_default()).to_string();
+    t += &format!(
+        "\n[signoff]\ntested_by = {}\ncertificate = {}\nreviewed_by = \"\"\norganisation = {}\n",
+        quoted(&signoff.technician),
+        quoted(&signoff.certificate),
+        quoted(&signoff.organisation),
+    );
     for i in 1..=runs {
         t += &format!(
             "\n[[run]]\nid = \"{i}\"\nreadings = \"run{i}.csv\"\nstarted = \"\"                    # YYYY-MM-DDTHH:MM\n"
@@ -218,7 +229,13 @@ pub fn run(args: InitArgs, ctx: &Ctx) -> Result<i32, Error> {
         },
         None => super::today().format("%Y-%m-%d").to_string(),
     };
-    let setting = args.plane.settle(None)?;
+    // the user configuration: its convention when none is given, its names in the sign-off
+    let config = crate::input::config_file::load_config()?.unwrap_or_default();
+    let mut plane_args = args.plane;
+    if plane_args.convention.is_none() {
+        plane_args.convention = config.convention;
+    }
+    let setting = plane_args.settle(None)?;
     let plane = plane_for(&setting)?;
     let title = args.title.clone().unwrap_or_else(|| "New traverse".into());
     let survey_path = args.dir.join("survey.toml");
@@ -232,7 +249,15 @@ pub fn run(args: InitArgs, ctx: &Ctx) -> Result<i32, Error> {
     let sheet = readings_text(&setting, &plane).into_bytes();
     let mut files = vec![(
         survey_path.clone(),
-        survey_text(&setting, &plane, args.runs, &title, &date).into_bytes(),
+        survey_text(
+            &setting,
+            &plane,
+            args.runs,
+            &title,
+            &date,
+            &config.signoff_defaults(),
+        )
+        .into_bytes(),
     )];
     files.extend(sheets.iter().map(|p| (p.clone(), sheet.clone())));
     // all files or none: a failed or interrupted init leaves nothing a re-run would trip over

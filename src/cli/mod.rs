@@ -19,6 +19,7 @@ mod plane_args;
 mod rata;
 mod report;
 mod review;
+mod system;
 mod trust;
 mod verify;
 
@@ -76,6 +77,11 @@ pub enum Command {
         after_help = "Examples:\n  annulus report sample-data/stack/survey.toml -o boiler2.pdf\n  annulus report sample-data/stack/survey.toml -o boiler2.pdf --sign me.key"
     )]
     Report(report::ReportArgs),
+    /// A test-and-balance submittal: an air system's ducts, branches, outside air, fan and terminals against design; exit 3 if any is outside tolerance.
+    #[command(
+        after_help = "Examples:\n  annulus system sample-data/building/ahu-2.toml\n  annulus system sample-data/building/ahu-2.toml --format json\n  annulus system sample-data/building/ahu-2.toml -o ahu-2-submittal.pdf"
+    )]
+    System(system::SystemArgs),
     /// Re-derive a report's results from its embedded data and check its hashes and signature.
     #[command(after_help = "Example:\n  annulus verify boiler2.pdf --key me.pub")]
     Verify(verify::VerifyArgs),
@@ -139,6 +145,7 @@ where
         Command::Compute(a) => compute::run(a, &ctx),
         Command::Check(a) => check::run(a, &ctx),
         Command::Report(a) => report::run(a, &ctx),
+        Command::System(a) => system::run(a, &ctx),
         Command::Verify(a) => verify::run(a, &ctx),
         Command::Review(a) => review::run(a, &ctx),
         Command::Keygen(a) => keygen::run(a, &ctx),

@@ -54,7 +54,7 @@ pub(crate) fn document_date(survey_date: chrono::NaiveDate) -> Result<chrono::Na
 
 /// The key `--sign` names and its file: the path given, or the configuration's `signing_key` for
 /// a bare `--sign`.
-fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
+pub(crate) fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
     if let Some(p) = arg {
         return Ok((read_key(p)?, p.clone()));
     }
@@ -66,6 +66,23 @@ fn signing_key(arg: &Option<PathBuf>) -> Result<(SecretKey, PathBuf), Error> {
                 .hint("give the key file (`--sign dana-ferrow.key`), or set `signing_key` in the configuration file (see README, Configuration)"),
         )),
     }
+}
+
+/// Who signs: the key's name, else the key file's stem for keys made before keys had names.
+pub(crate) fn signer_entry(k: &SecretKey, path: &std::path::Path) -> SignerEntry {
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .filter(|s| !s.is_empty())
+        .unwrap_or_else(|| "signing key".into());
+    SignerEntry::new(k.name().unwrap_or(&stem), &k.public())
+}
+
+/// The configuration's firm, technician and certificate (none without a configuration file).
+pub(crate) fn signoff_defaults() -> Result<crate::config::SignoffDefaults, Error> {
+    Ok(crate::input::config_file::load_config()?
+        .map(|c| c.signoff_defaults())
+        .unwrap_or_default())
 }
 
 pub(crate) fn read_key(path: &std::path::Path) -> Result<SecretKey, Error> {
@@ -108,22 +125,12 @@ pub fn run(args: ReportArgs, ctx: &Ctx) -> Result<i32, Error> {
     inputs.extend(key_and_path.iter().map(|(_, p)| p.clone()));
     let out = super::files::destination(&args.output, &args.survey, &inputs)?;
     let (e, a) = evaluate_and_assess(loaded)?;
-    // the key's name, else the key file's stem for keys made before keys had names
-    let signer = match &key_and_path {
-        Some((k, path)) => {
-            let stem = path
-                .file_stem()
-                .map(|s| s.to_string_lossy().into_owned())
-                .filter(|s| !s.is_empty())
-                .unwrap_or_else(|| "signing key".into());
-            Some(SignerEntry::new(k.name().unwrap_or(&stem), &k.public()))
-        }
-        None => None,
-    };
+    let signer = key_and_path.as_ref().map(|(k, path)| signer_entry(k, path));
     let settings = ReportSettings {
         template: template.as_ref(),
         document_date: document_date(e.loaded.survey.date)?,
         signer: signer.clone(),
+        defaults: signoff_defaults()?,
     };
     let made = make_report(&Engine::new(), &e, &a, &settings, key).map_err(|err| {
         match (&err, &template) {

@@ -16,6 +16,8 @@ pub mod header;
 pub mod rata_file;
 pub mod readings;
 pub mod survey;
+pub mod system_file;
+pub mod terminals_file;
 pub mod text;
 pub mod toml_doc;
 
@@ -102,6 +104,10 @@ pub enum FileKind {
     Survey,
     /// A run's Method 2H wall-effects readings CSV, named by `[[run]] wall_readings`.
     WallReadings,
+    /// A duct's survey, named by a system file's `[[duct]] survey`.
+    SystemSurvey,
+    /// A terminals CSV, named by a system file's `[terminals] readings`.
+    Terminals,
 }
 
 impl FileKind {
@@ -111,8 +117,9 @@ impl FileKind {
             FileKind::Readings => "readings file",
             FileKind::Calibration => "calibration file",
             FileKind::CalibrationReadings => "calibration readings file",
-            FileKind::Survey => "survey",
+            FileKind::Survey | FileKind::SystemSurvey => "survey",
             FileKind::WallReadings => "wall-effects readings file",
+            FileKind::Terminals => "terminals file",
         }
     }
 
@@ -124,6 +131,8 @@ impl FileKind {
             FileKind::CalibrationReadings => "the readings path is relative to the calibration file; its header is `leg,standard_dp[unit],s_type_dp[unit]`",
             FileKind::Survey => "survey paths in a RATA file are relative to the RATA file",
             FileKind::WallReadings => "wall-effects readings paths are relative to the survey file; the header is `line,point,distance[in],dp[inH2O]`",
+            FileKind::SystemSurvey => "survey paths in a system file are relative to the system file",
+            FileKind::Terminals => "the terminals path is relative to the system file; its header is `tag,branch,design[unit],measured[unit]`",
         }
     }
 
@@ -133,8 +142,9 @@ impl FileKind {
             FileKind::Readings => limits::FileKind::Readings,
             FileKind::Calibration => limits::FileKind::Calibration,
             FileKind::CalibrationReadings => limits::FileKind::CalibrationReadings,
-            FileKind::Survey => limits::FileKind::Survey,
+            FileKind::Survey | FileKind::SystemSurvey => limits::FileKind::Survey,
             FileKind::WallReadings => limits::FileKind::Readings,
+            FileKind::Terminals => limits::FileKind::Terminals,
         }
     }
 }

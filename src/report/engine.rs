@@ -210,8 +210,9 @@ impl From<AttachmentError> for RenderError {
 }
 
 /// Charts handed to the report template.
+/// The charts of one report (or one traverse of a submittal), as SVG text.
 #[derive(Serialize)]
-struct Charts {
+pub(crate) struct Charts {
     plane: String,
     runs: Vec<RunCharts>,
 }
@@ -220,6 +221,23 @@ struct Charts {
 struct RunCharts {
     map: String,
     profiles: String,
+}
+
+/// The plane drawing and each run's velocity map and profiles of a report model; the maps share
+/// one colour scale.
+pub(crate) fn report_charts(data: &ReportData) -> Charts {
+    let scale = ColourScale::spanning(data.runs.iter().map(|r| r.field.as_slice()));
+    Charts {
+        plane: plane_svg(&data.plane, &data.units),
+        runs: data
+            .runs
+            .iter()
+            .map(|run| RunCharts {
+                map: velocity_map_svg(&data.plane, &run.field, &data.units, scale),
+                profiles: profiles_svg(&data.plane, &run.field, &data.units),
+            })
+            .collect(),
+    }
 }
 
 /// Document metadata and the attachment list the entry point reads from `/meta.json`.
@@ -480,18 +498,7 @@ impl Engine {
     ) -> Result<Rendered, RenderError> {
         data.validate()?;
         check_unique(&options.attachments)?;
-        let scale = ColourScale::spanning(data.runs.iter().map(|r| r.field.as_slice()));
-        let charts = Charts {
-            plane: plane_svg(&data.plane, &data.units),
-            runs: data
-                .runs
-                .iter()
-                .map(|run| RunCharts {
-                    map: velocity_map_svg(&data.plane, &run.field, &data.units, scale),
-                    profiles: profiles_svg(&data.plane, &run.field, &data.units),
-                })
-                .collect(),
-        };
+        let charts = report_charts(data);
         let h = &data.header;
         let mut author = vec![data.signoff.tested_by.as_str()];
         if !data.signoff.organisation.is_empty() {

@@ -24,6 +24,7 @@
 //!     content_sha256: "0".repeat(64),
 //!     signer_key_fingerprint: None,
 //!     signer_name: None,
+//!     defaults: Default::default(),
 //! };
 //! let options = RenderOptions {
 //!     date: e.loaded.survey.date,
@@ -43,6 +44,7 @@ pub mod documents;
 pub mod engine;
 pub mod model;
 pub mod rata;
+pub mod submittal;
 
 pub use crate::write::{write_atomic, WriteError};
 pub use attach::{embedded_files, Attachment, AttachmentError, EmbeddedFile, ExtractError};

@@ -63,6 +63,7 @@ pub(crate) fn identity() -> Identity {
         content_sha256: "0123456789abcdef".repeat(4),
         signer_key_fingerprint: None,
         signer_name: None,
+        defaults: Default::default(),
     }
 }
 

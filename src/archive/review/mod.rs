@@ -56,6 +56,8 @@ pub enum Kind {
     Calibration,
     /// A RATA summary PDF.
     Rata,
+    /// A test-and-balance submittal PDF (`annulus system -o`).
+    Submittal,
     /// A file that could not be told apart (unreadable, not text, not TOML, not a PDF of ours).
     File,
 }
@@ -67,6 +69,7 @@ impl Kind {
             Kind::Report => "report",
             Kind::Calibration => "calibration",
             Kind::Rata => "rata",
+            Kind::Submittal => "submittal",
             Kind::File => "file",
         }
     }
@@ -676,6 +679,7 @@ pub fn review_report(
     let kind = match v.kind {
         Some(super::manifest::DocKind::Calibration) => Kind::Calibration,
         Some(super::manifest::DocKind::Rata) => Kind::Rata,
+        Some(super::manifest::DocKind::Submittal) => Kind::Submittal,
         _ => Kind::Report,
     };
     let mut notes = Vec::new();
@@ -711,6 +715,23 @@ pub fn review_report(
             notes.push(Note::Warnings {
                 ids: vec!["signer-not-in-a-trust-list".into()],
             });
+        }
+        // a submittal's verdict, re-derived from its embedded inputs, as a report's checks are
+        if kind == Kind::Submittal {
+            match v.checks_verdict {
+                Some(crate::assess::Verdict::Fail) => notes.push(Note::FailedCheck {
+                    id: "system-tolerance".into(),
+                    run: None,
+                    subject: None,
+                    message: "a duct, a relation, the fan or a terminal is outside its tolerance \
+                              (see the submittal's summary page)"
+                        .into(),
+                }),
+                Some(crate::assess::Verdict::Warn) => notes.push(Note::Warnings {
+                    ids: vec!["system-warning".into()],
+                }),
+                _ => {}
+            }
         }
     }
     let mut figure = None;

@@ -27,6 +27,22 @@ pub struct Identity {
 }
 
 impl Identity {
+    /// A submittal's: the system file's title, site and date, and who tested the system.
+    pub fn of_system(e: &crate::submittal::SystemEvaluation) -> Identity {
+        let spec = &e.loaded.spec;
+        Identity {
+            title: spec.title.clone(),
+            site: spec.site.clone(),
+            date: spec.date.to_string(),
+            tested_by: Some(
+                crate::report::submittal::identity_of(e, &Default::default())
+                    .1
+                    .tested_by,
+            )
+            .filter(|t| !t.is_empty()),
+        }
+    }
+
     pub fn of_survey(s: &Survey) -> Identity {
         Identity {
             title: s.title.clone(),
@@ -143,7 +159,9 @@ pub fn recompute(
     let role = match kind {
         DocKind::Calibration => "calibration",
         DocKind::Rata => "rata",
-        DocKind::Report => return impossible("not a certificate or RATA summary".into()),
+        DocKind::Report | DocKind::Submittal => {
+            return impossible("not a certificate or RATA summary".into())
+        }
     };
     let Some(main) = manifest.files.iter().find(|e| e.role == role) else {
         return impossible(format!("the manifest lists no {role} file"));

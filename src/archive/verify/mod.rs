@@ -541,10 +541,7 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
         });
     }
     let kind = manifest.doc_kind();
-    let (recomputation, recomputed) = match kind {
-        DocKind::Report => recompute::recompute(&manifest, &by_name),
-        other => (documents::recompute(other, &manifest, &by_name), None),
-    };
+    let (recomputation, rederived) = Rederived::recompute(kind, &manifest, &by_name);
 
     // re-render where the seal alone cannot settle the question
     let settled = sealed_parts.is_some()
@@ -563,13 +560,7 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
                 manifest.program
             ),
         },
-        _ => rerender::rerender(
-            &manifest,
-            &by_name,
-            recomputed.as_deref(),
-            &actual,
-            rerender::RERENDER_TIME_LIMIT,
-        ),
+        _ => rederived.rerender(kind, &manifest, &by_name, &actual),
     };
     if let Rerendering::Differs { changes: c } = &rerendering {
         for what in c {
@@ -593,9 +584,7 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
     } else {
         PagesBasis::UnsignedSeal
     };
-    let identity = recomputed
-        .as_ref()
-        .map(|r| documents::Identity::of_survey(&r.evaluation.loaded.survey));
+    let identity = rederived.identity();
     let inputs = manifest
         .files
         .iter()
@@ -618,9 +607,9 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
         files,
         recomputation,
         rerendering,
-        checks_verdict: recomputed.as_ref().map(|r| r.assessment.verdict),
+        checks_verdict: rederived.verdict(),
         verified: false,
-        recomputed,
+        recomputed: rederived.report,
         identity,
         inputs,
     };
@@ -629,6 +618,75 @@ pub fn verify(pdf: &[u8], options: &VerifyOptions<'_>) -> Result<Verification, N
         && v.recomputation.holds()
         && v.signature.accepted;
     Ok(v)
+}
+
+/// What a document's embedded inputs re-derive: a report's evaluation and assessment, or a
+/// submittal's evaluated system (certificates and RATA summaries are compared as documents).
+struct Rederived {
+    report: Option<Box<Recomputed>>,
+    system: Option<Box<crate::submittal::SystemEvaluation>>,
+}
+
+impl Rederived {
+    /// Recomputes a document of `kind` from its embedded inputs.
+    fn recompute(
+        kind: DocKind,
+        manifest: &Manifest,
+        by_name: &HashMap<&str, &[u8]>,
+    ) -> (Recomputation, Rederived) {
+        let (mut report, mut system) = (None, None);
+        let recomputation = match kind {
+            DocKind::Report => {
+                let (r, e) = recompute::recompute(manifest, by_name);
+                report = e;
+                r
+            }
+            DocKind::Submittal => {
+                let (r, e) = crate::archive::submittal::recompute(manifest, by_name);
+                system = e;
+                r
+            }
+            other => documents::recompute(other, manifest, by_name),
+        };
+        (recomputation, Rederived { report, system })
+    }
+
+    /// Lays the document out again from what was re-derived and compares it with `actual`.
+    fn rerender(
+        &self,
+        kind: DocKind,
+        manifest: &Manifest,
+        by_name: &HashMap<&str, &[u8]>,
+        actual: &DocumentParts,
+    ) -> Rerendering {
+        let limit = rerender::RERENDER_TIME_LIMIT;
+        match kind {
+            DocKind::Submittal => {
+                crate::archive::submittal::rerender(manifest, self.system.as_deref(), actual, limit)
+            }
+            _ => rerender::rerender(manifest, by_name, self.report.as_deref(), actual, limit),
+        }
+    }
+
+    /// Title, site, date and tester, from the re-derived inputs.
+    fn identity(&self) -> Option<documents::Identity> {
+        self.report
+            .as_ref()
+            .map(|r| documents::Identity::of_survey(&r.evaluation.loaded.survey))
+            .or_else(|| {
+                self.system
+                    .as_ref()
+                    .map(|e| documents::Identity::of_system(e))
+            })
+    }
+
+    /// The checks' verdict (a report's) or the system's (a submittal's).
+    fn verdict(&self) -> Option<Verdict> {
+        self.report
+            .as_ref()
+            .map(|r| r.assessment.verdict)
+            .or_else(|| self.system.as_ref().map(|e| e.verdict()))
+    }
 }
 
 #[cfg(test)]

@@ -137,11 +137,13 @@ pub fn rerender(
     // it runs on its own thread and is abandoned after `time_limit`.
     let (tx, rx) = std::sync::mpsc::channel();
     let (r, signer) = (r.clone(), manifest.signer.clone());
+    let defaults = manifest.defaults.clone().unwrap_or_default();
     std::thread::spawn(move || {
         let settings = ReportSettings {
             template: template.as_ref(),
             document_date: date,
             signer,
+            defaults,
         };
         let _ = tx.send(render_report(
             engine(),

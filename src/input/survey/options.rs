@@ -112,7 +112,7 @@ fn wall_factor(f: &Field) -> Option<WallFactor> {
     }
 }
 
-/// Reads `[signoff]`.
+/// Reads `[signoff]` (a survey's, or a system file's).
 pub fn read_signoff(root: &Table) -> Signoff {
     let Some(t) = root.opt_table("signoff") else {
         return Signoff::default();
@@ -121,5 +121,6 @@ pub fn read_signoff(root: &Table) -> Signoff {
         tested_by: t.opt_text("tested_by"),
         certificate: t.opt_text("certificate"),
         reviewed_by: t.opt_text("reviewed_by"),
+        organisation: t.opt_text("organisation"),
     }
 }

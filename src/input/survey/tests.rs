@@ -434,3 +434,14 @@ fn run_and_survey_keys_are_checked() {
     assert_eq!(s.layout.reach, crate::layout::Reach::Radius);
     assert!((s.probe.length_m.unwrap() - 8.0 * 0.3048).abs() < 1e-12);
 }
+
+#[test]
+fn the_signoff_names_the_firm() {
+    let s = parse_survey(
+        "s.toml",
+        &format!("{GOOD}\n[signoff]\ntested_by = \"A. Tester\"\norganisation = \"Test firm\"\n"),
+    )
+    .expect("valid");
+    assert_eq!(s.signoff.organisation.as_deref(), Some("Test firm"));
+    assert_eq!(s.signoff.tested_by.as_deref(), Some("A. Tester"));
+}

@@ -60,6 +60,9 @@ pub struct Identity {
     pub signer_key_fingerprint: Option<String>,
     /// The signing key's name (`annulus keygen NAME`), printed in the sign-off block.
     pub signer_name: Option<String>,
+    /// The user configuration's firm, technician and certificate, for a sign-off the survey
+    /// leaves empty.
+    pub defaults: crate::config::SignoffDefaults,
 }
 
 /// Builds the report model.
@@ -82,8 +85,13 @@ pub fn report_data(e: &Evaluation, a: &Assessment, id: &Identity) -> ReportData 
         notes: notes::notes(&job),
         deviations: notes::deviations(&job),
         safety: safety::cautions(job.trade),
-        signoff: signoff::section(&job),
+        signoff: signoff::section(&job, id),
     }
+}
+
+/// The HVAC safety cautions, for documents about air systems (the submittal).
+pub(crate) fn hvac_cautions() -> Vec<String> {
+    safety::cautions(Trade::Hvac)
 }
 
 /// One report being built: the results, the job's display table and its trade.
