@@ -289,6 +289,13 @@ fn runs_complete(rule: &Rule, s: &Subject) -> Vec<Finding> {
             &[],
         )
     };
+    // the definition's source names both trades; a page quotes only its own
+    let mut f = f;
+    f.source = if s.convention.id.is_hvac() {
+        "the survey's runs_required (default 1 run for an HVAC traverse: common practice)".into()
+    } else {
+        "the survey's runs_required (default 3 runs for a stack test, as 40 CFR 60.8(f) asks of performance tests)".into()
+    };
     vec![f]
 }
 
