@@ -12,12 +12,20 @@ fn main() {
     std::process::exit(annulus::cli::run(std::env::args_os()));
 }
 
-/// Whether the command line's subcommand (its first word that is not an option) is `name`.
+/// Whether the command line's subcommand (its first word that is neither an option nor the value
+/// of `--color`, the one global option that takes a value) is `name`.
 fn is_command(name: &str) -> bool {
-    std::env::args_os()
-        .skip(1)
-        .find(|a| !a.to_string_lossy().starts_with('-'))
-        .is_some_and(|a| a == name)
+    let mut after_color = false;
+    for a in std::env::args_os().skip(1) {
+        let text = a.to_string_lossy();
+        if std::mem::replace(&mut after_color, text == "--color") {
+            continue;
+        }
+        if !text.starts_with('-') {
+            return a == name;
+        }
+    }
+    false
 }
 
 /// Transparent huge pages off for this process, except for `verify`. mimalloc reserves its arenas
