@@ -182,17 +182,26 @@ def main():
         grid_survey(os.path.join(work, "stack"), os.path.join(work, "grid"), 40)
 
         bins = [("new", new)] + ([("old", base)] if base else [])
+        notes = []
+        unable = set()  # (case, tag) a binary cannot run on today's sample data
         # signed reports to verify, one set per binary (each verifies its own)
         for tag, binary in bins:
             d = os.path.join(work, tag)
             os.makedirs(d)
+            if not (want("verify") or want("verify-1600")):
+                continue
             subprocess.run([binary, "--quiet", "keygen", "key"], cwd=d, check=True,
                            stdout=subprocess.DEVNULL)
             for name, folder in (("sample", "stack"), ("grid", "grid")):
-                subprocess.run([binary, "report", "survey.toml", "-o",
-                                os.path.join(d, f"{name}.pdf"), "--sign", os.path.join(d, "key.key")],
-                               cwd=os.path.join(work, folder), check=True,
-                               stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+                made = subprocess.run([binary, "report", "survey.toml", "-o",
+                                       os.path.join(d, f"{name}.pdf"), "--sign",
+                                       os.path.join(d, "key.key")],
+                                      cwd=os.path.join(work, folder), stdout=subprocess.DEVNULL,
+                                      stderr=subprocess.DEVNULL)
+                if made.returncode != 0:
+                    case = "verify" if name == "sample" else "verify-1600"
+                    unable.add((case, tag))
+                    notes.append(f"{case} ({tag}): this binary cannot report today's sample survey")
 
         def annulus_cases(tag, binary):
             d = os.path.join(work, tag)
@@ -216,9 +225,8 @@ def main():
         cases = []  # (name, tag, cmd, cwd, surveys)
         for tag, binary in bins:
             for name, cmd, cwd, n in annulus_cases(tag, binary):
-                if want(name):
+                if want(name) and (name, tag) not in unable:
                     cases.append((name, tag, cmd, cwd, n))
-        notes = []
         for variant, modules in (("stdlib", []), ("numpy", ["numpy"]), ("pandas", ["pandas"])):
             name = f"py-{variant}"
             if not want(name):
