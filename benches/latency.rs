@@ -8,6 +8,9 @@
 //! cargo bench --bench latency
 //! ```
 //!
+//! The `report` group also renders the sample stack as a 40 × 40 grid (1 600 points per run) and
+//! times the presentation model alone (`report/model/*`), so the Typst share is the difference.
+//!
 //! Criterion prints the time per survey or per report. The `stage/*` figures split the compute
 //! path (the per-survey work of `annulus review`) into its stages, to show where time goes.
 
@@ -22,45 +25,21 @@ use annulus::assess::assess;
 use annulus::input::assess_config::load_assess_config;
 use annulus::input::load_with;
 use annulus::pipeline::{evaluate, evaluate_and_assess};
+use annulus::report::build::{report_data, Identity};
 use annulus::report::Engine;
 use annulus::results::ResultsDoc;
 use criterion::{criterion_group, criterion_main, Criterion};
-use std::collections::HashMap;
 use std::hint::black_box;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::time::Duration;
 
-const SURVEY: &str = include_str!("../sample-data/stack/survey.toml");
-const RUN1: &str = include_str!("../sample-data/stack/run1.csv");
-const RUN2: &str = include_str!("../sample-data/stack/run2.csv");
-const RUN3: &str = include_str!("../sample-data/stack/run3.csv");
-const CALIBRATION: &str = include_str!("../sample-data/calibration/ts-0417.toml");
-const CALIBRATION_READINGS: &str = include_str!("../sample-data/calibration/ts-0417.csv");
-
-fn files() -> HashMap<PathBuf, Vec<u8>> {
-    [
-        ("stack/survey.toml", SURVEY),
-        ("stack/run1.csv", RUN1),
-        ("stack/run2.csv", RUN2),
-        ("stack/run3.csv", RUN3),
-        // the survey names `../calibration/ts-0417.toml`; paths are joined, not normalised
-        ("stack/../calibration/ts-0417.toml", CALIBRATION),
-        ("stack/../calibration/ts-0417.csv", CALIBRATION_READINGS),
-    ]
-    .into_iter()
-    .map(|(p, t)| (PathBuf::from(p), t.as_bytes().to_vec()))
-    .collect()
-}
+#[path = "common/stack.rs"]
+mod stack;
 
 fn bench_latency(c: &mut Criterion) {
-    let files = files();
-    let source = |p: &Path| {
-        files
-            .get(p)
-            .cloned()
-            .ok_or_else(|| std::io::Error::from(std::io::ErrorKind::NotFound))
-    };
-    let survey = Path::new("stack/survey.toml");
+    let files = stack::files(false);
+    let source = |p: &Path| files.read(p);
+    let survey = Path::new(stack::SURVEY_PATH);
 
     c.bench_function("compute/sample-stack", |b| {
         b.iter(|| {
@@ -103,20 +82,42 @@ fn bench_latency(c: &mut Criterion) {
     g.sample_size(10);
     g.warm_up_time(Duration::from_secs(2));
     g.measurement_time(Duration::from_secs(20));
-    g.bench_function("render-signed/sample-stack", |b| {
-        b.iter(|| {
-            let loaded = load_with(survey, &source).expect("sample survey loads");
-            let (e, a) = evaluate_and_assess(loaded).expect("sample survey evaluates");
-            // bundle and manifest, Typst layout and PDF export, then the seal and its signature
-            let settings = ReportSettings {
-                template: None,
-                document_date: e.loaded.survey.date,
-                signer: Some(SignerEntry::new("bench", &key.public())),
-                defaults: Default::default(),
-            };
-            black_box(make_report(&engine, &e, &a, &settings, Some(&key)).expect("renders"))
-        })
-    });
+    for grid in [false, true] {
+        let files = stack::files(grid);
+        let source = |p: &Path| files.read(p);
+        let name = if grid {
+            format!("grid-{}-points-per-run", stack::GRID * stack::GRID)
+        } else {
+            "sample-stack".to_string()
+        };
+        let loaded = load_with(survey, &source).expect("survey loads");
+        let (e, a) = evaluate_and_assess(loaded).expect("survey evaluates");
+        let identity = Identity {
+            report_id: "AN-BENCH".into(),
+            content_sha256: "0".repeat(64),
+            signer_key_fingerprint: None,
+            signer_name: None,
+            defaults: Default::default(),
+        };
+        // the presentation model alone (every section, every readings row formatted)
+        g.bench_function(format!("model/{name}"), |b| {
+            b.iter(|| black_box(report_data(&e, &a, &identity)))
+        });
+        g.bench_function(format!("render-signed/{name}"), |b| {
+            b.iter(|| {
+                let loaded = load_with(survey, &source).expect("survey loads");
+                let (e, a) = evaluate_and_assess(loaded).expect("survey evaluates");
+                // bundle and manifest, Typst layout and PDF export, then the seal and its signature
+                let settings = ReportSettings {
+                    template: None,
+                    document_date: e.loaded.survey.date,
+                    signer: Some(SignerEntry::new("bench", &key.public())),
+                    defaults: Default::default(),
+                };
+                black_box(make_report(&engine, &e, &a, &settings, Some(&key)).expect("renders"))
+            })
+        });
+    }
     g.finish();
 }
 

@@ -6,7 +6,8 @@
 //! recomputed from the embedded survey and readings. Throughput is in bytes, so equal MB/s at both
 //! sizes means linear.
 //!
-//! Also measured, for the record: the stages alone (reading the structure and digests; the
+//! Also measured: `verify_bytes` (no trust list, no re-render: the fuzz target's entry point), and,
+//! for the record, the stages alone (reading the structure and digests; the
 //! embedded files), the cost of a re-render (what `--rerender always`, or an unsigned report,
 //! adds), and lopdf 0.36's `Document::load_mem`, the reader `verify` used before, on the sample
 //! (on the 10 MB file it takes over 10 s a load).
@@ -25,9 +26,9 @@ use annulus::archive::make::{make_report, ReportSettings};
 use annulus::archive::manifest::SignerEntry;
 use annulus::archive::seal::SEAL_NAME;
 use annulus::archive::trust::TrustList;
-use annulus::archive::verify::{verify, RerenderPolicy, TrustPolicy, VerifyOptions};
+use annulus::archive::verify::{verify, verify_bytes, RerenderPolicy, TrustPolicy, VerifyOptions};
 use annulus::archive::SecretKey;
-use annulus::input::{load_with, MemoryFiles};
+use annulus::input::load_with;
 use annulus::pdf::{files, parts::document_parts, Limits, Pdf};
 use annulus::pipeline::evaluate_and_assess;
 use annulus::report::Engine;
@@ -36,64 +37,12 @@ use std::hint::black_box;
 use std::path::Path;
 use std::time::Duration;
 
-const SURVEY: &str = include_str!("../sample-data/stack/survey.toml");
-const RUNS: [&str; 3] = [
-    include_str!("../sample-data/stack/run1.csv"),
-    include_str!("../sample-data/stack/run2.csv"),
-    include_str!("../sample-data/stack/run3.csv"),
-];
-const CALIBRATION: &str = include_str!("../sample-data/calibration/ts-0417.toml");
-const CALIBRATION_READINGS: &str = include_str!("../sample-data/calibration/ts-0417.csv");
-
-/// The sample survey, or a 40 × 40 rectangular grid of the same stack (invented readings).
-fn files(big: bool) -> MemoryFiles {
-    let mut f = MemoryFiles::new();
-    f.insert("stack/../calibration/ts-0417.toml", CALIBRATION);
-    f.insert("stack/../calibration/ts-0417.csv", CALIBRATION_READINGS);
-    if !big {
-        f.insert("stack/survey.toml", SURVEY);
-        for (i, r) in RUNS.iter().enumerate() {
-            f.insert(format!("stack/run{}.csv", i + 1), *r);
-        }
-        return f;
-    }
-    const N: usize = 40;
-    let survey = SURVEY
-        .replace(
-            "shape = \"round\"\ndiameter = \"96 in\"",
-            "shape = \"rectangular\"\nwidth = \"200 in\"\nheight = \"200 in\"",
-        )
-        .replace("lines = 2", &format!("lines = {N}"))
-        .replace("points_per_line = 12", &format!("points_per_line = {N}"));
-    f.insert("stack/survey.toml", survey);
-    let line = |i: usize| {
-        if i < 26 {
-            ((b'A' + i as u8) as char).to_string()
-        } else {
-            format!("A{}", (b'A' + (i - 26) as u8) as char)
-        }
-    };
-    let mut x: u64 = 0x2545_f491_4f6c_dd1d;
-    for r in 1..=3 {
-        let mut csv = String::from("line,point,dp[inH2O],temperature[F],yaw[deg]\n");
-        for l in 0..N {
-            for p in 1..=N {
-                x ^= x << 13;
-                x ^= x >> 7;
-                x ^= x << 17;
-                let shape = (p as f64 / N as f64 * std::f64::consts::PI).sin();
-                let dp = 0.4 + 0.3 * shape + (x % 200) as f64 / 10_000.0;
-                csv += &format!("{},{p},{dp:.3},{},{}\n", line(l), 300 + x % 3, x % 7);
-            }
-        }
-        f.insert(format!("stack/run{r}.csv"), csv);
-    }
-    f
-}
+#[path = "common/stack.rs"]
+mod stack;
 
 fn report(engine: &Engine, big: bool, key: &SecretKey) -> Vec<u8> {
-    let f = files(big);
-    let loaded = load_with(Path::new("stack/survey.toml"), &|p| f.read(p)).expect("loads");
+    let f = stack::files(big);
+    let loaded = load_with(Path::new(stack::SURVEY_PATH), &|p| f.read(p)).expect("loads");
     let (e, a) = evaluate_and_assess(loaded).expect("evaluates");
     let settings = ReportSettings {
         template: None,
@@ -137,6 +86,10 @@ fn bench_verify(c: &mut Criterion) {
         g.throughput(Throughput::Bytes(pdf.len() as u64));
         g.bench_function(format!("signed-trusted/{name}"), |b| {
             b.iter(|| black_box(verify(pdf, &options(RerenderPolicy::Auto)).expect("a report")))
+        });
+        // what the `verify_pdf` fuzz target runs: no trust list, no re-render
+        g.bench_function(format!("verify-bytes-untrusted/{name}"), |b| {
+            b.iter(|| black_box(verify_bytes(pdf).expect("a report")))
         });
         g.bench_function(format!("stage-structure-and-digests/{name}"), |b| {
             b.iter(|| {
