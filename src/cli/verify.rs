@@ -135,8 +135,13 @@ fn signature_word(v: &Verification) -> &'static str {
 
 fn recompute_words(r: &Recomputation) -> String {
     match r {
-        Recomputation::Matches { compared } => format!(
+        Recomputation::Matches { compared, reworded } if reworded.is_empty() => format!(
             "all {compared} values of the embedded results reproduced from the embedded inputs"
+        ),
+        Recomputation::Matches { compared, reworded } => format!(
+            "all {compared} values of the embedded results reproduced from the embedded inputs; {} descriptive text{} (a check's source or limit, a message) worded differently by this version, listed in --format json",
+            reworded.len(),
+            if reworded.len() == 1 { "" } else { "s" }
         ),
         Recomputation::Differs {
             compared,

@@ -235,7 +235,11 @@ pub fn recompute(
         }
     };
     match recomputed {
-        Ok(v) => compare_values(&embedded, &v),
+        Ok(v) => compare_values(
+            &embedded,
+            &v,
+            manifest.program != crate::archive::make::program(),
+        ),
         Err(e) => impossible(format!("the recomputed results cannot be written: {e}")),
     }
 }

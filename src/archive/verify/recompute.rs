@@ -29,6 +29,10 @@ pub const REL_TOL: f64 = 1e-9;
 /// `made_by`; a different version recomputing is not a discrepancy in itself).
 const NOT_DERIVED: [&str; 1] = ["program"];
 
+/// Keys whose values are descriptive text, not results: another version of annulus may word them
+/// differently without any number, status or verdict changing.
+const PROSE: [&str; 5] = ["message", "source", "limit", "basis", "convention_notes"];
+
 /// Where the embedded files are placed for the recomputation (only a name: nothing is on disk).
 const VIRTUAL_DIR: &str = "embedded";
 
@@ -67,8 +71,14 @@ impl fmt::Display for Difference {
 #[derive(Debug, Clone, PartialEq, Eq, Serialize)]
 #[serde(tag = "state", rename_all = "kebab-case")]
 pub enum Recomputation {
-    /// Every compared value agrees.
-    Matches { compared: usize },
+    /// Every compared value agrees. A report made by another annulus version may word its
+    /// descriptive texts (a check's source, limit or message, the convention's notes) differently:
+    /// those are listed in `reworded` and do not count against it.
+    Matches {
+        compared: usize,
+        #[serde(default, skip_serializing_if = "Vec::is_empty")]
+        reworded: Vec<Difference>,
+    },
     /// Some values differ.
     Differs {
         compared: usize,
@@ -196,7 +206,10 @@ pub fn recompute(
         Ok(v) => v,
         Err(e) => return impossible(format!("the recomputed results cannot be written: {e}")),
     };
-    let mut cmp = Comparison::default();
+    let mut cmp = Comparison {
+        lenient_prose: manifest.program != super::super::make::program(),
+        ..Comparison::default()
+    };
     if let (Value::Object(a), Value::Object(b)) = (&embedded_results, &recomputed_results) {
         let mut a = a.clone();
         let mut b = b.clone();
@@ -223,6 +236,7 @@ pub fn recompute(
     let result = if cmp.differences.is_empty() {
         Recomputation::Matches {
             compared: cmp.compared,
+            reworded: cmp.reworded,
         }
     } else {
         Recomputation::Differs {
@@ -239,13 +253,18 @@ pub fn recompute(
     )
 }
 
-/// Compares embedded results with recomputed ones, every leaf.
-pub fn compare_values(embedded: &Value, recomputed: &Value) -> Recomputation {
-    let mut cmp = Comparison::default();
+/// Compares embedded results with recomputed ones, every leaf; with `lenient_prose` (a document
+/// made by another version) descriptive texts that differ are listed as reworded, not as differences.
+pub fn compare_values(embedded: &Value, recomputed: &Value, lenient_prose: bool) -> Recomputation {
+    let mut cmp = Comparison {
+        lenient_prose,
+        ..Comparison::default()
+    };
     cmp.walk("", embedded, recomputed);
     if cmp.differences.is_empty() {
         Recomputation::Matches {
             compared: cmp.compared,
+            reworded: cmp.reworded,
         }
     } else {
         Recomputation::Differs {
@@ -260,6 +279,10 @@ pub fn compare_values(embedded: &Value, recomputed: &Value) -> Recomputation {
 struct Comparison {
     compared: usize,
     differences: Vec<Difference>,
+    /// Set for a document made by another version: descriptive texts that differ go to
+    /// `reworded` instead of `differences`.
+    lenient_prose: bool,
+    reworded: Vec<Difference>,
 }
 
 /// Two numbers agree within [`REL_TOL`] of the larger magnitude (exactly, when both are zero).
@@ -274,6 +297,13 @@ fn text(v: &Value) -> String {
         Value::Array(a) => format!("[{} items]", a.len()),
         other => other.to_string(),
     }
+}
+
+/// Whether the leaf at `path` (`checks[5].source`, `convention_notes[2]`) is descriptive text.
+fn is_prose(path: &str) -> bool {
+    let last = path.rsplit('.').next().unwrap_or(path);
+    let key = last.split('[').next().unwrap_or(last);
+    PROSE.contains(&key)
 }
 
 fn join(path: &str, key: &str) -> String {
@@ -302,7 +332,16 @@ impl Comparison {
             },
             _ => a == b,
         };
-        if !same {
+        if same {
+            return;
+        }
+        if self.lenient_prose && a.is_string() && b.is_string() && is_prose(path) {
+            self.reworded.push(Difference {
+                path: path.to_string(),
+                embedded: Some(text(a)),
+                recomputed: Some(text(b)),
+            });
+        } else {
             self.differ(path, Some(a), Some(b));
         }
     }
@@ -346,6 +385,31 @@ mod tests {
         let mut c = Comparison::default();
         c.walk("", &a, &b);
         c
+    }
+
+    #[test]
+    fn another_versions_wording_is_listed_but_its_numbers_and_statuses_still_count() {
+        let a = json!({"checks": [{"source": "old words", "status": "pass", "measured": 1.0}],
+                       "convention_notes": ["old note"]});
+        let b = json!({"checks": [{"source": "new words", "status": "fail", "measured": 1.0}],
+                       "convention_notes": ["new note"]});
+        // the same version: every difference counts, words included
+        let same = compare(a.clone(), b.clone());
+        assert_eq!(same.differences.len(), 3);
+        assert!(same.reworded.is_empty());
+        // another version: the two texts are reworded; the status still differs
+        let mut other = Comparison {
+            lenient_prose: true,
+            ..Comparison::default()
+        };
+        other.walk("", &a, &b);
+        let paths = |d: &[Difference]| d.iter().map(|x| x.path.clone()).collect::<Vec<_>>();
+        assert_eq!(paths(&other.differences), ["checks[0].status"]);
+        assert_eq!(
+            paths(&other.reworded),
+            ["checks[0].source", "convention_notes[0]"]
+        );
+        assert!(is_prose("runs[2].budget[3].basis") && !is_prose("runs[0].id"));
     }
 
     #[test]
@@ -444,7 +508,7 @@ leak_check = { before = "pass", after = "pass" }
         let (mut files, manifest) = packed();
         let (r, recomputed) = recompute(&manifest, &view(&files));
         assert!(
-            matches!(r, Recomputation::Matches { compared } if compared > 100),
+            matches!(r, Recomputation::Matches { compared, .. } if compared > 100),
             "{r:?}"
         );
         assert!(recomputed.is_some());
