@@ -8,14 +8,14 @@
 
 use super::make::{program, renderer_id, Made, MakeError, Unsealed};
 use super::manifest::{DocKind, Manifest, SignerEntry, MANIFEST_NAME, RESULTS_NAME};
-use super::seal::{digests, placeholder, seal_pdf};
+use super::seal::{placeholder, seal_pdf};
 use super::verify::recompute::{compare_values, first_problem, Recomputation};
 use super::verify::rerender::Rerendering;
 use super::SecretKey;
 use crate::config::SignoffDefaults;
 use crate::display::UnitSystem;
 use crate::input::system_file::{load_system_from, LoadedSystem, SystemInput};
-use crate::pdf::parts::{compare, DocumentParts};
+use crate::pdf::parts::DocumentParts;
 use crate::report::build::Identity;
 use crate::report::submittal::submittal_data;
 use crate::report::{Attachment, Engine, RenderOptions};
@@ -314,34 +314,7 @@ pub fn rerender(
     std::thread::spawn(move || {
         let _ = tx.send(render_submittal(&Engine::new(), &e, &settings));
     });
-    let unsealed = match rx.recv_timeout(time_limit) {
-        Ok(Ok(u)) => u,
-        Ok(Err(err)) => return impossible(format!("the embedded inputs do not render: {err}")),
-        Err(_) => {
-            return impossible(format!(
-                "the re-render did not finish within {} s",
-                time_limit.as_secs_f64()
-            ))
-        }
-    };
-    let parts = match digests(&unsealed.pdf) {
-        Ok(p) => p,
-        Err(err) => {
-            return impossible(format!(
-                "the re-rendered document cannot be read: {err} (a bug in {})",
-                program()
-            ))
-        }
-    };
-    let changes: Vec<String> = compare(&parts, actual)
-        .iter()
-        .map(|c| c.to_string())
-        .collect();
-    if changes.is_empty() {
-        Rerendering::Matches
-    } else {
-        Rerendering::Differs { changes }
-    }
+    crate::archive::verify::rerender::compare_rendered(&rx, time_limit, "", actual)
 }
 
 #[cfg(test)]

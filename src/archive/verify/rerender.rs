@@ -152,12 +152,31 @@ pub fn rerender(
             &settings,
         ));
     });
+    compare_rendered(
+        &rx,
+        time_limit,
+        " (the embedded template may be built never to finish)",
+        actual,
+    )
+}
+
+/// Waits up to `time_limit` for a re-render running on its own thread and compares its pages,
+/// metadata and files with the document's; `timeout_note` says why a re-render might not finish.
+pub(crate) fn compare_rendered(
+    rx: &std::sync::mpsc::Receiver<
+        Result<crate::archive::make::Unsealed, crate::archive::make::MakeError>,
+    >,
+    time_limit: std::time::Duration,
+    timeout_note: &str,
+    actual: &DocumentParts,
+) -> Rerendering {
+    let impossible = |reason: String| Rerendering::Impossible { reason };
     let unsealed = match rx.recv_timeout(time_limit) {
         Ok(Ok(u)) => u,
         Ok(Err(e)) => return impossible(format!("the embedded inputs do not render: {e}")),
         Err(_) => {
             return impossible(format!(
-                "the re-render did not finish within {} s (the embedded template may be built never to finish)",
+                "the re-render did not finish within {} s{timeout_note}",
                 time_limit.as_secs_f64()
             ))
         }
