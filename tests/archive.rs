@@ -7,19 +7,17 @@
 //! rewrites a copy the way someone editing the PDF would: with lopdf (which rewrites the whole
 //! file), or by appending an incremental update byte by byte, or by cutting it short.
 
+mod common;
 use annulus::archive::manifest::{Manifest, MANIFEST_NAME};
 use annulus::archive::seal::{Seal, SEAL_NAME};
 use annulus::archive::PublicKey;
 use annulus::pdf::{Limits, Object as PObject, Pdf};
+use common::root;
 use lopdf::{dictionary, Document, Object, ObjectId, Stream};
 use std::collections::BTreeMap;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 use std::sync::OnceLock;
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 /// Runs the binary in `dir` with no user configuration (unless `config` names one).
 fn annulus_cfg(dir: &Path, args: &[&str], config: &str) -> (i32, String, String) {

@@ -8,7 +8,9 @@
 //! Terminal tables of the sample files are golden files under tests/golden/, regenerated with
 //! `UPDATE_GOLDEN=1 cargo test --test calibrate_rata` and reviewed in the diff.
 
-use std::path::{Path, PathBuf};
+mod common;
+use common::{golden, root};
+use std::path::Path;
 use std::process::Command;
 
 use serde_json::Value;
@@ -18,10 +20,6 @@ const ABS_TOL_PRINTED_6DP: f64 = 0.000_000_5;
 /// Agreement with the numpy/scipy reference (printed to 17 significant digits; the two
 /// computations differ only in summation order and the t quantile algorithm).
 const REL_TOL_INDEPENDENT: f64 = 1e-9;
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 fn annulus(args: &[&str]) -> (i32, String, String) {
     let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
@@ -44,21 +42,6 @@ fn json_of(args: &[&str], want_code: i32) -> Value {
     let (code, out, err) = annulus(&all);
     assert_eq!(code, want_code, "{args:?}: {err}");
     serde_json::from_str(&out).expect("JSON output")
-}
-
-fn golden(name: &str, found: &str) {
-    let path = root().join("tests/golden").join(name);
-    if std::env::var_os("UPDATE_GOLDEN").is_some() {
-        std::fs::write(&path, found).expect("golden file written");
-        return;
-    }
-    let want = std::fs::read_to_string(&path).unwrap_or_else(|_| {
-        panic!(
-            "missing golden file {}; run with UPDATE_GOLDEN=1",
-            path.display()
-        )
-    });
-    assert_eq!(found, want, "output differs from {}", path.display());
 }
 
 fn reference() -> Value {

@@ -2,14 +2,12 @@
 //! through the PDF's embedded-file tree. Each sample survey is rendered once (debug renders take
 //! seconds) and shared by the tests.
 
+mod common;
 use annulus::report::embedded_files;
+use common::root;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::sync::OnceLock;
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 fn annulus(args: &[&str]) -> (i32, Vec<u8>, String) {
     let out = Command::new(env!("CARGO_BIN_EXE_annulus"))

@@ -6,17 +6,14 @@
 //! evaluated and assessed, its identity (report id and content fingerprint) taken from the
 //! archive bundle of its files and results.
 
+mod common;
 use annulus::archive::bundle::pack;
 use annulus::input::load;
 use annulus::pipeline::evaluate_and_assess;
 use annulus::report::build::{report_data, Identity};
 use annulus::report::ReportData;
 use annulus::results::ResultsDoc;
-use std::path::PathBuf;
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
+use common::{golden, root};
 
 /// The model of `sample-data/<name>/survey.toml`, with the identity `annulus report` gives it.
 fn model(name: &str) -> ReportData {
@@ -34,21 +31,6 @@ fn model(name: &str) -> ReportData {
         defaults: Default::default(),
     };
     report_data(&e, &a, &id)
-}
-
-fn golden(name: &str, found: &str) {
-    let path = root().join("tests/golden").join(name);
-    if std::env::var_os("UPDATE_GOLDEN").is_some() {
-        std::fs::write(&path, found).unwrap();
-        return;
-    }
-    let want = std::fs::read_to_string(&path).unwrap_or_else(|_| {
-        panic!(
-            "missing golden file {}; run with UPDATE_GOLDEN=1",
-            path.display()
-        )
-    });
-    assert_eq!(found, want, "model differs from {}", path.display());
 }
 
 const SAMPLES: [&str; 5] = ["stack", "hvac", "en-stack", "stack-metric", "bad-plane"];

@@ -4,13 +4,11 @@
 //! special, the error text and exit code, and a generous time bound where an input used to hang or
 //! take minutes (bounds are wide enough not to flake on a loaded two-core machine in debug).
 
+mod common;
+use common::root;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 struct Run {
     code: i32,

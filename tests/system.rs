@@ -2,12 +2,9 @@
 //! stderr and the exit code. Golden files under tests/golden/, regenerated with
 //! `UPDATE_GOLDEN=1 cargo test --test system` and reviewed in the diff.
 
-use std::path::PathBuf;
+mod common;
+use common::{golden, root};
 use std::process::Command;
-
-fn root() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 fn annulus(args: &[&str]) -> (i32, String, String) {
     annulus_cfg(args, "")
@@ -29,21 +26,6 @@ fn annulus_cfg(args: &[&str], config: &str) -> (i32, String, String) {
         String::from_utf8_lossy(&out.stdout).into_owned(),
         String::from_utf8_lossy(&out.stderr).into_owned(),
     )
-}
-
-fn golden(name: &str, found: &str) {
-    let path = root().join("tests/golden").join(name);
-    if std::env::var_os("UPDATE_GOLDEN").is_some() {
-        std::fs::write(&path, found).unwrap();
-        return;
-    }
-    let want = std::fs::read_to_string(&path).unwrap_or_else(|_| {
-        panic!(
-            "missing golden file {}; run with UPDATE_GOLDEN=1",
-            path.display()
-        )
-    });
-    assert_eq!(found, want, "output differs from {}", path.display());
 }
 
 const SAMPLE: &str = "sample-data/building/ahu-2.toml";
