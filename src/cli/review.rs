@@ -116,13 +116,13 @@ fn read_capped(path: &Path, cap: u64) -> std::io::Result<Vec<u8>> {
     })
 }
 
-/// `p` made absolute against the working folder, with `.` and `..` resolved by name.
-fn absolute(p: &Path) -> PathBuf {
+/// `p` made absolute against the working folder `cwd`, with `.` and `..` resolved by name.
+fn absolute(cwd: &Path, p: &Path) -> PathBuf {
     use std::path::Component;
     let joined = if p.is_absolute() {
         p.to_path_buf()
     } else {
-        std::env::current_dir().unwrap_or_default().join(p)
+        cwd.join(p)
     };
     let mut out = PathBuf::new();
     for c in joined.components() {
@@ -139,8 +139,8 @@ fn absolute(p: &Path) -> PathBuf {
 
 /// Whether a file a survey names lies inside the reviewed folder `root` (absolute): by name, and,
 /// when the file itself is a symbolic link, by where the link leads.
-fn inside(root: &Path, p: &Path) -> bool {
-    let abs = absolute(p);
+fn inside(root: &Path, cwd: &Path, p: &Path) -> bool {
+    let abs = absolute(cwd, p);
     if !abs.starts_with(root) {
         return false;
     }
@@ -247,11 +247,13 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
     } else {
         args.dir.parent().map(Path::to_path_buf).unwrap_or_default()
     };
-    let root = (!args.allow_outside).then(|| absolute(&boundary));
+    // the working folder is read once, not once per file
+    let cwd = std::env::current_dir().unwrap_or_default();
+    let root = (!args.allow_outside).then(|| absolute(&cwd, &boundary));
     let shown = boundary.display().to_string();
     let source: SharedSource = Arc::new(move |p: &Path| {
         match &root {
-        Some(root) if !inside(root, p) => Err(std::io::Error::new(
+        Some(root) if !inside(root, &cwd, p) => Err(std::io::Error::new(
             std::io::ErrorKind::PermissionDenied,
             format!(
                 "not read: it is outside the reviewed folder `{shown}` (review --allow-outside reads it)"
