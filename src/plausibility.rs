@@ -27,20 +27,43 @@ pub struct OutOfRange {
     pub value: f64,
 }
 
+impl OutOfRange {
+    /// The refusal in words with the range's bounds in `unit` (the unit the value was written
+    /// in, so an inch-pound job reads inches), or in SI when `unit` is `None` or of another
+    /// dimension than the range.
+    pub fn words_in(&self, unit: Option<&crate::units::Unit>) -> String {
+        if !self.value.is_finite() {
+            return format!("{} must be a finite number", self.range.what);
+        }
+        let num = crate::checks::num;
+        let si = format!(
+            "{} {u} to {} {u}",
+            num(self.range.min),
+            num(self.range.max),
+            u = self.range.unit
+        );
+        // the bounds in the writer's own unit first, SI beside them
+        let bounds = match (unit, crate::units::lookup_unit(self.range.unit)) {
+            (Some(u), Some(base)) if u.dimension == base.dimension && u.symbol != base.symbol => {
+                format!(
+                    "{} {s} to {} {s}, that is {si}",
+                    crate::display::significant(crate::units::convert_out(self.range.min, u), 4),
+                    crate::display::significant(crate::units::convert_out(self.range.max, u), 4),
+                    s = u.symbol
+                )
+            }
+            _ => si,
+        };
+        format!(
+            "{} is outside what can be measured ({bounds}: {})",
+            self.range.what, self.range.reason,
+        )
+    }
+}
+
 impl fmt::Display for OutOfRange {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        if !self.value.is_finite() {
-            return write!(f, "{} must be a finite number", self.range.what);
-        }
-        write!(
-            f,
-            "{} is outside what can be measured ({} {u} to {} {u}: {})",
-            self.range.what,
-            crate::checks::num(self.range.min),
-            crate::checks::num(self.range.max),
-            self.range.reason,
-            u = self.range.unit
-        )
+        f.write_str(&self.words_in(None))
     }
 }
 
@@ -220,6 +243,29 @@ pub const REFERENCE_PRESSURE: Range = range(
 
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn the_bounds_are_shown_in_the_unit_the_value_was_written_in() {
+        let inch = crate::units::lookup_unit("in").unwrap();
+        let e = DUCT_DIMENSION.check(1e-4).unwrap_err();
+        // 0.005 m / 0.0254 m per inch (exact) = 0.19685 in; 100 m = 3937.0 in
+        assert_eq!(
+            e.words_in(Some(inch)),
+            "an inside dimension is outside what can be measured (0.1969 in to 3937 in, that is \
+             0.005 m to 100 m: a duct or stack is between a pitot's width and 100 m across)"
+        );
+        // a temperature keeps its offset: 173.15 K = −148 °F, 2273.15 K = 3632 °F
+        let f = crate::units::lookup_unit("F").unwrap();
+        let t = GAS_TEMPERATURE.check(5000.0).unwrap_err().words_in(Some(f));
+        assert!(
+            t.contains("(−148 F to 3632 F, that is 173.15 K to 2273.2 K"),
+            "{t}"
+        );
+        // no unit, or one of another dimension: SI only
+        let pa = VELOCITY_PRESSURE.check(1e9).unwrap_err();
+        assert_eq!(pa.words_in(Some(inch)), pa.words_in(None));
+        assert!(!pa.words_in(None).contains("that is"));
+    }
+
     use super::*;
 
     #[test]

@@ -662,6 +662,12 @@ fn starts_fraction(t: &str) -> bool {
         && t[digits + 1..].starts_with(|c: char| c.is_ascii_digit())
 }
 
+/// The unit a quantity string is written in (`"24 in"` → inches), if it names a known one.
+pub fn unit_of(text: &str) -> Option<&'static Unit> {
+    let (_, unit) = split_number_unit(text.trim());
+    lookup_unit(unit)
+}
+
 /// Parses a quantity string of the given dimension into its SI value.
 pub fn parse_quantity(text: &str, expected: Dimension) -> Result<f64, UnitError> {
     let raw = text.trim().to_string();

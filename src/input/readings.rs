@@ -557,7 +557,7 @@ fn read_cell(
                 .map(|_| ())
                 .map_err(|e| {
                     cell.error(
-                        format!("differential pressure `{raw}`: {e}"),
+                        format!("differential pressure `{raw}`: {}", e.words_in(Some(unit))),
                         "a reading this large is a slipped decimal point or the wrong unit in the header",
                     )
                 })
@@ -572,7 +572,7 @@ fn read_cell(
                 ))
             } else if let Err(e) = crate::plausibility::GAS_TEMPERATURE.check(k) {
                 Err(cell.error(
-                    format!("temperature `{raw}`: {e}"),
+                    format!("temperature `{raw}`: {}", e.words_in(Some(unit))),
                     "check the number and the unit in the header",
                 ))
             } else {

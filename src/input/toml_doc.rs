@@ -235,10 +235,12 @@ impl<'d> Field<'d> {
         match range.check(x) {
             Ok(x) => Some(x),
             Err(e) => {
-                self.error(
-                    format!("`{}` = `{}`: {e}", self.path(), self.text()),
-                    Some(format!(
-                        "check the number and its unit (`{}` was read as {} {})",
+                let unit = crate::units::unit_of(&self.text());
+                let hint = match unit {
+                    // the bounds are already shown in the writer's unit
+                    Some(_) => "check the number and its unit".to_string(),
+                    None => format!(
+                        "check the number (`{}` was read as {} {})",
                         self.text(),
                         // a value far outside the range reads better in powers of ten
                         if x != 0.0 && !(1e-4..1e7).contains(&x.abs()) {
@@ -247,7 +249,16 @@ impl<'d> Field<'d> {
                             crate::checks::num(x)
                         },
                         range.unit
-                    )),
+                    ),
+                };
+                self.error(
+                    format!(
+                        "`{}` = `{}`: {}",
+                        self.path(),
+                        self.text(),
+                        e.words_in(unit)
+                    ),
+                    Some(hint),
                 );
                 None
             }
