@@ -366,6 +366,12 @@ fn rect_map(
     let xs: Vec<f64> = columns.iter().map(|c| c.0).collect();
     let x_edges = edges(&xs, -width_m / 2.0, width_m / 2.0);
     let font = (w_px / columns.len().max(1) as f64 / 4.2).clamp(5.0, 8.0);
+    // A value is printed in its cell only when the cells can hold it (about four characters of
+    // the smallest legible size across, and two lines down); on a fine grid (a 40 × 40 duct has
+    // 6 px cells) the numbers would overprint one another, and the colour carries the value.
+    let rows = columns.iter().map(|c| c.1.len()).max().unwrap_or(1).max(1);
+    let labelled =
+        w_px / columns.len().max(1) as f64 >= 4.2 * 5.0 && h_px / rows as f64 >= 2.0 * 5.0 + 2.5;
     for ((_, pts), (x0, x1)) in columns.iter_mut().zip(x_edges) {
         pts.sort_by(|a, b| a.y_m.total_cmp(&b.y_m));
         let ys: Vec<f64> = pts.iter().map(|p| p.y_m).collect();
@@ -386,11 +392,13 @@ fn rect_map(
                 num(sh)
             ));
             let (px, py) = (cx + p.x_m * to_px, cy - p.y_m * to_px);
-            let value = axis::label(
-                p.velocity_m_s * units.velocity_per_m_s,
-                units.velocity_decimals,
-            );
-            svg.text(px, py + font + 2.5, font, Anchor::Middle, ink, &value);
+            if labelled {
+                let value = axis::label(
+                    p.velocity_m_s * units.velocity_per_m_s,
+                    units.velocity_decimals,
+                );
+                svg.text(px, py + font + 2.5, font, Anchor::Middle, ink, &value);
+            }
             marker(svg, px, py, p.excluded);
         }
     }
