@@ -101,7 +101,12 @@ pub struct ReviewArgs {
 /// is not a regular file (a FIFO, a device, a folder) an error, never a wait.
 fn read_capped(path: &Path, cap: u64) -> std::io::Result<Vec<u8>> {
     // the input rules (regular files only, opened so a FIFO cannot block), with review's budget
-    crate::input::fs::read_limited(path, cap).map_err(|e| {
+    capped(crate::input::fs::read_limited(path, cap), cap)
+}
+
+/// A read's `FileTooLarge` worded as review's size budget.
+fn capped(read: std::io::Result<Vec<u8>>, cap: u64) -> std::io::Result<Vec<u8>> {
+    read.map_err(|e| {
         if e.kind() == std::io::ErrorKind::FileTooLarge {
             std::io::Error::new(
                 std::io::ErrorKind::FileTooLarge,
@@ -137,17 +142,43 @@ fn absolute(cwd: &Path, p: &Path) -> PathBuf {
     out
 }
 
-/// Whether a file a survey names lies inside the reviewed folder `root` (absolute): by name, and,
-/// when the file itself is a symbolic link, by where the link leads.
-fn inside(root: &Path, cwd: &Path, p: &Path) -> bool {
+/// Reads a file a survey names if it lies inside the reviewed folder `root` (absolute): by name,
+/// and, when the file itself is a symbolic link, by where the link leads. The `lstat` that looks
+/// for a link is also the look at the file's type before it is opened, when it is no link.
+/// `shown` is the folder as the user named it, for the message.
+fn read_inside(
+    root: &Path,
+    shown: &str,
+    cwd: &Path,
+    p: &Path,
+    cap: u64,
+) -> std::io::Result<Vec<u8>> {
     let abs = absolute(cwd, p);
+    let outside = || -> std::io::Result<Vec<u8>> {
+        Err(std::io::Error::new(
+            std::io::ErrorKind::PermissionDenied,
+            format!(
+                "not read: it is outside the reviewed folder `{shown}` (review --allow-outside reads it)"
+            ),
+        ))
+    };
     if !abs.starts_with(root) {
-        return false;
+        return outside();
     }
     match std::fs::symlink_metadata(&abs) {
-        Ok(m) if m.file_type().is_symlink() => std::fs::canonicalize(&abs)
-            .is_ok_and(|target| std::fs::canonicalize(root).is_ok_and(|r| target.starts_with(r))),
-        _ => true,
+        Ok(m) if m.file_type().is_symlink() => {
+            let inside = std::fs::canonicalize(&abs).is_ok_and(|target| {
+                std::fs::canonicalize(root).is_ok_and(|r| target.starts_with(r))
+            });
+            if inside {
+                read_capped(p, cap)
+            } else {
+                outside()
+            }
+        }
+        Ok(m) => capped(crate::input::fs::read_limited_after(p, &m, cap), cap),
+        // not there (or not to be looked at): the read reports why
+        Err(_) => read_capped(p, cap),
     }
 }
 
@@ -251,16 +282,9 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
     let cwd = std::env::current_dir().unwrap_or_default();
     let root = (!args.allow_outside).then(|| absolute(&cwd, &boundary));
     let shown = boundary.display().to_string();
-    let source: SharedSource = Arc::new(move |p: &Path| {
-        match &root {
-        Some(root) if !inside(root, &cwd, p) => Err(std::io::Error::new(
-            std::io::ErrorKind::PermissionDenied,
-            format!(
-                "not read: it is outside the reviewed folder `{shown}` (review --allow-outside reads it)"
-            ),
-        )),
-        _ => read_capped(p, cap),
-    }
+    let source: SharedSource = Arc::new(move |p: &Path| match &root {
+        Some(root) => read_inside(root, &shown, &cwd, p, cap),
+        None => read_capped(p, cap),
     });
     let fail_on: Vec<ReviewStatus> = args.fail_on.iter().map(|s| s.status()).collect();
     let failing = |r: &Reviewed| fail_on.contains(&r.status);

@@ -70,14 +70,20 @@ struct Cell<'a> {
     line: usize,
     column: usize,
     header: &'a str,
-    who: String,
+    /// The row's line label and point as written, for the message (worded only on an error).
+    line_label: &'a str,
+    point: &'a str,
 }
 
 impl Cell<'_> {
     fn error(&self, msg: String, hint: &str) -> Diagnostic {
         Diagnostic::new(msg)
-            .at(Location::at(self.file, self.line, self.column)
-                .with_context(format!("{}column `{}`", self.who, self.header)))
+            .at(
+                Location::at(self.file, self.line, self.column).with_context(format!(
+                    "line {}, point {}, column `{}`",
+                    self.line_label, self.point, self.header
+                )),
+            )
             .hint(hint)
     }
 }
@@ -131,8 +137,11 @@ pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow> {
             .filter(|(_, l)| !l.starts_with('#') && !l.trim().is_empty())
             .take(max_records)
             .map(|(i, l)| {
-                let rec: csv::StringRecord =
-                    l.trim_end_matches('\r').split(',').map(str::trim).collect();
+                let l = l.trim_end_matches('\r');
+                let mut rec = csv::StringRecord::with_capacity(l.len(), 8);
+                for field in l.split(',') {
+                    rec.push_field(field.trim());
+                }
                 (i + 1, Ok(rec))
             })
             .collect();
@@ -476,13 +485,9 @@ fn row_reading(
         return Err(diags);
     }
     let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
-    let line_label = get(Col::Line)
-        .map(|i| rec[i].to_string())
-        .unwrap_or_default();
-    let point_raw = get(Col::Point)
-        .map(|i| rec[i].to_string())
-        .unwrap_or_default();
-    let who = format!("line {line_label}, point {point_raw}, ");
+    let line_raw = get(Col::Line).map(|i| &rec[i]).unwrap_or_default();
+    let point_raw = get(Col::Point).map(|i| &rec[i]).unwrap_or_default();
+    let line_label = line_raw.to_string();
     let mut r = Reading {
         line: line_label,
         point: 0,
@@ -502,7 +507,8 @@ fn row_reading(
             line: line_no,
             column: i + 1,
             header: &headers[*i],
-            who: who.clone(),
+            line_label: line_raw,
+            point: point_raw,
         };
         if let Err(d) = read_cell(*col, &rec[*i], &cell, &mut r, &mut distance) {
             diags.push(d);
@@ -695,12 +701,14 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
         let label = rec[0].to_string();
         for (k, &p) in points.iter().enumerate() {
             let raw = &rec[k + 1];
+            let point = p.to_string();
             let cell = Cell {
                 file,
                 line: line_no,
                 column: k + 2,
                 header,
-                who: format!("line {label}, point {p}, "),
+                line_label: &label,
+                point: &point,
             };
             match number_in(&cell, raw, "differential pressure", unit) {
                 Ok(v) => readings.push(Reading {
