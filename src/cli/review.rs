@@ -182,53 +182,108 @@ fn read_inside(
     }
 }
 
-/// Every candidate file under `dir`, and the folders that could not be listed (as findings).
+/// Every candidate file under `dir` (sorted), and the folders that could not be listed (as
+/// findings). Folders are listed by a few threads at once: listing is mostly waiting on the
+/// file system (a 10,000-survey archive took 0.12–0.25 s to list on one thread).
 fn walk(dir: &Path) -> (Vec<PathBuf>, Vec<Reviewed>) {
-    let mut files = Vec::new();
-    let mut bad = Vec::new();
-    let mut pending = vec![dir.to_path_buf()];
-    while let Some(d) = pending.pop() {
-        let entries = match std::fs::read_dir(&d) {
+    use std::sync::{Condvar, Mutex};
+    // folders waiting to be listed, and how many are being listed now
+    let queue = Mutex::new((vec![dir.to_path_buf()], 0usize));
+    let ready = Condvar::new();
+    let threads = std::thread::available_parallelism()
+        .map(|n| n.get())
+        .unwrap_or(1)
+        .clamp(1, 4);
+    let lists: Vec<(Vec<PathBuf>, Vec<Reviewed>)> = std::thread::scope(|scope| {
+        let workers: Vec<_> = (0..threads)
+            .map(|_| {
+                scope.spawn(|| {
+                    let mut mine = (Vec::new(), Vec::new());
+                    loop {
+                        let d = {
+                            let Ok(mut q) = queue.lock() else { break };
+                            loop {
+                                if let Some(d) = q.0.pop() {
+                                    q.1 += 1;
+                                    break Some(d);
+                                }
+                                if q.1 == 0 {
+                                    break None;
+                                }
+                                q = match ready.wait(q) {
+                                    Ok(q) => q,
+                                    Err(_) => return mine,
+                                };
+                            }
+                        };
+                        let Some(d) = d else {
+                            ready.notify_all();
+                            break;
+                        };
+                        let sub = list_folder(&d, &mut mine.0, &mut mine.1);
+                        if let Ok(mut q) = queue.lock() {
+                            q.0.extend(sub);
+                            q.1 -= 1;
+                        }
+                        ready.notify_all();
+                    }
+                    mine
+                })
+            })
+            .collect();
+        workers.into_iter().filter_map(|w| w.join().ok()).collect()
+    });
+    let (mut files, mut bad) = (Vec::new(), Vec::new());
+    for (f, b) in lists {
+        files.extend(f);
+        bad.extend(b);
+    }
+    files.sort();
+    bad.sort_by(|a, b| a.file.cmp(&b.file));
+    (files, bad)
+}
+
+/// Lists one folder: candidate files into `files`, a folder that cannot be listed into `bad`;
+/// returns its sub-folders (hidden ones and links to folders are not followed: no cycles).
+fn list_folder(d: &Path, files: &mut Vec<PathBuf>, bad: &mut Vec<Reviewed>) -> Vec<PathBuf> {
+    let mut sub = Vec::new();
+    let entries = match std::fs::read_dir(d) {
+        Ok(e) => e,
+        Err(e) => {
+            bad.push(Reviewed::unreadable(
+                d,
+                Kind::File,
+                format!("cannot list the folder: {e}"),
+            ));
+            return sub;
+        }
+    };
+    for entry in entries {
+        let entry = match entry {
             Ok(e) => e,
             Err(e) => {
                 bad.push(Reviewed::unreadable(
-                    &d,
+                    d,
                     Kind::File,
                     format!("cannot list the folder: {e}"),
                 ));
                 continue;
             }
         };
-        for entry in entries {
-            let entry = match entry {
-                Ok(e) => e,
-                Err(e) => {
-                    bad.push(Reviewed::unreadable(
-                        &d,
-                        Kind::File,
-                        format!("cannot list the folder: {e}"),
-                    ));
-                    continue;
-                }
-            };
-            let path = entry.path();
-            // symbolic links to folders are not followed (no cycles); linked files are read
-            let Ok(kind) = entry.file_type() else {
-                continue;
-            };
-            if kind.is_dir() {
-                if !entry.file_name().to_string_lossy().starts_with('.') {
-                    pending.push(path);
-                }
-            } else if (kind.is_file() || (kind.is_symlink() && path.is_file()))
-                && is_candidate(&path)
-            {
-                files.push(path);
+        let path = entry.path();
+        // symbolic links to folders are not followed (no cycles); linked files are read
+        let Ok(kind) = entry.file_type() else {
+            continue;
+        };
+        if kind.is_dir() {
+            if !entry.file_name().to_string_lossy().starts_with('.') {
+                sub.push(path);
             }
+        } else if (kind.is_file() || (kind.is_symlink() && path.is_file())) && is_candidate(&path) {
+            files.push(path);
         }
     }
-    files.sort();
-    (files, bad)
+    sub
 }
 
 pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
