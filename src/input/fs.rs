@@ -102,17 +102,11 @@ fn too_large(size: Option<u64>, limit: u64) -> io::Error {
 }
 
 /// Opens `path` for reading only if it is a regular file. The type is looked at before opening
-/// (opening a FIFO would wait for a writer; opening some devices has effects) and again on the
-/// open file, which on Unix is opened non-blocking, so a path swapped for a FIFO in between cannot
-/// hang the read either.
-fn open_regular(path: &Path) -> io::Result<(std::fs::File, u64)> {
-    let meta = std::fs::metadata(path)?;
-    open_regular_after(path, &meta)
-}
-
-/// [`open_regular`] with the path's type already looked at: `meta` is its `stat` (or its
-/// `lstat`, when that showed no symbolic link).
-fn open_regular_after(path: &Path, meta: &std::fs::Metadata) -> io::Result<(std::fs::File, u64)> {
+/// (opening a FIFO would wait for a writer; opening some devices has effects): `meta` is the
+/// path's `stat` (or its `lstat`, when that showed no symbolic link). It is looked at again on
+/// the open file, which on Unix is opened non-blocking, so a path swapped for a FIFO in between
+/// cannot hang the read either.
+fn open_regular(path: &Path, meta: &std::fs::Metadata) -> io::Result<(std::fs::File, u64)> {
     if let Some(what) = special_kind(meta) {
         return Err(special_file_error(what));
     }
@@ -138,7 +132,7 @@ pub fn read_limited_after(
     meta: &std::fs::Metadata,
     limit: u64,
 ) -> io::Result<Vec<u8>> {
-    let (file, len) = open_regular_after(path, meta)?;
+    let (file, len) = open_regular(path, meta)?;
     if len > limit {
         return Err(too_large(Some(len), limit));
     }
@@ -192,11 +186,7 @@ fn read_bounded(reader: impl Read, limit: u64, size_hint: u64) -> io::Result<Vec
 
 /// Reads a regular file of at most `limit` bytes.
 pub fn read_limited(path: &Path, limit: u64) -> io::Result<Vec<u8>> {
-    let (file, len) = open_regular(path)?;
-    if len > limit {
-        return Err(too_large(Some(len), limit));
-    }
-    read_regular(file, limit, len)
+    read_limited_after(path, &std::fs::metadata(path)?, limit)
 }
 
 /// Reads a regular file of at most the largest size limit in force: the file-system
@@ -478,6 +468,25 @@ mod tests {
         assert_eq!(e.kind(), io::ErrorKind::FileTooLarge);
         assert!(e.to_string().contains("it is 10 bytes"), "{e}");
         assert!(e.to_string().contains("at most 9 bytes"), "{e}");
+    }
+
+    #[test]
+    fn a_file_that_grew_after_its_size_was_taken_is_read_whole_within_the_limit() {
+        // read_regular is given the size seen when the file was opened; a file longer by then
+        // (still being written) is read to its end, and past the limit it is too large
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("a.csv");
+        std::fs::write(&p, b"0123456789").unwrap();
+        let open = || std::fs::File::open(&p).unwrap();
+        assert_eq!(read_regular(open(), 100, 4).unwrap(), b"0123456789");
+        assert_eq!(read_regular(open(), 10, 4).unwrap(), b"0123456789");
+        let e = read_regular(open(), 8, 4).unwrap_err();
+        assert_eq!(e.kind(), io::ErrorKind::FileTooLarge);
+        assert!(e.to_string().contains("at most 8 bytes"), "{e}");
+        // one that shrank is read as it now is
+        assert_eq!(read_regular(open(), 100, 20).unwrap(), b"0123456789");
+        std::fs::write(&p, b"").unwrap();
+        assert_eq!(read_regular(open(), 100, 0).unwrap(), b"");
     }
 
     #[test]

@@ -596,7 +596,8 @@ fn compile_and_export(
         RenderError::Template(errors.iter().map(|d| world.resolve(d)).collect())
     })?;
     // The layout's memoisation caches are not needed for the export: freed here, they do not add
-    // to the export's peak (a 1,600-point report: see benches/timing.py).
+    // to the export's peak (a few per cent of a 1,600-point report's peak, measured with
+    // benches/timing.py's grid; the caches are freed again after the export for batches).
     typst::comemo::evict(0);
     let standards = PdfStandards::new(&[standard])
         .map_err(|e| RenderError::Internal(format!("PDF standard: {}", e.message())))?;

@@ -3,10 +3,10 @@
 //!
 //! Owns [`review_stream`]: worker threads take files in turn; a supervisor (the caller's thread)
 //! collects the finished records every few milliseconds and passes them to the caller's sink, so
-//! an interrupted review keeps everything already printed and nothing accumulates. A file that takes longer than
-//! the time budget becomes an `error` row ("over the review's time budget") and its worker is
-//! abandoned (its late result is dropped) and replaced, so one hostile file cannot stall the
-//! review. The size budget is the source's to enforce (it reports `FileTooLarge`).
+//! an interrupted review keeps everything already printed and nothing accumulates. A file that
+//! takes longer than the time budget becomes an `error` row ("over the review's time budget") and
+//! its worker is abandoned (its late result is dropped) and replaced, so one hostile file cannot
+//! stall the review. The size budget is the source's to enforce (it reports `FileTooLarge`).
 //!
 //! Reports are reviewed first, then surveys: each survey is matched against the reports found
 //! ([`super::matching`]), which costs a lookup only when the review holds reports.

@@ -338,6 +338,14 @@ fn edges(centres: &[f64], lo: f64, hi: f64) -> Vec<(f64, f64)> {
         .collect()
 }
 
+/// A cell label's size: the cell width over this many ems (a value of about four characters),
+/// within the smallest and largest label sizes, in SVG px.
+const CELL_WIDTH_IN_EMS: f64 = 4.2;
+const MIN_LABEL_PX: f64 = 5.0;
+const MAX_LABEL_PX: f64 = 8.0;
+/// The gap between a point's dot and its label below it.
+const LABEL_GAP_PX: f64 = 2.5;
+
 fn rect_map(
     svg: &mut Svg,
     field: &[FieldPoint],
@@ -365,13 +373,15 @@ fn rect_map(
     columns.sort_by(|a, b| a.0.total_cmp(&b.0));
     let xs: Vec<f64> = columns.iter().map(|c| c.0).collect();
     let x_edges = edges(&xs, -width_m / 2.0, width_m / 2.0);
-    let font = (w_px / columns.len().max(1) as f64 / 4.2).clamp(5.0, 8.0);
-    // A value is printed in its cell only when the cells can hold it (about four characters of
-    // the smallest legible size across, and two lines down); on a fine grid (a 40 × 40 duct has
-    // 6 px cells) the numbers would overprint one another, and the colour carries the value.
+    let cell_w = w_px / columns.len().max(1) as f64;
+    let font_fit = cell_w / CELL_WIDTH_IN_EMS;
+    let font = font_fit.clamp(MIN_LABEL_PX, MAX_LABEL_PX);
+    // A value is printed in its cell only when the cells can hold it at the smallest legible size
+    // (across, and below the point's dot); on a fine grid (a 40 × 40 duct has 6 px cells) the
+    // numbers would overprint one another, and the colour carries the value.
     let rows = columns.iter().map(|c| c.1.len()).max().unwrap_or(1).max(1);
     let labelled =
-        w_px / columns.len().max(1) as f64 >= 4.2 * 5.0 && h_px / rows as f64 >= 2.0 * 5.0 + 2.5;
+        font_fit >= MIN_LABEL_PX && h_px / rows as f64 >= 2.0 * MIN_LABEL_PX + LABEL_GAP_PX;
     for ((_, pts), (x0, x1)) in columns.iter_mut().zip(x_edges) {
         pts.sort_by(|a, b| a.y_m.total_cmp(&b.y_m));
         let ys: Vec<f64> = pts.iter().map(|p| p.y_m).collect();
@@ -397,7 +407,14 @@ fn rect_map(
                     p.velocity_m_s * units.velocity_per_m_s,
                     units.velocity_decimals,
                 );
-                svg.text(px, py + font + 2.5, font, Anchor::Middle, ink, &value);
+                svg.text(
+                    px,
+                    py + font + LABEL_GAP_PX,
+                    font,
+                    Anchor::Middle,
+                    ink,
+                    &value,
+                );
             }
             marker(svg, px, py, p.excluded);
         }
@@ -499,6 +516,37 @@ mod tests {
         assert!((map.at(0.2, std::f64::consts::FRAC_PI_4) - 12.0).abs() < TOL);
         // Between the centre and the innermost point.
         assert!((map.at(0.1, 0.0) - 11.0).abs() < TOL);
+    }
+
+    /// The cell labels of a rectangular map of an n × n grid of equal cells in a 1 m square duct,
+    /// each point's velocity 12.345 m/s (printed as 12.3).
+    fn rect_labels(n: usize) -> usize {
+        let units = ChartUnits {
+            length: "m".into(),
+            length_per_m: 1.0,
+            length_decimals: 1,
+            velocity: "m/s".into(),
+            velocity_per_m_s: 1.0,
+            velocity_decimals: 1,
+            si_beside: false,
+        };
+        let at = |i: usize| (i as f64 + 0.5) / n as f64 - 0.5;
+        let field: Vec<FieldPoint> = (0..n)
+            .flat_map(|i| (0..n).map(move |j| (i, j)))
+            .map(|(i, j)| pt(at(i), at(j), 12.345))
+            .collect();
+        let mut svg = Svg::new(WIDTH, HEIGHT);
+        let scale = ColourScale::spanning([field.as_slice()]);
+        rect_map(&mut svg, &field, &units, 1.0, 1.0, scale);
+        svg.finish().matches(">12.3<").count()
+    }
+
+    #[test]
+    fn cells_are_labelled_only_where_a_label_fits() {
+        // 225 px across: 8 cells of 28 px hold a 5 px+ label; 40 cells of 5.6 px do not
+        assert_eq!(rect_labels(8), 64);
+        assert_eq!(rect_labels(10), 100);
+        assert_eq!(rect_labels(40), 0);
     }
 
     #[test]
