@@ -207,11 +207,31 @@ impl Assessment {
     }
 }
 
-/// Runs all checks and builds the budgets.
-pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
+/// The checks' side of an assessment: every finding and the verdict they give, without the
+/// uncertainty budgets. `review` judges a survey by this alone (its budgets would be built and
+/// never printed); [`assess`] adds the budgets.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Judgement {
+    /// `fail` if any finding fails, else `warn` if any warns, else `pass`.
+    pub verdict: Verdict,
+    /// Survey-level findings.
+    pub checks: Vec<Finding>,
+    /// Each run's findings, in the survey's order.
+    pub runs: Vec<RunFindings>,
+}
+
+/// One run's findings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RunFindings {
+    pub id: String,
+    /// Counts toward the average.
+    pub valid: bool,
+    pub checks: Vec<Finding>,
+}
+
+/// What the checks judge: the evaluation seen run by run, with the assessment settings.
+fn subject<'a>(eval: &'a Evaluation, config: &'a AssessConfig) -> Subject<'a> {
     let survey = &eval.loaded.survey;
-    // the unit each run's Δp column was recorded in, from its header
-    let units: Vec<_> = eval.loaded.runs.iter().map(|(_, r)| r.dp_unit).collect();
     let views: Vec<RunView> = eval
         .runs
         .iter()
@@ -224,13 +244,14 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
                 spec,
                 result,
                 readings,
-                dp_unit: units.get(i).copied().flatten(),
+                // the unit the run's Δp column was recorded in, from its header
+                dp_unit: readings.dp_unit,
                 valid: validity.is_none_or(|v| v.valid),
                 void_reason: validity.and_then(|v| v.void_reason.as_deref()),
             }
         })
         .collect();
-    let subject = Subject {
+    Subject {
         survey,
         convention: &eval.convention,
         plane: &eval.plane,
@@ -240,8 +261,12 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
         reported: &config.reported,
         runs_required: survey.runs_required,
         wall_effects: &eval.wall_effects,
-    };
-    let mut findings = checks::run_all(&subject, &config.checks);
+    }
+}
+
+/// Runs every check on `subject`: the findings, a void run's failures turned to warnings.
+fn run_checks(subject: &Subject, config: &AssessConfig) -> checks::Findings {
+    let mut findings = checks::run_all(subject, &config.checks);
     // A void run is out of the average: what its own data show cannot fail the test. Its failing
     // findings stay in the report, as warnings that say so (the leak-check finding already words
     // the void itself).
@@ -259,6 +284,48 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
             }
         }
     }
+    findings
+}
+
+/// The verdict of a set of findings.
+fn verdict<'a>(findings: impl IntoIterator<Item = &'a Finding>) -> Verdict {
+    match checks::worst(findings) {
+        Status::Fail => Verdict::Fail,
+        Status::Warn => Verdict::Warn,
+        _ => Verdict::Pass,
+    }
+}
+
+/// Runs all checks: the findings and the verdict, without budgets (see [`Judgement`]).
+pub fn judge(eval: &Evaluation, config: &AssessConfig) -> Judgement {
+    let subject = subject(eval, config);
+    let findings = run_checks(&subject, config);
+    let runs: Vec<RunFindings> = subject
+        .runs
+        .iter()
+        .zip(findings.runs)
+        .map(|(view, checks)| RunFindings {
+            id: view.spec.id.clone(),
+            valid: view.valid,
+            checks,
+        })
+        .collect();
+    Judgement {
+        verdict: verdict(
+            findings
+                .survey
+                .iter()
+                .chain(runs.iter().flat_map(|r| &r.checks)),
+        ),
+        checks: findings.survey,
+        runs,
+    }
+}
+
+/// Runs all checks and builds the budgets.
+pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
+    let subject = subject(eval, config);
+    let findings = run_checks(&subject, config);
     let calibrations = checks::records::calibration_dues(&subject, &config.checks);
 
     let mut assumptions = Vec::new();
@@ -291,18 +358,13 @@ pub fn assess(eval: &Evaluation, config: &AssessConfig) -> Assessment {
         .spatial_method
         .unwrap_or(SpatialMethod::Scatter);
     let average = average_budget(&subject, &budgets, spatial);
-    let verdict = match checks::worst(
-        findings
-            .survey
-            .iter()
-            .chain(runs.iter().flat_map(|r| &r.checks)),
-    ) {
-        Status::Fail => Verdict::Fail,
-        Status::Warn => Verdict::Warn,
-        _ => Verdict::Pass,
-    };
     Assessment {
-        verdict,
+        verdict: verdict(
+            findings
+                .survey
+                .iter()
+                .chain(runs.iter().flat_map(|r| &r.checks)),
+        ),
         checks: findings.survey,
         runs,
         average,

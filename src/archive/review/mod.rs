@@ -19,8 +19,9 @@ use super::forensics::{identify, recomputed, Explanation, Quantity};
 use super::verify::{
     documents::Identity, verify, ContentState, SignatureStatus, Verification, VerifyOptions,
 };
-use crate::assess::{assess, Assessment};
+use crate::assess::judge;
 use crate::checks::integrity::{ReportedQuantity, ReportedScope, ReportedValue};
+use crate::checks::Finding;
 use crate::checks::{num, pct, Group, Status};
 use crate::diag::Error;
 use crate::input::assess_config::load_assess_config;
@@ -630,8 +631,14 @@ pub fn review_survey(
         Ok(e) => e,
         Err(e) => return bad(e),
     };
-    let assessment = assess(&eval, &config);
-    let mut notes = assessment_notes(&eval, &assessment, &config.reported);
+    // the findings alone: a review prints no budget
+    let judgement = judge(&eval, &config);
+    let runs: Vec<_> = judgement
+        .runs
+        .iter()
+        .map(|r| (&r.id, &r.checks[..]))
+        .collect();
+    let mut notes = assessment_notes(&eval, &judgement.checks, &runs, &config.reported);
     notes.extend(matched.into_iter().flatten());
     let mut r = Reviewed::bare(path, Kind::Survey, notes);
     r.identify(&Identity::of_survey(&eval.loaded.survey));
@@ -740,7 +747,15 @@ pub fn review_report(
         let reported = load_assess_config(&r.evaluation.loaded)
             .map(|c| c.reported)
             .unwrap_or_default();
-        notes.extend(assessment_notes(&r.evaluation, &r.assessment, &reported));
+        let runs: Vec<_> = (r.assessment.runs.iter())
+            .map(|run| (&run.id, &run.checks[..]))
+            .collect();
+        notes.extend(assessment_notes(
+            &r.evaluation,
+            &r.assessment.checks,
+            &runs,
+            &reported,
+        ));
         convention = Some(r.evaluation.convention.id.name().to_string());
         figure = key_figure(&r.evaluation);
     }
@@ -760,22 +775,26 @@ pub fn review_report(
 }
 
 /// Failed checks, warnings, data-integrity findings and `[reported]` discrepancies (each with its
-/// mistake named).
-fn assessment_notes(eval: &Evaluation, a: &Assessment, reported: &[ReportedValue]) -> Vec<Note> {
+/// mistake named), from the survey-level findings `checks` and each run's (`runs`, by run id).
+fn assessment_notes(
+    eval: &Evaluation,
+    checks: &[Finding],
+    runs: &[(&String, &[Finding])],
+    reported: &[ReportedValue],
+) -> Vec<Note> {
     let mut notes = Vec::new();
     let mut warnings = Vec::new();
-    let runs = a
-        .runs
+    let runs = runs
         .iter()
-        .flat_map(|r| r.checks.iter().map(move |f| (Some(&r.id), f)));
+        .flat_map(|(id, checks)| checks.iter().map(move |f| (Some(*id), f)));
     // the reported-values check yields one finding per reported value, in order
-    let judged: Vec<_> = a.checks.iter().filter(|f| f.id == REPORTED_CHECK).collect();
+    let judged: Vec<_> = checks.iter().filter(|f| f.id == REPORTED_CHECK).collect();
     let paired = judged.len() == reported.len()
         && reported
             .iter()
             .zip(&judged)
             .all(|(v, f)| f.subject.as_deref() == Some(subject(v).as_str()));
-    for (run, f) in a.checks.iter().map(|f| (None, f)).chain(runs) {
+    for (run, f) in checks.iter().map(|f| (None, f)).chain(runs) {
         if paired && f.id == REPORTED_CHECK {
             continue; // judged below, with the mistake named
         }
