@@ -36,6 +36,7 @@ use crate::units::Unit;
 use instruments::Instruments;
 use integrity::ReportedValue;
 use serde::Serialize;
+use std::borrow::Cow;
 use std::fmt;
 
 /// The family a finding belongs to.
@@ -110,11 +111,12 @@ impl fmt::Display for Status {
 /// table's units by [`Message::render`].
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Finding {
-    pub id: String,
+    /// The check's id (the registry's own words: not copied per finding).
+    pub id: Cow<'static, str>,
     pub group: Group,
     pub status: Status,
     pub message: Message,
-    pub source: String,
+    pub source: Cow<'static, str>,
     pub measured: Option<f64>,
     pub unit: &'static str,
     pub limit: Message,
@@ -791,11 +793,11 @@ impl<'a> Rule<'a> {
             message.push(" [limit from memory, not yet confirmed against the standard]");
         }
         Finding {
-            id: self.def.id.to_string(),
+            id: Cow::Borrowed(self.def.id),
             group: self.def.group,
             status,
             message: Message::new(message, self.table),
-            source: self.def.source.to_string(),
+            source: Cow::Borrowed(self.def.source),
             measured: measured.filter(|m| m.is_finite()),
             unit,
             limit: Message::new(self.limit_text(computed), self.table),

@@ -572,7 +572,8 @@ fn point_count(rule: &Rule, s: &Subject) -> Vec<Finding> {
         "{}: {}",
         req.framework,
         point_count_source(s.survey.convention)
-    );
+    )
+    .into();
     vec![f]
 }
 

@@ -84,12 +84,12 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                     vec![
                         run.unwrap_or("").to_string(),
                         format!("{:?}", f.group).to_lowercase(),
-                        f.id.clone(),
+                        f.id.to_string(),
                         f.status.name().to_string(),
                         f.measured.map(|m| format!("{m}")).unwrap_or_default(),
                         f.unit.to_string(),
                         f.limit.render(&units),
-                        f.source.clone(),
+                        f.source.to_string(),
                         f.message.render(&units),
                     ]
                 })
@@ -131,7 +131,7 @@ pub fn run(args: CheckArgs, ctx: &Ctx) -> Result<i32, Error> {
                         run.unwrap_or("").to_string(),
                         match &f.subject {
                             Some(s) => format!("{} ({s})", f.id),
-                            None => f.id.clone(),
+                            None => f.id.to_string(),
                         },
                         msg,
                     ]);

@@ -431,11 +431,12 @@ fn ordered_readings<'a>(
     // Readings in layout order.
     let mut ordered: Vec<(&crate::layout::Point, &Reading)> =
         Vec::with_capacity(layout.total_points());
-    for p in layout.points() {
-        let r = readings
-            .readings
-            .iter()
-            .find(|r| r.line == p.line && r.point == p.point)
+    for (k, p) in layout.points().iter().enumerate() {
+        let here = |r: &&Reading| r.line == p.line && r.point == p.point;
+        // the k-th reading first (readings are usually in layout order, and matched to the
+        // layout without repeats), then a search
+        let r = (readings.readings.get(k).filter(here))
+            .or_else(|| readings.readings.iter().find(here))
             .ok_or_else(|| FlowError::Reading {
                 line: p.line.clone(),
                 point: p.point,

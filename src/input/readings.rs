@@ -788,11 +788,15 @@ pub fn label_lines(run: &mut RunReadings, layout: &Layout) -> Result<(), Diagnos
 pub fn match_to_layout(run: &RunReadings, layout: &Layout) -> Result<(), Error> {
     let mut diags = Diagnostics::new();
     let mut seen = vec![None::<usize>; layout.total_points()];
-    for r in &run.readings {
-        let idx = layout
-            .points()
-            .iter()
-            .position(|p| p.line == r.line && p.point == r.point);
+    let points = layout.points();
+    for (k, r) in run.readings.iter().enumerate() {
+        let here = |p: &crate::layout::Point| p.line == r.line && p.point == r.point;
+        // readings are usually written in layout order: the k-th point first, then a search
+        // (a search per reading was quadratic in the points of a run)
+        let idx = match points.get(k) {
+            Some(p) if here(p) => Some(k),
+            _ => points.iter().position(here),
+        };
         match idx {
             None => diags.push(
                 Diagnostic::new(format!(

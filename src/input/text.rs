@@ -8,8 +8,13 @@ pub use toml::Spanned;
 pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
     let offset = offset.min(text.len());
     let before = &text[..text.floor_char_boundary(offset)];
-    let line = before.matches('\n').count() + 1;
-    let line_start = before.rfind('\n').map(|i| i + 1).unwrap_or(0);
+    // counted byte by byte (a newline is one byte in UTF-8): the compiler vectorises this
+    let line = before.bytes().filter(|&b| b == b'\n').count() + 1;
+    let line_start = before
+        .bytes()
+        .rposition(|b| b == b'\n')
+        .map(|i| i + 1)
+        .unwrap_or(0);
     let column = before[line_start..].chars().count() + 1;
     (line, column)
 }

@@ -82,7 +82,7 @@ impl<'a> TomlDoc<'a> {
     pub fn root(&self) -> Table<'_> {
         Table {
             doc: self,
-            path: String::new(),
+            path: std::rc::Rc::from(""),
             table: self.root.get_ref(),
             span: 0..0,
             asked: RefCell::new(Vec::new()),
@@ -165,7 +165,8 @@ pub struct Field<'d> {
     /// Span of the key (the value's own for array items).
     pub key_span: Range<usize>,
     key: &'d str,
-    parent: String,
+    /// The dotted path of the table it is in (shared: a field is made for every key read).
+    parent: std::rc::Rc<str>,
 }
 
 impl<'d> Field<'d> {
@@ -198,12 +199,11 @@ impl<'d> Field<'d> {
 
     /// A quantity string of `dimension` in SI, or a recorded problem.
     pub fn quantity(&self, dimension: Dimension) -> Option<f64> {
-        let path = self.path();
         match self.value {
             DeValue::String(s) => match parse_quantity(s, dimension) {
                 Ok(x) => Some(x),
                 Err(e) => {
-                    self.error(format!("`{path}`: {e}"), Some(e.hint()));
+                    self.error(format!("`{}`: {e}", self.path()), Some(e.hint()));
                     None
                 }
             },
@@ -422,7 +422,7 @@ impl<'d> Field<'d> {
         match self.value {
             DeValue::Table(t) => Some(Table {
                 doc: self.doc,
-                path: self.path(),
+                path: self.path().into(),
                 table: t,
                 span: self.span.clone(),
                 asked: RefCell::new(Vec::new()),
@@ -463,7 +463,7 @@ impl<'d> Field<'d> {
 pub struct Table<'d> {
     doc: &'d TomlDoc<'d>,
     /// Dotted path of the table (`gas.method4`); empty for the top level.
-    path: String,
+    path: std::rc::Rc<str>,
     table: &'d DeTable<'d>,
     /// The table's header (`[gas]`), or the inline table.
     span: Range<usize>,
@@ -539,9 +539,14 @@ impl<'d> Table<'d> {
     /// The value of a key this table must have; a missing one is recorded with `example` as
     /// the hint's value (`"29.92 inHg"`, `0.84` …).
     pub fn required(&self, key: &str, example: &str) -> Option<Field<'d>> {
+        self.required_with(key, || example.to_string())
+    }
+
+    /// [`Table::required`] with the example built only when the key is missing.
+    fn required_with(&self, key: &str, example: impl FnOnce() -> String) -> Option<Field<'d>> {
         let f = self.get(key);
         if f.is_none() {
-            self.missing(key, example);
+            self.missing(key, &example());
         }
         f
     }
@@ -587,7 +592,7 @@ impl<'d> Table<'d> {
 
     /// A required quantity of `dimension`, SI.
     pub fn quantity(&self, key: &str, dimension: Dimension) -> Option<f64> {
-        self.required(key, &format!("\"{}\"", dimension.example()))?
+        self.required_with(key, || format!("\"{}\"", dimension.example()))?
             .quantity(dimension)
     }
 
@@ -603,7 +608,7 @@ impl<'d> Table<'d> {
         dimension: Dimension,
         range: crate::plausibility::Range,
     ) -> Option<f64> {
-        self.required(key, &format!("\"{}\"", dimension.example()))?
+        self.required_with(key, || format!("\"{}\"", dimension.example()))?
             .quantity_in(dimension, range)
     }
 
@@ -638,7 +643,8 @@ impl<'d> Table<'d> {
 
     /// A required date; `example` (`2026-10-14`) for the hints.
     pub fn date(&self, key: &str, example: &str) -> Option<NaiveDate> {
-        self.required(key, &format!("\"{example}\""))?.date(example)
+        self.required_with(key, || format!("\"{example}\""))?
+            .date(example)
     }
 
     /// An optional date; `example` for the hint.
@@ -648,11 +654,13 @@ impl<'d> Table<'d> {
 
     /// A required choice among `options`.
     pub fn choice<T: Copy>(&self, key: &str, options: &[(&str, T)]) -> Option<T> {
-        let example = options
-            .first()
-            .map(|(n, _)| format!("\"{n}\""))
-            .unwrap_or_default();
-        self.required(key, &example)?.choice(options)
+        let example = || {
+            options
+                .first()
+                .map(|(n, _)| format!("\"{n}\""))
+                .unwrap_or_default()
+        };
+        self.required_with(key, example)?.choice(options)
     }
 
     /// An optional choice among `options`; `default` when the key is absent, `None` after a
@@ -762,6 +770,9 @@ impl<'d> Table<'d> {
             .iter()
             .filter(|(k, _)| !asked.iter().any(|a| a == k.get_ref().as_ref()))
             .collect();
+        if unknown.is_empty() {
+            return;
+        }
         unknown.sort_by_key(|(k, _)| k.span().start);
         let mut known: Vec<&str> = asked.iter().map(String::as_str).collect();
         known.sort_unstable();

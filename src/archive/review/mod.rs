@@ -800,18 +800,20 @@ fn assessment_notes(
         }
         match (f.status, f.group) {
             (Status::Fail | Status::Warn, Group::Data) => notes.push(Note::Integrity {
-                id: f.id.clone(),
+                id: f.id.to_string(),
                 run: run.cloned(),
                 subject: f.subject.clone(),
                 message: f.message.to_string(),
             }),
             (Status::Fail, _) => notes.push(Note::FailedCheck {
-                id: f.id.clone(),
+                id: f.id.to_string(),
                 run: run.cloned(),
                 subject: f.subject.clone(),
                 message: f.message.to_string(),
             }),
-            (Status::Warn, _) if !warnings.contains(&f.id) => warnings.push(f.id.clone()),
+            (Status::Warn, _) if !warnings.iter().any(|w| *w == f.id) => {
+                warnings.push(f.id.to_string())
+            }
             _ => {}
         }
     }

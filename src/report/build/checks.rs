@@ -21,7 +21,7 @@ pub(super) fn section(job: &Job) -> ChecksSection {
             status: status(f.status),
             measured: measured(job, f),
             limit: f.limit.to_string(),
-            source: f.source.clone(),
+            source: f.source.to_string(),
             message: message(f),
         })
         .collect();
@@ -63,7 +63,7 @@ fn group_name(g: Group) -> &'static str {
 fn id_text(f: &Finding) -> String {
     match &f.subject {
         Some(sub) => format!("{} ({sub})", f.id),
-        None => f.id.clone(),
+        None => f.id.to_string(),
     }
 }
 
@@ -86,7 +86,7 @@ fn matrix_rows(job: &Job) -> (Vec<MatrixRow>, Vec<String>) {
     let mut ids: Vec<&str> = Vec::new();
     for r in &job.a.runs {
         for f in &r.checks {
-            if !ids.contains(&f.id.as_str()) {
+            if !ids.contains(&f.id.as_ref()) {
                 ids.push(&f.id);
             }
         }
@@ -119,7 +119,7 @@ fn matrix_rows(job: &Job) -> (Vec<MatrixRow>, Vec<String>) {
             group: group_name(first.group).into(),
             id: id.to_string(),
             limit: first.limit.to_string(),
-            source: first.source.clone(),
+            source: first.source.to_string(),
             cells: found
                 .iter()
                 .map(|(_, f)| match f {
