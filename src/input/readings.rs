@@ -121,7 +121,58 @@ fn to_dp(unit: &Unit, v: f64) -> Dp {
 }
 
 /// A CSV record (or why it could not be read) with its 1-based line number.
-pub(crate) type CsvRow = (usize, Result<csv::StringRecord, String>);
+pub(crate) type CsvRow<'t> = (usize, Result<Cells<'t>, String>);
+
+/// The trimmed cells of one CSV record.
+#[derive(Debug, Clone, Default)]
+pub(crate) struct Cells<'t>(CellsInner<'t>);
+
+#[derive(Debug, Clone)]
+enum CellsInner<'t> {
+    /// Split straight from the text (a file without quotes has nothing to unescape).
+    Split(Vec<&'t str>),
+    /// Read by the csv crate.
+    Record(csv::StringRecord),
+}
+
+impl Default for CellsInner<'_> {
+    fn default() -> Self {
+        CellsInner::Split(Vec::new())
+    }
+}
+
+impl<'t> Cells<'t> {
+    /// How many cells the record has.
+    pub fn len(&self) -> usize {
+        match &self.0 {
+            CellsInner::Split(v) => v.len(),
+            CellsInner::Record(r) => r.len(),
+        }
+    }
+
+    /// Cell `i`, if the record has it.
+    pub fn get(&self, i: usize) -> Option<&str> {
+        match &self.0 {
+            CellsInner::Split(v) => v.get(i).copied(),
+            CellsInner::Record(r) => r.get(i),
+        }
+    }
+
+    /// The cells in order.
+    pub fn iter(&self) -> impl Iterator<Item = &str> + '_ {
+        (0..self.len()).map(|i| self.get(i).unwrap_or_default())
+    }
+}
+
+impl std::ops::Index<usize> for Cells<'_> {
+    type Output = str;
+    fn index(&self, i: usize) -> &str {
+        match &self.0 {
+            CellsInner::Split(v) => v[i],
+            CellsInner::Record(r) => &r[i],
+        }
+    }
+}
 
 /// The records of a CSV text with their 1-based line numbers, header first; comment (`#`) and
 /// blank lines are skipped and fields trimmed. A file without a quote character is split
@@ -129,8 +180,9 @@ pub(crate) type CsvRow = (usize, Result<csv::StringRecord, String>);
 /// such a file has no escapes to interpret. Anything quoted goes through the csv crate. At most
 /// `max_records` records are returned (the header included); the caller compares the count with
 /// its limit, so a huge file is never held whole as records.
-pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow> {
-    if !text.contains('"') {
+pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow<'_>> {
+    if !text.as_bytes().contains(&b'"') {
+        let mut width = 0;
         return text
             .lines()
             .enumerate()
@@ -138,11 +190,17 @@ pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow> {
             .take(max_records)
             .map(|(i, l)| {
                 let l = l.trim_end_matches('\r');
-                let mut rec = csv::StringRecord::with_capacity(l.len(), 8);
-                for field in l.split(',') {
-                    rec.push_field(field.trim());
+                // split at the comma bytes (a comma is one byte in UTF-8, never inside another
+                // character); each row is sized like the one before it
+                let mut cells = Vec::with_capacity(width.max(4));
+                let mut start = 0;
+                for (j, _) in l.bytes().enumerate().filter(|(_, b)| *b == b',') {
+                    cells.push(l[start..j].trim());
+                    start = j + 1;
                 }
-                (i + 1, Ok(rec))
+                cells.push(l[start..].trim());
+                width = cells.len();
+                (i + 1, Ok(Cells(CellsInner::Split(cells))))
             })
             .collect();
     }
@@ -191,7 +249,7 @@ pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow> {
         let row = match r {
             Ok(rec) => {
                 let line = rec.position().map(|p| line_at(p.byte())).unwrap_or(0);
-                (line, Ok(rec))
+                (line, Ok(Cells(CellsInner::Record(rec))))
             }
             Err(e) => {
                 let line = e.position().map(|p| line_at(p.byte())).unwrap_or(0);
@@ -207,7 +265,7 @@ pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow> {
 
 /// The rows of a readings file, at most [`MAX_READING_ROWS`] data rows after the header; more is
 /// an error naming the limit.
-fn limited_rows(file: &str, text: &str) -> Result<Vec<CsvRow>, Error> {
+fn limited_rows<'t>(file: &str, text: &'t str) -> Result<Vec<CsvRow<'t>>, Error> {
     let rows = csv_rows(text, MAX_READING_ROWS + 2);
     if rows.len() > MAX_READING_ROWS + 1 {
         return Err(Error::input(
@@ -223,7 +281,7 @@ fn limited_rows(file: &str, text: &str) -> Result<Vec<CsvRow>, Error> {
 
 /// A header that names none of the columns a readings file has is a file of some other kind (a
 /// wrong path): it is reported without quoting its text, which is not ours to echo.
-fn foreign_header(file: &str, line: usize, headers: &csv::StringRecord) -> Option<Error> {
+fn foreign_header(file: &str, line: usize, headers: &Cells) -> Option<Error> {
     let ours = headers.iter().any(|h| {
         let name = h.split('[').next().unwrap_or("").trim();
         matches!(
@@ -267,14 +325,14 @@ pub fn holds_readings(text: &str) -> bool {
 }
 
 /// The header record: its line in the file and its cells.
-fn header_record(file: &str, first: Option<CsvRow>) -> Result<(usize, csv::StringRecord), Error> {
+fn header_record<'t>(file: &str, first: Option<CsvRow<'t>>) -> Result<(usize, Cells<'t>), Error> {
     match first {
         Some((line, Ok(h))) => Ok((line, h)),
         Some((_, Err(e))) => Err(Error::input(
             Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
                 .at(Location::file(file)),
         )),
-        None => Ok((1, csv::StringRecord::new())),
+        None => Ok((1, Cells::default())),
     }
 }
 
@@ -283,7 +341,7 @@ fn header_record(file: &str, first: Option<CsvRow>) -> Result<(usize, csv::Strin
 fn columns(
     file: &str,
     line: usize,
-    headers: &csv::StringRecord,
+    headers: &Cells,
     wall: bool,
 ) -> Result<Vec<(usize, Col)>, Error> {
     let same = |a: &Col, b: &Col| std::mem::discriminant(a) == std::mem::discriminant(b);
@@ -461,8 +519,8 @@ fn parse_rows_with(
 fn row_reading(
     file: &str,
     line_no: usize,
-    rec: &csv::StringRecord,
-    headers: &csv::StringRecord,
+    rec: &Cells,
+    headers: &Cells,
     cols: &[(usize, Col)],
 ) -> Result<Option<(Reading, Option<f64>)>, Diagnostics> {
     let mut diags = Diagnostics::new();

@@ -156,12 +156,16 @@ struct Columns {
 struct RowPlace<'a> {
     file: &'a str,
     line: usize,
-    header: &'a csv::StringRecord,
+    header: &'a super::readings::Cells<'a>,
 }
 
 impl Columns {
     /// Reads and checks the header: every problem of it in one pass.
-    fn read(file: &str, header_line: usize, header: &csv::StringRecord) -> Result<Columns, Error> {
+    fn read(
+        file: &str,
+        header_line: usize,
+        header: &super::readings::Cells,
+    ) -> Result<Columns, Error> {
         let mut diags = Diagnostics::new();
         let mut cols = Vec::new();
         for (i, h) in header.iter().enumerate() {
@@ -267,7 +271,7 @@ impl Columns {
     fn terminal(
         &self,
         at: &RowPlace<'_>,
-        rec: &csv::StringRecord,
+        rec: &super::readings::Cells,
         diags: &mut Diagnostics,
     ) -> Option<TerminalSpec> {
         let (file, line, header) = (at.file, at.line, at.header);
