@@ -143,9 +143,10 @@ fn absolute(cwd: &Path, p: &Path) -> PathBuf {
 }
 
 /// Reads a file a survey names if it lies inside the reviewed folder `root` (absolute): by name,
-/// and, when the file itself is a symbolic link, by where the link leads. The `lstat` that looks
-/// for a link is also the look at the file's type before it is opened, when it is no link.
-/// `shown` is the folder as the user named it, for the message.
+/// and, when the file itself is a symbolic link, by where the link leads. A plain file is opened
+/// without following a link ([`crate::input::fs::read_unless_link`]); a link, or a path that
+/// does not open, is looked at with `lstat` first. `shown` is the folder as the user named it,
+/// for the message.
 fn read_inside(
     root: &Path,
     shown: &str,
@@ -164,6 +165,11 @@ fn read_inside(
     };
     if !abs.starts_with(root) {
         return outside();
+    }
+    // the common case, a plain file: one lookup (a link, or any problem, is looked at below)
+    #[cfg(unix)]
+    if let Some(read) = crate::input::fs::read_unless_link(p, cap) {
+        return capped(read, cap);
     }
     match std::fs::symlink_metadata(&abs) {
         Ok(m) if m.file_type().is_symlink() => {

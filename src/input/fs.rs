@@ -125,6 +125,38 @@ fn open_regular(path: &Path, meta: &std::fs::Metadata) -> io::Result<(std::fs::F
     Ok((file, meta.len()))
 }
 
+/// Reads `path` within `limit` with one path lookup, when it opens as no symbolic link: `None`
+/// when the open fails for any reason (a link, a missing file, a socket …), for the caller to
+/// look at the path and word the problem as usual.
+///
+/// `review` reads tens of thousands of small files; looking at each path before opening it was
+/// a second lookup per file, about a tenth of review's time. The file is opened non-blocking
+/// (a FIFO cannot hang), not as a controlling terminal, and not through a final symbolic link
+/// (which review must resolve and place first); its type is looked at on the open file, before
+/// anything is read. What the earlier look also spared, opening a device node that sits in the
+/// reviewed folder itself, is given up for this: making one takes administrator rights.
+#[cfg(unix)]
+pub fn read_unless_link(path: &Path, limit: u64) -> Option<io::Result<Vec<u8>>> {
+    use std::os::unix::fs::OpenOptionsExt;
+    let mut options = std::fs::OpenOptions::new();
+    options
+        .read(true)
+        .custom_flags(libc::O_NONBLOCK | libc::O_NOFOLLOW | libc::O_NOCTTY);
+    let file = options.open(path).ok()?;
+    let read = || {
+        let meta = file.metadata()?;
+        if let Some(what) = special_kind(&meta) {
+            return Err(special_file_error(what));
+        }
+        if meta.len() > limit {
+            return Err(too_large(Some(meta.len()), limit));
+        }
+        let len = meta.len();
+        read_regular(file, limit, len)
+    };
+    Some(read())
+}
+
 /// [`read_limited`] for a path whose `stat` (or symlink-free `lstat`) the caller already holds,
 /// as `review` does when it checks where a file lies: one system call fewer per file.
 pub fn read_limited_after(
