@@ -119,11 +119,103 @@ pub struct Finding {
     pub source: Cow<'static, str>,
     pub measured: Option<f64>,
     pub unit: &'static str,
-    pub limit: Message,
+    pub limit: LimitWords,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub subject: Option<String>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub setting: Option<Message>,
+}
+
+/// The most limits one check has (the registry is checked against it).
+pub const MAX_LIMITS: usize = 4;
+
+/// A finding's limits in words (`mean |yaw| ≤ 20°`), worded only when printed: a check states
+/// its limit in every finding, and most findings are never read (`review` prints only what
+/// fails or warns).
+#[derive(Debug, Clone, PartialEq)]
+pub struct LimitWords(LimitInner);
+
+#[derive(Debug, Clone, PartialEq)]
+enum LimitInner {
+    /// A check's own criterion and limits with the values in force (`None`: a computed limit
+    /// with no value, worded by what it is computed from).
+    Rule {
+        criterion: &'static str,
+        specs: &'static [LimitSpec],
+        values: [Option<f64>; MAX_LIMITS],
+        table: DisplayTable,
+    },
+    /// Words a check set itself.
+    Words(Message),
+}
+
+impl LimitWords {
+    /// Words a check sets itself in place of its limits.
+    pub fn words(text: impl Into<Text>, table: DisplayTable) -> LimitWords {
+        LimitWords(LimitInner::Words(Message::new(text, table)))
+    }
+
+    /// The words as a [`Text`].
+    pub fn text(&self) -> Text {
+        match &self.0 {
+            LimitInner::Words(m) => m.text().clone(),
+            LimitInner::Rule {
+                criterion,
+                specs,
+                values,
+                ..
+            } => {
+                let criterion = (!criterion.is_empty()).then(|| Text::from(*criterion));
+                Text::join(
+                    criterion
+                        .into_iter()
+                        .chain(
+                            specs
+                                .iter()
+                                .zip(values)
+                                .map(|(spec, v)| match (v, spec.default) {
+                                    (Some(v), _) => spec.words(limit_arg(*v, spec.kind)),
+                                    (None, LimitDefault::Computed(what)) => spec.words(what.into()),
+                                    (None, LimitDefault::Fixed(d)) => {
+                                        spec.words(limit_arg(d, spec.kind))
+                                    }
+                                }),
+                        ),
+                    "; ",
+                )
+            }
+        }
+    }
+
+    /// The words in another table's units.
+    pub fn render(&self, table: &DisplayTable) -> String {
+        self.text().render(table)
+    }
+
+    fn table(&self) -> &DisplayTable {
+        match &self.0 {
+            LimitInner::Words(m) => m.table(),
+            LimitInner::Rule { table, .. } => table,
+        }
+    }
+}
+
+impl fmt::Display for LimitWords {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.render(self.table()))
+    }
+}
+
+impl PartialEq<&str> for LimitWords {
+    fn eq(&self, other: &&str) -> bool {
+        self.render(self.table()) == *other
+    }
+}
+
+impl Serialize for LimitWords {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.collect_str(self)
+    }
 }
 
 /// What a check is judged over.
@@ -690,32 +782,33 @@ impl<'a> Rule<'a> {
         limit_arg(v, spec.kind)
     }
 
+    /// The limits with the values in force (`computed` fills computed defaults), to be worded
+    /// when printed.
+    pub fn limit_words(&self, computed: &[(&str, f64)]) -> LimitWords {
+        let mut values = [None; MAX_LIMITS];
+        for (slot, spec) in values.iter_mut().zip(self.def.limits) {
+            *slot = match spec.default {
+                LimitDefault::Fixed(_) => Some(self.value(spec.key)),
+                LimitDefault::Computed(_) => self.set_value(spec.key).or_else(|| {
+                    computed
+                        .iter()
+                        .find(|(k, _)| *k == spec.key)
+                        .map(|(_, v)| *v)
+                }),
+            };
+        }
+        debug_assert!(self.def.limits.len() <= MAX_LIMITS);
+        LimitWords(LimitInner::Rule {
+            criterion: self.def.criterion,
+            specs: &self.def.limits[..self.def.limits.len().min(MAX_LIMITS)],
+            values,
+            table: self.table,
+        })
+    }
+
     /// The limits in words with the values in force (`computed` fills computed defaults).
     pub fn limit_text(&self, computed: &[(&str, f64)]) -> Text {
-        let criterion = (!self.def.criterion.is_empty()).then(|| Text::from(self.def.criterion));
-        Text::join(
-            criterion
-                .into_iter()
-                .chain(self.def.limits.iter().filter_map(|spec| {
-                    let v = match spec.default {
-                        LimitDefault::Fixed(_) => Some(self.value(spec.key)),
-                        LimitDefault::Computed(what) => {
-                            let v = self.set_value(spec.key).or_else(|| {
-                                computed
-                                    .iter()
-                                    .find(|(k, _)| *k == spec.key)
-                                    .map(|(_, v)| *v)
-                            });
-                            if v.is_none() {
-                                return Some(spec.words(what.into()));
-                            }
-                            v
-                        }
-                    }?;
-                    Some(spec.words(self.format(spec, v)))
-                })),
-            "; ",
-        )
+        self.limit_words(computed).text()
     }
 
     /// How the survey changed this check, in words, e.g. "limit relaxed from 20° to 25°: …".
@@ -800,7 +893,7 @@ impl<'a> Rule<'a> {
             source: Cow::Borrowed(self.def.source),
             measured: measured.filter(|m| m.is_finite()),
             unit,
-            limit: Message::new(self.limit_text(computed), self.table),
+            limit: self.limit_words(computed),
             subject: None,
             setting: setting.map(|s| Message::new(s, self.table)),
         }
@@ -908,6 +1001,18 @@ pub(crate) mod testkit;
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn no_check_has_more_limits_than_a_finding_keeps() {
+        for def in REGISTRY.iter() {
+            assert!(
+                def.limits.len() <= MAX_LIMITS,
+                "{} has {} limits; LimitWords keeps {MAX_LIMITS}",
+                def.id,
+                def.limits.len()
+            );
+        }
+    }
 
     #[test]
     fn registry_ids_are_unique_kebab_case_and_described() {

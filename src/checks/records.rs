@@ -257,7 +257,7 @@ fn instrument_calibration(rule: &Rule, s: &Subject) -> Vec<Finding> {
             None => continue,
         };
         if let Some(own) = interval_months {
-            f.limit = crate::display::Message::new(
+            f.limit = super::LimitWords::words(
                 text!(
                     "calibrated within {} months before the test (the instrument's stated interval)",
                     *own
