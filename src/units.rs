@@ -585,6 +585,12 @@ pub fn parse_number(text: &str) -> Option<f64> {
     if t.is_empty() {
         return None;
     }
+    // the common case, a plain decimal (`0.385`, `-6`, `1.2e3`): straight to the parser
+    if t.bytes()
+        .all(|b| b.is_ascii_digit() || matches!(b, b'.' | b'-' | b'+' | b'e' | b'E'))
+    {
+        return t.parse().ok();
+    }
     if let Some((whole, frac)) = t
         .split_once('-')
         .filter(|(w, f)| !w.is_empty() && f.contains('/') && w.chars().all(|c| c.is_ascii_digit()))

@@ -270,8 +270,8 @@ fn dp_si(r: &Reading) -> f64 {
 }
 
 fn identical_sequences(rule: &Rule, s: &Subject) -> Vec<Finding> {
-    // (label, Δp sequence in point order)
-    let mut lines: Vec<(String, Vec<f64>)> = Vec::new();
+    // (run id, line label, Δp sequence in point order)
+    let mut lines: Vec<(&str, &str, Vec<f64>)> = Vec::new();
     for run in &s.runs {
         let mut labels: Vec<&str> = Vec::new();
         for p in &run.result.points {
@@ -288,16 +288,18 @@ fn identical_sequences(rule: &Rule, s: &Subject) -> Vec<Finding> {
                 .map(|p| p.dp_pa)
                 .collect();
             if seq.len() >= MIN_SEQUENCE {
-                lines.push((format!("run {} line {l}", run.spec.id), seq));
+                lines.push((&run.spec.id, l, seq));
             }
         }
     }
     let mut pairs = Vec::new();
     for i in 0..lines.len() {
         for j in i + 1..lines.len() {
-            let (a, b) = (&lines[i].1, &lines[j].1);
+            let ((run_a, line_a, a), (run_b, line_b, b)) = (&lines[i], &lines[j]);
             if a.len() == b.len() && a.iter().zip(b).all(|(x, y)| same(*x, *y)) {
-                pairs.push(Text::from(format!("{} = {}", lines[i].0, lines[j].0)));
+                pairs.push(Text::from(format!(
+                    "run {run_a} line {line_a} = run {run_b} line {line_b}"
+                )));
             }
         }
     }

@@ -161,7 +161,7 @@ fn parse_override(def: &'static checks::CheckDef, t: &Table, entry: &Field) -> O
     match Override::new(def, enabled, reason, limits) {
         Ok(o) => Some(o),
         Err(e) => {
-            let at = e.key.as_deref().and_then(|k| t.get(k));
+            let at = e.key.as_deref().and_then(|k| t.get_named(k));
             let (span, key) = match &at {
                 Some(f) => (f.key_span.clone(), f.path()),
                 None => (entry.key_span.clone(), entry.path()),
@@ -213,7 +213,7 @@ fn limit_value(f: &Field, kind: LimitKind) -> Option<f64> {
 }
 
 /// A non-negative quantity (accuracies, resolutions).
-fn bound(t: &Table, key: &str, dim: Dimension) -> Option<f64> {
+fn bound(t: &Table, key: &'static str, dim: Dimension) -> Option<f64> {
     let f = t.get(key)?;
     let x = f.quantity(dim)?;
     if x >= 0.0 {
@@ -228,7 +228,7 @@ fn bound(t: &Table, key: &str, dim: Dimension) -> Option<f64> {
 }
 
 /// A fraction between 0 and 100 %.
-fn fraction(t: &Table, key: &str) -> Option<f64> {
+fn fraction(t: &Table, key: &'static str) -> Option<f64> {
     let x = bound(t, key, Dimension::Fraction)?;
     if x <= 1.0 {
         return Some(x);
@@ -242,7 +242,7 @@ fn fraction(t: &Table, key: &str) -> Option<f64> {
     None
 }
 
-fn positive_number(t: &Table, key: &str) -> Option<f64> {
+fn positive_number(t: &Table, key: &'static str) -> Option<f64> {
     let f = t.get(key)?;
     let x = f.number()?;
     if x > 0.0 {

@@ -187,7 +187,7 @@ pub fn load_system_from(inputs: &[SystemInput]) -> Result<LoadedSystem, Error> {
 }
 
 /// A ± tolerance on percent of design (`"10 %"`) with its optional reason.
-fn tolerance(t: &Table, key: &str) -> Option<Option<Tolerance>> {
+fn tolerance(t: &Table, key: &'static str) -> Option<Option<Tolerance>> {
     let Some(f) = t.get(key) else {
         if let Some(r) = t.get("tolerance_reason") {
             r.error(

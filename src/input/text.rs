@@ -19,6 +19,33 @@ pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
     (line, column)
 }
 
+/// Where the lines of a text start, for many [`line_column`] look-ups in one text (a survey
+/// locates each run's readings file whether or not it can be read).
+#[derive(Debug, Clone, Default)]
+pub struct LineStarts(Vec<usize>);
+
+impl LineStarts {
+    pub fn of(text: &str) -> LineStarts {
+        let mut starts = vec![0];
+        starts.extend(
+            text.bytes()
+                .enumerate()
+                .filter(|(_, b)| *b == b'\n')
+                .map(|(i, _)| i + 1),
+        );
+        LineStarts(starts)
+    }
+
+    /// [`line_column`] of `offset` in `text` (the text this was made of).
+    pub fn line_column(&self, text: &str, offset: usize) -> (usize, usize) {
+        let offset = text.floor_char_boundary(offset.min(text.len()));
+        // the last line start at or before the offset
+        let line = self.0.partition_point(|&s| s <= offset);
+        let start = self.0[line - 1];
+        (line, text[start..offset].chars().count() + 1)
+    }
+}
+
 /// A TOML value as the text a user wrote: strings unquoted, dates and numbers as printed.
 pub fn toml_text(v: &toml::Value) -> String {
     match v {
@@ -44,6 +71,27 @@ pub fn span_location(file: &str, text: &str, offset: usize) -> Location {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn line_starts_agree_with_line_column_everywhere() {
+        for t in [
+            "",
+            "a",
+            "ab\ncdé\nf",
+            "\n\nx\n",
+            "é\r\nü\n\n",
+            "x = 1\n[run]\nid = \"é\"\n",
+        ] {
+            let idx = LineStarts::of(t);
+            for off in 0..t.len() + 3 {
+                assert_eq!(
+                    idx.line_column(t, off),
+                    line_column(t, off),
+                    "{t:?} at {off}"
+                );
+            }
+        }
+    }
 
     #[test]
     fn positions_are_one_based() {

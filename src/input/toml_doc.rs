@@ -21,6 +21,7 @@ use super::text::span_location;
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::units::{parse_quantity, Dimension, UnitError};
 use chrono::NaiveDate;
+use std::borrow::Cow;
 use std::cell::RefCell;
 use std::ops::Range;
 use toml::de::{DeTable, DeValue};
@@ -36,6 +37,8 @@ pub struct TomlDoc<'a> {
     guide: &'static str,
     root: Spanned<DeTable<'a>>,
     diags: RefCell<Diagnostics>,
+    /// Line starts, found on the first location asked for.
+    lines: std::cell::OnceCell<super::text::LineStarts>,
 }
 
 impl<'a> TomlDoc<'a> {
@@ -69,6 +72,7 @@ impl<'a> TomlDoc<'a> {
             guide: "sample-data/ has complete examples",
             root,
             diags: RefCell::new(Diagnostics::new()),
+            lines: std::cell::OnceCell::new(),
         })
     }
 
@@ -96,7 +100,11 @@ impl<'a> TomlDoc<'a> {
 
     /// The location of byte `span.start`, with `key` as context.
     pub fn location(&self, span: Range<usize>, key: &str) -> Location {
-        let at = span_location(self.file, self.text, span.start);
+        let lines = self
+            .lines
+            .get_or_init(|| super::text::LineStarts::of(self.text));
+        let (line, column) = lines.line_column(self.text, span.start);
+        let at = Location::at(self.file, line, column);
         if key.is_empty() {
             at
         } else {
@@ -468,7 +476,7 @@ pub struct Table<'d> {
     /// The table's header (`[gas]`), or the inline table.
     span: Range<usize>,
     /// Keys a parser asked for: every other key present is unknown.
-    asked: RefCell<Vec<String>>,
+    asked: RefCell<Vec<Cow<'static, str>>>,
 }
 
 impl<'d> Table<'d> {
@@ -497,7 +505,7 @@ impl<'d> Table<'d> {
     }
 
     /// The dotted path of `key` in this table.
-    pub fn key_path(&self, key: &str) -> String {
+    pub fn key_path(&self, key: &'static str) -> String {
         join(&self.path, key)
     }
 
@@ -505,18 +513,25 @@ impl<'d> Table<'d> {
     pub fn allow(&self, keys: &[&str]) {
         self.asked
             .borrow_mut()
-            .extend(keys.iter().map(|k| k.to_string()));
+            .extend(keys.iter().map(|k| Cow::Owned(k.to_string())));
     }
 
     /// The value of `key` without asking for it (the key is not marked as known, nothing is
     /// checked): for a parser that only glances at a table another parser reads.
-    pub fn peek(&self, key: &str) -> Option<&'d DeValue<'d>> {
+    pub fn peek(&self, key: &'static str) -> Option<&'d DeValue<'d>> {
         self.table.get(key).map(|v| v.get_ref())
     }
 
+    /// [`Table::get`] for a key named at run time (a check's limit).
+    pub fn get_named(&self, key: &str) -> Option<Field<'d>> {
+        self.asked.borrow_mut().push(Cow::Owned(key.to_string()));
+        let (k, v) = self.table.get_key_value(key)?;
+        Some(self.field(k, v))
+    }
+
     /// The value of `key`, if present (the key counts as known either way).
-    pub fn get(&self, key: &str) -> Option<Field<'d>> {
-        self.asked.borrow_mut().push(key.to_string());
+    pub fn get(&self, key: &'static str) -> Option<Field<'d>> {
+        self.asked.borrow_mut().push(Cow::Borrowed(key));
         let (k, v) = self.table.get_key_value(key)?;
         Some(self.field(k, v))
     }
@@ -538,12 +553,16 @@ impl<'d> Table<'d> {
 
     /// The value of a key this table must have; a missing one is recorded with `example` as
     /// the hint's value (`"29.92 inHg"`, `0.84` …).
-    pub fn required(&self, key: &str, example: &str) -> Option<Field<'d>> {
+    pub fn required(&self, key: &'static str, example: &str) -> Option<Field<'d>> {
         self.required_with(key, || example.to_string())
     }
 
     /// [`Table::required`] with the example built only when the key is missing.
-    fn required_with(&self, key: &str, example: impl FnOnce() -> String) -> Option<Field<'d>> {
+    fn required_with(
+        &self,
+        key: &'static str,
+        example: impl FnOnce() -> String,
+    ) -> Option<Field<'d>> {
         let f = self.get(key);
         if f.is_none() {
             self.missing(key, &example());
@@ -552,7 +571,7 @@ impl<'d> Table<'d> {
     }
 
     /// Records that `key` is missing from this table.
-    pub fn missing(&self, key: &str, example: &str) {
+    pub fn missing(&self, key: &'static str, example: &str) {
         self.doc.error(
             self.span.clone(),
             &self.path,
@@ -562,7 +581,7 @@ impl<'d> Table<'d> {
     }
 
     /// Records a problem located at `key`'s value (or at the table when the key is absent).
-    pub fn error_at(&self, key: &str, message: String, hint: Option<String>) {
+    pub fn error_at(&self, key: &'static str, message: String, hint: Option<String>) {
         let span = self
             .table
             .get(key)
@@ -572,7 +591,7 @@ impl<'d> Table<'d> {
     }
 
     /// A required string (a missing or empty one is recorded).
-    pub fn text(&self, key: &str, example: &str) -> Option<String> {
+    pub fn text(&self, key: &'static str, example: &str) -> Option<String> {
         let f = self.required(key, example)?;
         let s = f.str()?;
         if s.trim().is_empty() {
@@ -586,25 +605,25 @@ impl<'d> Table<'d> {
     }
 
     /// An optional string.
-    pub fn opt_text(&self, key: &str) -> Option<String> {
+    pub fn opt_text(&self, key: &'static str) -> Option<String> {
         self.get(key)?.str().map(str::to_string)
     }
 
     /// A required quantity of `dimension`, SI.
-    pub fn quantity(&self, key: &str, dimension: Dimension) -> Option<f64> {
+    pub fn quantity(&self, key: &'static str, dimension: Dimension) -> Option<f64> {
         self.required_with(key, || format!("\"{}\"", dimension.example()))?
             .quantity(dimension)
     }
 
     /// An optional quantity of `dimension`, SI.
-    pub fn opt_quantity(&self, key: &str, dimension: Dimension) -> Option<f64> {
+    pub fn opt_quantity(&self, key: &'static str, dimension: Dimension) -> Option<f64> {
         self.get(key)?.quantity(dimension)
     }
 
     /// A required quantity within a plausibility range (see [`Field::quantity_in`]).
     pub fn quantity_in(
         &self,
-        key: &str,
+        key: &'static str,
         dimension: Dimension,
         range: crate::plausibility::Range,
     ) -> Option<f64> {
@@ -615,7 +634,7 @@ impl<'d> Table<'d> {
     /// An optional quantity within a plausibility range (see [`Field::quantity_in`]).
     pub fn opt_quantity_in(
         &self,
-        key: &str,
+        key: &'static str,
         dimension: Dimension,
         range: crate::plausibility::Range,
     ) -> Option<f64> {
@@ -623,7 +642,7 @@ impl<'d> Table<'d> {
     }
 
     /// An optional fraction written in percent, within 0…100 %.
-    pub fn opt_fraction(&self, key: &str) -> Option<f64> {
+    pub fn opt_fraction(&self, key: &'static str) -> Option<f64> {
         let f = self.get(key)?;
         let x = f.quantity(Dimension::Fraction)?;
         if (0.0..=1.0).contains(&x) {
@@ -642,18 +661,18 @@ impl<'d> Table<'d> {
     }
 
     /// A required date; `example` (`2026-10-14`) for the hints.
-    pub fn date(&self, key: &str, example: &str) -> Option<NaiveDate> {
+    pub fn date(&self, key: &'static str, example: &str) -> Option<NaiveDate> {
         self.required_with(key, || format!("\"{example}\""))?
             .date(example)
     }
 
     /// An optional date; `example` for the hint.
-    pub fn opt_date(&self, key: &str, example: &str) -> Option<NaiveDate> {
+    pub fn opt_date(&self, key: &'static str, example: &str) -> Option<NaiveDate> {
         self.get(key)?.date(example)
     }
 
     /// A required choice among `options`.
-    pub fn choice<T: Copy>(&self, key: &str, options: &[(&str, T)]) -> Option<T> {
+    pub fn choice<T: Copy>(&self, key: &'static str, options: &[(&str, T)]) -> Option<T> {
         let example = || {
             options
                 .first()
@@ -665,7 +684,12 @@ impl<'d> Table<'d> {
 
     /// An optional choice among `options`; `default` when the key is absent, `None` after a
     /// recorded problem.
-    pub fn choice_or<T: Copy>(&self, key: &str, options: &[(&str, T)], default: T) -> Option<T> {
+    pub fn choice_or<T: Copy>(
+        &self,
+        key: &'static str,
+        options: &[(&str, T)],
+        default: T,
+    ) -> Option<T> {
         match self.get(key) {
             Some(f) => f.choice(options),
             None => Some(default),
@@ -673,7 +697,11 @@ impl<'d> Table<'d> {
     }
 
     /// An optional whole number within `range`.
-    pub fn opt_count(&self, key: &str, range: std::ops::RangeInclusive<i64>) -> Option<usize> {
+    pub fn opt_count(
+        &self,
+        key: &'static str,
+        range: std::ops::RangeInclusive<i64>,
+    ) -> Option<usize> {
         let f = self.get(key)?;
         let n = f.integer()?;
         if range.contains(&n) {
@@ -693,18 +721,18 @@ impl<'d> Table<'d> {
     }
 
     /// An optional plain number.
-    pub fn opt_number(&self, key: &str) -> Option<f64> {
+    pub fn opt_number(&self, key: &'static str) -> Option<f64> {
         self.get(key)?.number()
     }
 
     /// An optional list of strings.
-    pub fn opt_strings(&self, key: &str) -> Option<Vec<String>> {
+    pub fn opt_strings(&self, key: &'static str) -> Option<Vec<String>> {
         self.get(key)?.strings()
     }
 
     /// A table this table must have (`[gas]` in a survey).
-    pub fn table(&self, key: &str) -> Option<Table<'d>> {
-        self.asked.borrow_mut().push(key.to_string());
+    pub fn table(&self, key: &'static str) -> Option<Table<'d>> {
+        self.asked.borrow_mut().push(Cow::Borrowed(key));
         match self.table.get_key_value(key) {
             Some((k, v)) => self.field(k, v).table(),
             None => {
@@ -724,12 +752,12 @@ impl<'d> Table<'d> {
     }
 
     /// A table this table may have.
-    pub fn opt_table(&self, key: &str) -> Option<Table<'d>> {
+    pub fn opt_table(&self, key: &'static str) -> Option<Table<'d>> {
         self.get(key)?.table()
     }
 
     /// The tables of an array of tables (`[[run]]`); empty when absent.
-    pub fn tables(&self, key: &str) -> Vec<Table<'d>> {
+    pub fn tables(&self, key: &'static str) -> Vec<Table<'d>> {
         let Some(f) = self.get(key) else {
             return Vec::new();
         };
@@ -774,7 +802,7 @@ impl<'d> Table<'d> {
             return;
         }
         unknown.sort_by_key(|(k, _)| k.span().start);
-        let mut known: Vec<&str> = asked.iter().map(String::as_str).collect();
+        let mut known: Vec<&str> = asked.iter().map(|k| k.as_ref()).collect();
         known.sort_unstable();
         known.dedup();
         for (k, _) in unknown {

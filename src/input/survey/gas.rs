@@ -130,7 +130,7 @@ fn read_o2(t: &Table) -> Option<f64> {
     }
 }
 
-fn pct_text(t: &Table, key: &str) -> String {
+fn pct_text(t: &Table, key: &'static str) -> String {
     t.peek(key)
         .map(crate::input::toml_doc::value_text)
         .unwrap_or_default()

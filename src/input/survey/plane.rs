@@ -95,7 +95,7 @@ pub fn read_plane(root: &Table, survey: Option<&Table>) -> Option<PlaneParts> {
     let duct = root.table("duct").and_then(|t| read_duct(&t));
     let layout = read_layout(root);
     // glanced at, not read: `[survey]`'s and `[flow]`'s own readers check them
-    let text = |key: &str| match survey.and_then(|t| t.peek(key)) {
+    let text = |key: &'static str| match survey.and_then(|t| t.peek(key)) {
         Some(DeValue::String(s)) => Some(s.to_string()),
         _ => None,
     };
@@ -242,7 +242,7 @@ fn upper_bound(f: &Field, x: f64) -> Option<f64> {
 }
 
 /// A straight run: `"6.2 D"` in diameters, or a length divided by the (equivalent) diameter.
-fn distance(t: &Table, key: &str, duct: Option<&Duct>) -> Option<f64> {
+fn distance(t: &Table, key: &'static str, duct: Option<&Duct>) -> Option<f64> {
     let f = t.get(key)?;
     if !matches!(f.value, toml::de::DeValue::String(_)) {
         f.wrong_type(

@@ -82,7 +82,7 @@ pub fn read_run(t: &Table) -> Option<RunSpec> {
     let leak_check = match t.opt_table("leak_check") {
         None => LeakCheck::default(),
         Some(l) => {
-            let leak = |k: &str| l.get(k).and_then(|f| f.choice(&LeakResult::choices()));
+            let leak = |k: &'static str| l.get(k).and_then(|f| f.choice(&LeakResult::choices()));
             LeakCheck {
                 before: leak("before"),
                 after: leak("after"),
