@@ -934,9 +934,13 @@ pub struct Findings {
 /// Runs every registered check that applies to the survey's convention.
 pub fn run_all(subject: &Subject, settings: &Settings) -> Findings {
     let table = subject.table();
+    // room for every check's finding up front: a finding is a few hundred bytes, and growing
+    // the lists moved them again and again
     let mut out = Findings {
-        survey: Vec::new(),
-        runs: vec![Vec::new(); subject.runs.len()],
+        survey: Vec::with_capacity(REGISTRY.len()),
+        runs: (0..subject.runs.len())
+            .map(|_| Vec::with_capacity(REGISTRY.len()))
+            .collect(),
     };
     for def in REGISTRY.iter().copied() {
         if !def.applies_to(subject.survey.convention) {

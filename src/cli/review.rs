@@ -402,6 +402,23 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
             }
             bar
         });
+    if args.format == ReviewFormat::Json {
+        // each file's entry is written as it arrives, while the rest are being reviewed
+        let mut json = JsonEntries::default();
+        bad.into_iter().for_each(|r| json.add(Outcome::Reviewed(r)));
+        review_stream(paths, source, Arc::new(settings), &mut |o| {
+            if let Some(b) = &bar {
+                b.inc(1);
+            }
+            json.add(o);
+        });
+        if let Some(b) = &bar {
+            b.finish_and_clear();
+        }
+        let failed = json.entries.iter().any(|e| fail_on.contains(&e.status));
+        super::emit(&json.text())?;
+        return Ok(if failed { 3 } else { 0 });
+    }
     let mut outcomes: Vec<Outcome> = bad.into_iter().map(Outcome::Reviewed).collect();
     review_stream(paths, source, Arc::new(settings), &mut |o| {
         if let Some(b) = &bar {
@@ -497,6 +514,81 @@ impl<'a> JsonReview<'a> {
             review,
         }
     }
+}
+
+/// A JSON review built as the files arrive: each reviewed file's entry is serialised when it
+/// comes in (the workers are still reviewing others), so what is left at the end is sorting and
+/// joining. Writes the same text as [`json_text`] of [`JsonReview`] (a test compares them).
+#[derive(Default)]
+struct JsonEntries {
+    entries: Vec<JsonEntry>,
+    skipped: Vec<Skipped>,
+}
+
+/// One reviewed file's entry, already written at its depth in the review.
+struct JsonEntry {
+    file: String,
+    status: ReviewStatus,
+    text: String,
+}
+
+impl JsonEntries {
+    fn add(&mut self, o: Outcome) {
+        match o {
+            Outcome::Reviewed(r) => self.entries.push(JsonEntry {
+                text: pretty_at(&r, 2),
+                file: r.file,
+                status: r.status,
+            }),
+            Outcome::Skipped(s) => self.skipped.push(s),
+        }
+    }
+
+    /// The whole review, sorted by path as [`Review::collect`] sorts it.
+    fn text(mut self) -> String {
+        self.entries.sort_by(|a, b| a.file.cmp(&b.file));
+        self.skipped.sort_by(|a, b| a.file.cmp(&b.file));
+        let count = |s: ReviewStatus| self.entries.iter().filter(|e| e.status == s).count();
+        let summary = Summary {
+            files: self.entries.len(),
+            pass: count(ReviewStatus::Pass),
+            warn: count(ReviewStatus::Warn),
+            suspect: count(ReviewStatus::Suspect),
+            fail: count(ReviewStatus::Fail),
+            error: count(ReviewStatus::Error),
+            skipped: self.skipped.len(),
+        };
+        let size: usize = self.entries.iter().map(|e| e.text.len() + 6).sum();
+        let mut out = String::with_capacity(size + 1024);
+        out.push_str("{\n  \"summary\": ");
+        out.push_str(&pretty_at(&summary, 1));
+        out.push_str(",\n  \"files\": ");
+        if self.entries.is_empty() {
+            out.push_str("[]");
+        } else {
+            out.push_str("[\n");
+            for (i, e) in self.entries.iter().enumerate() {
+                if i > 0 {
+                    out.push_str(",\n");
+                }
+                out.push_str("    ");
+                out.push_str(&e.text);
+            }
+            out.push_str("\n  ]");
+        }
+        out.push_str(",\n  \"skipped\": ");
+        out.push_str(&pretty_at(&self.skipped, 1));
+        out.push_str("\n}\n");
+        out
+    }
+}
+
+/// `value` as pretty JSON nested `depth` levels deep (two spaces a level), as serde_json's
+/// pretty printer writes it inside a larger value: every line after the first indented. (A
+/// JSON string holds no raw line break, so every line break is the printer's own.)
+fn pretty_at<T: serde::Serialize>(value: &T, depth: usize) -> String {
+    let text = serde_json::to_string_pretty(value).unwrap_or_else(|e| format!("\"{e}\""));
+    text.replace('\n', &format!("\n{}", "  ".repeat(depth)))
 }
 
 fn summary(r: &Review) -> Summary {
@@ -660,4 +752,52 @@ fn table(name: &str, r: &Review, ctx: &Ctx) -> String {
         s.skipped
     );
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::archive::review::{Kind, Note};
+
+    fn reviewed(path: &str, notes: Vec<Note>) -> Reviewed {
+        Reviewed::bare(Path::new(path), Kind::Survey, notes)
+    }
+
+    /// The JSON written entry by entry is the text the whole review serialises to.
+    #[test]
+    fn entries_written_as_they_arrive_join_into_the_review_text() {
+        let cases: Vec<Vec<Outcome>> = vec![
+            vec![],
+            vec![Outcome::Skipped(Skipped {
+                file: "a/notes.toml".into(),
+                reason: "not a survey".into(),
+            })],
+            vec![
+                Outcome::Reviewed(reviewed(
+                    "z/survey.toml",
+                    vec![Note::Warnings {
+                        ids: vec!["cyclonic-flow".into(), "line \"B\"\n".into()],
+                    }],
+                )),
+                Outcome::Skipped(Skipped {
+                    file: "b/x.toml".into(),
+                    reason: "no [survey]".into(),
+                }),
+                Outcome::Reviewed(reviewed(
+                    "a/survey.toml",
+                    vec![Note::BadInput {
+                        message: "cannot read `run1.csv`".into(),
+                        problems: 2,
+                    }],
+                )),
+                Outcome::Reviewed(reviewed("m/survey.toml", vec![])),
+            ],
+        ];
+        for outcomes in cases {
+            let mut entries = JsonEntries::default();
+            outcomes.iter().cloned().for_each(|o| entries.add(o));
+            let whole = json_text(&JsonReview::new(&Review::collect(outcomes)));
+            assert_eq!(entries.text(), whole);
+        }
+    }
 }
