@@ -59,10 +59,14 @@ fn parse_header(h: &str) -> Result<Col, HeaderError> {
 }
 
 fn decimals(raw: &str) -> usize {
-    raw.trim()
-        .split_once('.')
-        .map(|(_, f)| f.chars().take_while(|c| c.is_ascii_digit()).count())
-        .unwrap_or(0)
+    // byte by byte: `.` and ASCII digits are one byte each in UTF-8
+    let b = raw.trim().as_bytes();
+    b.iter().position(|&c| c == b'.').map_or(0, |dot| {
+        b[dot + 1..]
+            .iter()
+            .take_while(|c| c.is_ascii_digit())
+            .count()
+    })
 }
 
 struct Cell<'a> {
@@ -174,6 +178,15 @@ impl std::ops::Index<usize> for Cells<'_> {
     }
 }
 
+/// `s.trim()`, without looking at characters when the cell starts and ends in a visible ASCII
+/// character (nearly every cell of a sheet).
+fn trim(s: &str) -> &str {
+    match (s.as_bytes().first(), s.as_bytes().last()) {
+        (Some(a), Some(z)) if a.is_ascii_graphic() && z.is_ascii_graphic() => s,
+        _ => s.trim(),
+    }
+}
+
 /// The records of a CSV text with their 1-based line numbers, header first; comment (`#`) and
 /// blank lines are skipped and fields trimmed. A file without a quote character is split
 /// directly: building a csv reader was a quarter of `annulus review`'s time in the profile, and
@@ -195,10 +208,10 @@ pub(crate) fn csv_rows(text: &str, max_records: usize) -> Vec<CsvRow<'_>> {
                 let mut cells = Vec::with_capacity(width.max(4));
                 let mut start = 0;
                 for (j, _) in l.bytes().enumerate().filter(|(_, b)| *b == b',') {
-                    cells.push(l[start..j].trim());
+                    cells.push(trim(&l[start..j]));
                     start = j + 1;
                 }
-                cells.push(l[start..].trim());
+                cells.push(trim(&l[start..]));
                 width = cells.len();
                 (i + 1, Ok(Cells(CellsInner::Split(cells))))
             })
@@ -794,13 +807,13 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
 
 /// The layout's label for a line as a reading writes it: the label itself in any case (`a` for
 /// `A`), or its number counted from 1 (`2` for the second line).
-fn layout_label(found: &str, labels: &[String]) -> Option<String> {
+fn layout_label<'l>(found: &str, labels: &'l [String]) -> Option<&'l String> {
     let found = found.trim();
     if let Some(l) = labels.iter().find(|l| l.eq_ignore_ascii_case(found)) {
-        return Some(l.clone());
+        return Some(l);
     }
     let n: usize = found.parse().ok()?;
-    labels.get(n.checked_sub(1)?).cloned()
+    labels.get(n.checked_sub(1)?)
 }
 
 /// Writes each reading's line label as the layout names it (`a` → `A`, `1` → `A`, `2` → `B` …).
@@ -812,7 +825,9 @@ pub fn label_lines(run: &mut RunReadings, layout: &Layout) -> Result<(), Diagnos
     let mut unknown: Vec<(String, usize)> = Vec::new();
     for r in &mut run.readings {
         match layout_label(&r.line, &labels) {
-            Some(l) => r.line = l,
+            // most sheets already write the layout's labels: nothing to copy
+            Some(l) if *l == r.line => {}
+            Some(l) => r.line = l.clone(),
             None if unknown.iter().any(|(u, _)| u == &r.line) => {}
             None => unknown.push((r.line.clone(), r.source_line)),
         }
