@@ -960,6 +960,17 @@ fn review_reads_nothing_outside_the_reviewed_folder_unless_asked() {
         let r = annulus(s.path(), &["review", "hvac", "--format", "json"]);
         let v: serde_json::Value = serde_json::from_str(&r.out()).expect(&r.err);
         assert_eq!(hostile_row(&v)["status"], "error", "{}", hostile_row(&v));
+        // a link inside the folder that leads nowhere is missing, not outside
+        std::os::unix::fs::symlink("gone.csv", hvac.join("dangling.csv")).unwrap();
+        survey_reading(&hvac, "dangling.csv");
+        let r = annulus(s.path(), &["review", "hvac", "--format", "json"]);
+        let v: serde_json::Value = serde_json::from_str(&r.out()).expect(&r.err);
+        let row = hostile_row(&v).to_string();
+        assert!(
+            row.contains("symbolic link whose target does not exist") && !row.contains("outside"),
+            "{row}"
+        );
+        survey_reading(&hvac, "link.csv");
     }
     // reviewing the folder above takes `shared/` in: no flag needed
     let r = annulus(s.path(), &["review", ".", "--format", "json"]);

@@ -173,9 +173,18 @@ fn read_inside(
     }
     match std::fs::symlink_metadata(&abs) {
         Ok(m) if m.file_type().is_symlink() => {
-            let inside = std::fs::canonicalize(&abs).is_ok_and(|target| {
-                std::fs::canonicalize(root).is_ok_and(|r| target.starts_with(r))
-            });
+            let target = match std::fs::canonicalize(&abs) {
+                Ok(t) => t,
+                // a link to nothing is no file outside the folder: it is missing (nothing read)
+                Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+                    return Err(std::io::Error::new(
+                        std::io::ErrorKind::NotFound,
+                        "it is a symbolic link whose target does not exist",
+                    ))
+                }
+                Err(_) => return outside(),
+            };
+            let inside = std::fs::canonicalize(root).is_ok_and(|r| target.starts_with(r));
             if inside {
                 read_capped(p, cap)
             } else {
