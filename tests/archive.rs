@@ -21,21 +21,9 @@ use std::sync::OnceLock;
 
 /// Runs the binary in `dir` with no user configuration (unless `config` names one).
 fn annulus_cfg(dir: &Path, args: &[&str], config: &str) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
-        .args(args)
-        .current_dir(dir)
-        .env("NO_COLOR", "1")
-        // wide enough that no finding wraps: these tests read the words, not the layout
-        .env("COLUMNS", "400")
-        .env("ANNULUS_CONFIG", config)
-        .env_remove("SOURCE_DATE_EPOCH")
-        .output()
-        .expect("binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    // wide enough that no finding wraps: these tests read the words, not the layout
+    let env = [("COLUMNS", Some("400")), ("ANNULUS_CONFIG", Some(config))];
+    common::run(dir, args, &env)
 }
 
 fn annulus_in(dir: &Path, args: &[&str]) -> (i32, String, String) {

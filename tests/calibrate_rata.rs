@@ -22,18 +22,7 @@ const ABS_TOL_PRINTED_6DP: f64 = 0.000_000_5;
 const REL_TOL_INDEPENDENT: f64 = 1e-9;
 
 fn annulus(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
-        .args(args)
-        .current_dir(root())
-        .env("NO_COLOR", "1")
-        .env_remove("SOURCE_DATE_EPOCH")
-        .output()
-        .expect("binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    common::run(&root(), args, &[])
 }
 
 fn json_of(args: &[&str], want_code: i32) -> Value {

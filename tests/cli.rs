@@ -5,23 +5,10 @@
 mod common;
 use common::{golden, root};
 use std::path::Path;
-use std::process::Command;
 
 fn annulus(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
-        .args(args)
-        .current_dir(root())
-        .env("NO_COLOR", "1")
-        .env_remove("SOURCE_DATE_EPOCH")
-        // not a terminal: tables fit the 100-column default
-        .env_remove("COLUMNS")
-        .output()
-        .expect("binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    // not a terminal: tables fit the 100-column default
+    common::run(&root(), args, &[("COLUMNS", None)])
 }
 
 #[test]

@@ -10,18 +10,7 @@ use std::process::Command;
 use std::sync::OnceLock;
 
 fn annulus(args: &[&str]) -> (i32, Vec<u8>, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
-        .args(args)
-        .current_dir(root())
-        .env("NO_COLOR", "1")
-        .env_remove("SOURCE_DATE_EPOCH")
-        .output()
-        .expect("binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        out.stdout,
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    common::run_bytes(&root(), args, &[])
 }
 
 struct Rendered {

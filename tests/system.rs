@@ -3,7 +3,7 @@
 //! `UPDATE_GOLDEN=1 cargo test --test system` and reviewed in the diff.
 
 mod common;
-use common::{golden, root};
+use common::{golden, root, run, run_bytes};
 use std::process::Command;
 
 fn annulus(args: &[&str]) -> (i32, String, String) {
@@ -13,19 +13,7 @@ fn annulus(args: &[&str]) -> (i32, String, String) {
 /// Runs the binary with the configuration file `config` (empty: no configuration at all, so a
 /// configuration on the machine running the tests changes nothing).
 fn annulus_cfg(args: &[&str], config: &str) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
-        .args(args)
-        .current_dir(root())
-        .env("NO_COLOR", "1")
-        .env("ANNULUS_CONFIG", config)
-        .env_remove("SOURCE_DATE_EPOCH")
-        .output()
-        .expect("binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    run(&root(), args, &[("ANNULUS_CONFIG", Some(config))])
 }
 
 const SAMPLE: &str = "sample-data/building/ahu-2.toml";
@@ -410,16 +398,14 @@ fn a_signed_submittal_verifies_recomputes_and_re_renders_and_an_edit_is_caught()
 
 #[test]
 fn the_submittal_goes_to_standard_output_with_a_dash() {
-    let out = Command::new(env!("CARGO_BIN_EXE_annulus"))
-        .args(["system", SAMPLE, "-o", "-", "--quiet"])
-        .current_dir(root())
-        .env("ANNULUS_CONFIG", "")
-        .env_remove("SOURCE_DATE_EPOCH")
-        .output()
-        .expect("binary runs");
-    assert_eq!(out.status.code(), Some(3));
-    assert!(out.stdout.starts_with(b"%PDF-"), "a PDF on standard output");
-    let files = annulus::report::embedded_files(&out.stdout).expect("attachments readable");
+    let (code, stdout, _) = run_bytes(
+        &root(),
+        &["system", SAMPLE, "-o", "-", "--quiet"],
+        &[("ANNULUS_CONFIG", Some(""))],
+    );
+    assert_eq!(code, 3);
+    assert!(stdout.starts_with(b"%PDF-"), "a PDF on standard output");
+    let files = annulus::report::embedded_files(&stdout).expect("attachments readable");
     assert!(files.iter().any(|f| f.name == "ahu-2.toml"));
 }
 

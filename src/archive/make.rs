@@ -130,17 +130,7 @@ pub fn render_report(
     m.signer = settings.signer.clone();
     m.defaults = (!settings.defaults.is_empty()).then(|| settings.defaults.clone());
     let manifest = bundle.manifest.clone();
-    let identity = Identity {
-        report_id: manifest.report_id(),
-        content_sha256: manifest.fingerprint(),
-        signer_key_fingerprint: settings
-            .signer
-            .as_ref()
-            .and_then(SignerEntry::key)
-            .map(|k| k.fingerprint()),
-        signer_name: settings.signer.as_ref().map(|s| s.name.clone()),
-        defaults: settings.defaults.clone(),
-    };
+    let identity = identity(&manifest, settings.signer.as_ref(), &settings.defaults);
     let data = report_data(e, a, &identity);
     let mut attachments = bundle.attachments().map_err(MakeError::Attachment)?;
     attachments.push(placeholder().map_err(MakeError::Attachment)?);
@@ -295,4 +285,20 @@ pub fn rata_inputs(r: &crate::pipeline::rata::RataEvaluation) -> (Vec<InputRole>
     let inputs = vec![(r.file.name.clone(), "rata", r.file.name.clone())];
     let summary = super::verify::documents::RataResults::of_evaluation(r);
     (inputs, super::verify::documents::results_bytes(&summary))
+}
+
+/// The identity block of a document made from `manifest`: its id and content digest, the signer
+/// the sign-off names, and the configuration's names for a sign-off the inputs leave empty.
+pub(super) fn identity(
+    manifest: &Manifest,
+    signer: Option<&SignerEntry>,
+    defaults: &crate::config::SignoffDefaults,
+) -> Identity {
+    Identity {
+        report_id: manifest.report_id(),
+        content_sha256: manifest.fingerprint(),
+        signer_key_fingerprint: signer.and_then(SignerEntry::key).map(|k| k.fingerprint()),
+        signer_name: signer.map(|s| s.name.clone()),
+        defaults: defaults.clone(),
+    }
 }

@@ -114,6 +114,13 @@ pub struct Manifest {
 }
 
 impl Manifest {
+    /// The recorded document date as a date (`None` when absent or not `YYYY-MM-DD`).
+    pub fn document_day(&self) -> Option<chrono::NaiveDate> {
+        self.document_date
+            .as_deref()
+            .and_then(|d| chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
+    }
+
     /// A manifest of the current format listing `files`; the caller fills in the document's kind,
     /// renderer, document date and signer (see `archive::make`).
     pub fn new(program: &str, convention: &str, survey_date: &str, files: Vec<FileEntry>) -> Self {

@@ -6,17 +6,16 @@
 //! system file; the manifest lists them with kind `submittal`, and the seal covers every page.
 //! Must not read files, print or look at the clock.
 
-use super::make::{program, renderer_id, Made, MakeError, Unsealed};
+use super::make::{identity, program, renderer_id, Made, MakeError, Unsealed};
 use super::manifest::{DocKind, Manifest, SignerEntry, MANIFEST_NAME, RESULTS_NAME};
 use super::seal::{placeholder, seal_pdf};
-use super::verify::recompute::{compare_values, first_problem, Recomputation};
+use super::verify::recompute::{compare_values, embedded_results, first_problem, Recomputation};
 use super::verify::rerender::Rerendering;
 use super::SecretKey;
 use crate::config::SignoffDefaults;
 use crate::display::UnitSystem;
 use crate::input::system_file::{load_system_from, LoadedSystem, SystemInput};
 use crate::pdf::parts::DocumentParts;
-use crate::report::build::Identity;
 use crate::report::submittal::submittal_data;
 use crate::report::{Attachment, Engine, RenderOptions};
 use crate::submittal::{evaluate_system, SystemEvaluation};
@@ -147,17 +146,7 @@ pub fn render_submittal(
         .map(|(ev, _)| ev.loaded.survey.convention.name())
         .unwrap_or_default();
     let (manifest, attachments) = pack(&e.loaded, convention, results_bytes(e), settings)?;
-    let identity = Identity {
-        report_id: manifest.report_id(),
-        content_sha256: manifest.fingerprint(),
-        signer_key_fingerprint: settings
-            .signer
-            .as_ref()
-            .and_then(SignerEntry::key)
-            .map(|k| k.fingerprint()),
-        signer_name: settings.signer.as_ref().map(|s| s.name.clone()),
-        defaults: settings.defaults.clone(),
-    };
+    let identity = identity(&manifest, settings.signer.as_ref(), &settings.defaults);
     let data = submittal_data(e, &identity);
     let options = RenderOptions {
         date: settings.document_date,
@@ -198,17 +187,9 @@ pub fn recompute(
     by_name: &HashMap<&str, &[u8]>,
 ) -> (Recomputation, Option<Box<SystemEvaluation>>) {
     let impossible = |reason: String| (Recomputation::Impossible { reason }, None);
-    let Some(results) = manifest
-        .files
-        .iter()
-        .find(|e| e.role == "results")
-        .and_then(|e| by_name.get(e.name.as_str()))
-    else {
-        return impossible("the embedded results are missing".into());
-    };
-    let embedded: serde_json::Value = match serde_json::from_slice(results) {
+    let embedded = match embedded_results(manifest, by_name) {
         Ok(v) => v,
-        Err(e) => return impossible(format!("the embedded results are not JSON: {e}")),
+        Err(why) => return impossible(why),
     };
     let roles = [
         "system",
@@ -296,11 +277,7 @@ pub fn rerender(
             "the embedded inputs could not be evaluated (see the recomputation)".into(),
         );
     };
-    let Some(date) = manifest
-        .document_date
-        .as_deref()
-        .and_then(|d| chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
-    else {
+    let Some(date) = manifest.document_day() else {
         return impossible("the manifest records no document date".into());
     };
     let settings = SubmittalSettings {

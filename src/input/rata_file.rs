@@ -236,17 +236,9 @@ fn read_meta(r: &Table, m: &Table) -> Option<RataMeta> {
         .required("title", "\"Unit 2 stack flow monitor, annual RATA\"")
         .and_then(|f| f.str().map(str::to_string));
     let date = r.date("date", "2026-09-22");
-    let monitor_id = m.required("id", "\"FM-2\"").and_then(|f| {
-        let id = f.str()?.trim().to_string();
-        if id.is_empty() {
-            f.error(
-                "`monitor.id` is empty".into(),
-                Some("write the monitor's identifier, e.g. id = \"FM-2\"".into()),
-            );
-            return None;
-        }
-        Some(id)
-    });
+    let monitor_id = m
+        .required("id", "\"FM-2\"")
+        .and_then(|f| f.filled("write the monitor's identifier, e.g. id = \"FM-2\""));
     Some(RataMeta {
         title: title?,
         facility: r.opt_text("facility"),

@@ -332,17 +332,7 @@ fn read_duct(t: &Table, places: &mut Places) -> (Option<DuctSpec>, Option<Locati
     let survey_at = survey_field
         .as_ref()
         .map(|f| doc.location(f.span.clone(), "duct.survey"));
-    let tag = tag_field.and_then(|f| {
-        let s = f.str()?.trim().to_string();
-        if s.is_empty() {
-            f.error(
-                "`duct.tag` is empty".into(),
-                Some("give each duct a short tag such as \"SA-1\"".into()),
-            );
-            return None;
-        }
-        Some(s)
-    });
+    let tag = tag_field.and_then(|f| f.filled("give each duct a short tag such as \"SA-1\""));
     let role = role_field.and_then(|f| f.choice(&Role::ALL.map(|r| (r.name(), r))));
     let design = design_field.and_then(|f| design_flow(&f));
     let survey = survey_field.and_then(|f| f.str().map(|s| s.trim().to_string()));

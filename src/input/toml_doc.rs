@@ -205,6 +205,19 @@ impl<'d> Field<'d> {
         }
     }
 
+    /// A string with something in it, trimmed; an empty one is a recorded problem with `hint`.
+    pub fn filled(&self, hint: &str) -> Option<String> {
+        let s = self.str()?.trim();
+        if s.is_empty() {
+            self.error(
+                format!("`{}` is empty", self.path()),
+                Some(hint.to_string()),
+            );
+            return None;
+        }
+        Some(s.to_string())
+    }
+
     /// A quantity string of `dimension` in SI, or a recorded problem.
     pub fn quantity(&self, dimension: Dimension) -> Option<f64> {
         match self.value {

@@ -6,7 +6,7 @@
 //! reloads the inputs from the attachments (by their manifest paths, in a virtual folder), computes
 //! the summary again and compares it value by value with the embedded one.
 
-use super::recompute::{compare_values, first_problem, Recomputation};
+use super::recompute::{compare_values, embedded_results, first_problem, Recomputation};
 use crate::archive::manifest::{DocKind, Manifest};
 use crate::input::calibration_file::LoadedCalibration;
 use crate::input::rata_file::{parse_rata, ReferenceSpec};
@@ -144,17 +144,9 @@ pub fn recompute(
     by_name: &HashMap<&str, &[u8]>,
 ) -> Recomputation {
     let impossible = |reason: String| Recomputation::Impossible { reason };
-    let Some(results) = manifest
-        .files
-        .iter()
-        .find(|e| e.role == "results")
-        .and_then(|e| by_name.get(e.name.as_str()))
-    else {
-        return impossible("the embedded results are missing".into());
-    };
-    let embedded: serde_json::Value = match serde_json::from_slice(results) {
+    let embedded = match embedded_results(manifest, by_name) {
         Ok(v) => v,
-        Err(e) => return impossible(format!("the embedded results are not JSON: {e}")),
+        Err(why) => return impossible(why),
     };
     let role = match kind {
         DocKind::Calibration => "calibration",

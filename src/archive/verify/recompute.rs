@@ -99,6 +99,21 @@ impl Recomputation {
     }
 }
 
+/// The embedded `results.json` of a certificate, RATA summary or submittal, parsed; why not, in
+/// words, when it is missing or is not JSON.
+pub(crate) fn embedded_results(
+    manifest: &Manifest,
+    by_name: &HashMap<&str, &[u8]>,
+) -> Result<Value, String> {
+    let results = manifest
+        .files
+        .iter()
+        .find(|e| e.role == "results")
+        .and_then(|e| by_name.get(e.name.as_str()))
+        .ok_or_else(|| "the embedded results are missing".to_string())?;
+    serde_json::from_slice(results).map_err(|e| format!("the embedded results are not JSON: {e}"))
+}
+
 pub(crate) fn first_problem(e: &Error) -> String {
     match e {
         Error::Input(d) => {

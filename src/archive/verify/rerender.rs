@@ -108,11 +108,7 @@ pub fn rerender(
             "the embedded inputs could not be evaluated (see the recomputation)".into(),
         );
     };
-    let Some(date) = manifest
-        .document_date
-        .as_deref()
-        .and_then(|d| chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
-    else {
+    let Some(date) = manifest.document_day() else {
         return impossible("the manifest records no document date".into());
     };
     let template = match manifest.files.iter().find(|e| e.role == "template") {
