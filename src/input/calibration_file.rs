@@ -335,18 +335,23 @@ fn read_meta(c: &Table, root: &Table) -> Option<CalibrationMeta> {
             }
         }),
     };
+    // every key is asked before a missing one ends the reading (a key not asked is reported
+    // as unknown)
+    let (serial, organisation) = (c.opt_text("serial"), c.opt_text("organisation"));
+    let (location, assembly) = (c.opt_text("location"), c.opt_text("assembly"));
+    let notes = c.opt_strings("notes").unwrap_or_default();
     Some(CalibrationMeta {
         probe: probe?.trim().to_string(),
-        serial: c.opt_text("serial"),
+        serial,
         date: date?,
         calibrated_by: calibrated_by?.trim().to_string(),
-        organisation: c.opt_text("organisation"),
-        location: c.opt_text("location"),
+        organisation,
+        location,
         velocity,
-        assembly: c.opt_text("assembly"),
+        assembly,
         standard_id,
         standard_coefficient: standard_coefficient?,
-        notes: c.opt_strings("notes").unwrap_or_default(),
+        notes,
     })
 }
 
@@ -668,6 +673,21 @@ readings = "r.csv"
             Err(Error::Input(d)) => d,
             other => panic!("accepted: {other:?}"),
         }
+    }
+
+    #[test]
+    fn a_missing_probe_does_not_make_the_keys_after_it_unknown() {
+        let text = TOML.replace(
+            "probe = \"TS-0417\"\n",
+            "serial = \"S-9\"\nnotes = [\"n\"]\n",
+        );
+        let d = input_err(parse_calibration("c.toml", &text));
+        let s = d.to_string();
+        assert_eq!(d.len(), 1, "{s}");
+        assert!(
+            s.contains("no `probe`") && !s.contains("unknown key"),
+            "{s}"
+        );
     }
 
     #[test]

@@ -239,20 +239,31 @@ fn read_meta(r: &Table, m: &Table) -> Option<RataMeta> {
     let monitor_id = m
         .required("id", "\"FM-2\"")
         .and_then(|f| f.filled("write the monitor's identifier, e.g. id = \"FM-2\""));
+    // every key is asked before a missing one ends the reading (a key not asked is reported
+    // as unknown)
+    let (facility, unit, location) = (
+        r.opt_text("facility"),
+        r.opt_text("unit"),
+        r.opt_text("location"),
+    );
+    let (level, tested_by) = (r.opt_text("level"), r.opt_text("tested_by"));
+    let (organisation, reviewed_by) = (r.opt_text("organisation"), r.opt_text("reviewed_by"));
+    let notes = r.opt_strings("notes").unwrap_or_default();
+    let (monitor_serial, monitor_description) = (m.opt_text("serial"), m.opt_text("description"));
     Some(RataMeta {
         title: title?,
-        facility: r.opt_text("facility"),
-        unit: r.opt_text("unit"),
-        location: r.opt_text("location"),
+        facility,
+        unit,
+        location,
         date: date?,
-        level: r.opt_text("level"),
-        tested_by: r.opt_text("tested_by"),
-        organisation: r.opt_text("organisation"),
-        reviewed_by: r.opt_text("reviewed_by"),
-        notes: r.opt_strings("notes").unwrap_or_default(),
+        level,
+        tested_by,
+        organisation,
+        reviewed_by,
+        notes,
         monitor_id: monitor_id?,
-        monitor_serial: m.opt_text("serial"),
-        monitor_description: m.opt_text("description"),
+        monitor_serial,
+        monitor_description,
     })
 }
 
@@ -397,6 +408,8 @@ fn read_run(t: &Table, dim: Option<Dimension>, seen: &mut Vec<String>) -> Option
         }
         other => other,
     };
+    // asked before a problem above ends the reading (a key not asked is reported as unknown)
+    let (period, level) = (t.opt_text("period"), t.opt_text("level"));
     let (rejected, rejected_at) = match rejected? {
         Some((reason, at)) => (Some(reason), Some(at)),
         None => (None, None),
@@ -406,9 +419,9 @@ fn read_run(t: &Table, dim: Option<Dimension>, seen: &mut Vec<String>) -> Option
         reference: reference?,
         monitor_si: monitor_si?,
         monitor_raw: monitor_field?.text().trim().to_string(),
-        period: t.opt_text("period"),
+        period,
         rejected,
-        level: t.opt_text("level"),
+        level,
         at,
         rejected_at,
     })
@@ -600,6 +613,34 @@ mod tests {
             Err(Error::Input(d)) => d,
             other => panic!("accepted: {other:?}"),
         }
+    }
+
+    #[test]
+    fn a_missing_field_does_not_make_the_keys_after_it_unknown() {
+        // an empty monitor id, a title missing: the keys read after them are still known
+        let text = (head("velocity") + &runs_text(9))
+            .replace("title = \"T\"\n", "facility = \"Unit 2\"\n")
+            .replace("id = \"FM-2\"\n", "id = \" \"\nserial = \"S-1\"\n");
+        let d = input_err(parse_rata("r.toml", &text));
+        let s = d.to_string();
+        assert_eq!(d.len(), 2, "{s}");
+        assert!(
+            s.contains("has no `title`") && s.contains("`monitor.id` is empty"),
+            "{s}"
+        );
+        assert!(!s.contains("unknown key"), "{s}");
+        // a run with no reference keeps its period and level known
+        let text = head("velocity")
+            + &runs_text(9).replacen(
+                "reference = \"51.0 ft/s\"\n",
+                "period = \"09:00-09:21\"\nlevel = \"100 %\"\n",
+                1,
+            );
+        let s = input_err(parse_rata("r.toml", &text)).to_string();
+        assert!(
+            s.contains("has no reference") && !s.contains("unknown key"),
+            "{s}"
+        );
     }
 
     #[test]
