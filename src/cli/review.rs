@@ -557,16 +557,7 @@ impl JsonEntries {
     fn text(mut self) -> String {
         self.entries.sort_by(|a, b| a.file.cmp(&b.file));
         self.skipped.sort_by(|a, b| a.file.cmp(&b.file));
-        let count = |s: ReviewStatus| self.entries.iter().filter(|e| e.status == s).count();
-        let summary = Summary {
-            files: self.entries.len(),
-            pass: count(ReviewStatus::Pass),
-            warn: count(ReviewStatus::Warn),
-            suspect: count(ReviewStatus::Suspect),
-            fail: count(ReviewStatus::Fail),
-            error: count(ReviewStatus::Error),
-            skipped: self.skipped.len(),
-        };
+        let summary = Summary::of(self.entries.iter().map(|e| e.status), self.skipped.len());
         let size: usize = self.entries.iter().map(|e| e.text.len() + 6).sum();
         let mut out = String::with_capacity(size + 1024);
         out.push_str("{\n  \"summary\": ");
@@ -601,14 +592,32 @@ fn pretty_at<T: serde::Serialize>(value: &T, depth: usize) -> String {
 }
 
 fn summary(r: &Review) -> Summary {
-    Summary {
-        files: r.files.len(),
-        pass: r.count(ReviewStatus::Pass),
-        warn: r.count(ReviewStatus::Warn),
-        suspect: r.count(ReviewStatus::Suspect),
-        fail: r.count(ReviewStatus::Fail),
-        error: r.count(ReviewStatus::Error),
-        skipped: r.skipped.len(),
+    Summary::of(r.files.iter().map(|f| f.status), r.skipped.len())
+}
+
+impl Summary {
+    /// Files per status, from each reviewed file's status.
+    fn of(statuses: impl Iterator<Item = ReviewStatus>, skipped: usize) -> Summary {
+        let mut s = Summary {
+            files: 0,
+            pass: 0,
+            warn: 0,
+            suspect: 0,
+            fail: 0,
+            error: 0,
+            skipped,
+        };
+        for status in statuses {
+            s.files += 1;
+            *match status {
+                ReviewStatus::Pass => &mut s.pass,
+                ReviewStatus::Warn => &mut s.warn,
+                ReviewStatus::Suspect => &mut s.suspect,
+                ReviewStatus::Fail => &mut s.fail,
+                ReviewStatus::Error => &mut s.error,
+            } += 1;
+        }
+        s
     }
 }
 

@@ -103,10 +103,10 @@ fn too_large(size: Option<u64>, limit: u64) -> io::Error {
 
 /// Opens `path` for reading only if it is a regular file. The type is looked at before opening
 /// (opening a FIFO would wait for a writer; opening some devices has effects): `meta` is the
-/// path's `stat` (or its `lstat`, when that showed no symbolic link). It is looked at again on
-/// the open file, which on Unix is opened non-blocking, so a path swapped for a FIFO in between
-/// cannot hang the read either.
-fn open_regular(path: &Path, meta: &std::fs::Metadata) -> io::Result<(std::fs::File, u64)> {
+/// path's `stat` (or its `lstat`, when that showed no symbolic link). [`read_open`] looks again
+/// on the open file, which on Unix is opened non-blocking, so a path swapped for a FIFO in
+/// between cannot hang the read either.
+fn open_regular(path: &Path, meta: &std::fs::Metadata) -> io::Result<std::fs::File> {
     if let Some(what) = special_kind(meta) {
         return Err(special_file_error(what));
     }
@@ -117,12 +117,19 @@ fn open_regular(path: &Path, meta: &std::fs::Metadata) -> io::Result<(std::fs::F
         use std::os::unix::fs::OpenOptionsExt;
         options.custom_flags(libc::O_NONBLOCK);
     }
-    let file = options.open(path)?;
+    options.open(path)
+}
+
+/// Reads an open file within `limit` if it is a regular file (looked at on the open file).
+fn read_open(file: std::fs::File, limit: u64) -> io::Result<Vec<u8>> {
     let meta = file.metadata()?;
     if let Some(what) = special_kind(&meta) {
         return Err(special_file_error(what));
     }
-    Ok((file, meta.len()))
+    if meta.len() > limit {
+        return Err(too_large(Some(meta.len()), limit));
+    }
+    read_regular(file, limit, meta.len())
 }
 
 /// Reads `path` within `limit` with one path lookup, when it opens as no symbolic link: `None`
@@ -143,18 +150,7 @@ pub fn read_unless_link(path: &Path, limit: u64) -> Option<io::Result<Vec<u8>>> 
         .read(true)
         .custom_flags(libc::O_NONBLOCK | libc::O_NOFOLLOW | libc::O_NOCTTY);
     let file = options.open(path).ok()?;
-    let read = || {
-        let meta = file.metadata()?;
-        if let Some(what) = special_kind(&meta) {
-            return Err(special_file_error(what));
-        }
-        if meta.len() > limit {
-            return Err(too_large(Some(meta.len()), limit));
-        }
-        let len = meta.len();
-        read_regular(file, limit, len)
-    };
-    Some(read())
+    Some(read_open(file, limit))
 }
 
 /// [`read_limited`] for a path whose `stat` (or symlink-free `lstat`) the caller already holds,
@@ -164,11 +160,7 @@ pub fn read_limited_after(
     meta: &std::fs::Metadata,
     limit: u64,
 ) -> io::Result<Vec<u8>> {
-    let (file, len) = open_regular(path, meta)?;
-    if len > limit {
-        return Err(too_large(Some(len), limit));
-    }
-    read_regular(file, limit, len)
+    read_open(open_regular(path, meta)?, limit)
 }
 
 /// Reads an open regular file of `len` bytes (its size when opened), within `limit`. One read
