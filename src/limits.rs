@@ -121,10 +121,16 @@ pub const HARD_SIZE_LIMIT: u64 = 4096 * MIB;
 
 /// The size limit set by [`SIZE_OVERRIDE_VAR`], if it is set to a whole number of MiB; capped at
 /// [`HARD_SIZE_LIMIT`]. A value that is not a whole number is ignored (the defaults stay).
+///
+/// Read from the environment once per process: every file read asks for its limit, and `review`
+/// reads tens of thousands of files.
 pub fn size_override() -> Option<u64> {
-    let v = std::env::var(SIZE_OVERRIDE_VAR).ok()?;
-    let mb: u64 = v.trim().parse().ok()?;
-    Some(mb.saturating_mul(MIB).min(HARD_SIZE_LIMIT))
+    static OVERRIDE: std::sync::OnceLock<Option<u64>> = std::sync::OnceLock::new();
+    *OVERRIDE.get_or_init(|| {
+        let v = std::env::var(SIZE_OVERRIDE_VAR).ok()?;
+        let mb: u64 = v.trim().parse().ok()?;
+        Some(mb.saturating_mul(MIB).min(HARD_SIZE_LIMIT))
+    })
 }
 
 /// The largest limit in force among the files a survey, calibration or RATA file names: what the

@@ -142,19 +142,35 @@ fn absolute(cwd: &Path, p: &Path) -> PathBuf {
     out
 }
 
-/// Reads a file a survey names if it lies inside the reviewed folder `root` (absolute): by name,
+/// The reviewed folder: as the user named it, and made absolute.
+struct Bounds {
+    given: PathBuf,
+    root: PathBuf,
+}
+
+/// Whether `p` is the folder `given` followed by plain names only (no `..`, no root): then it
+/// lies inside that folder by its name whatever the working folder is, and `p` need not be made
+/// absolute to tell (review asks this for every file it reads). `false` says nothing.
+fn below(given: &Path, p: &Path) -> bool {
+    use std::path::Component;
+    p.strip_prefix(given).is_ok_and(|rest| {
+        rest.components()
+            .all(|c| matches!(c, Component::Normal(_) | Component::CurDir))
+    })
+}
+
+/// Reads a file a survey names if it lies inside the reviewed folder (`bounds`): by name,
 /// and, when the file itself is a symbolic link, by where the link leads. A plain file is opened
 /// without following a link ([`crate::input::fs::read_unless_link`]); a link, or a path that
 /// does not open, is looked at with `lstat` first. `shown` is the folder as the user named it,
 /// for the message.
 fn read_inside(
-    root: &Path,
+    bounds: &Bounds,
     shown: &str,
     cwd: &Path,
     p: &Path,
     cap: u64,
 ) -> std::io::Result<Vec<u8>> {
-    let abs = absolute(cwd, p);
     let outside = || -> std::io::Result<Vec<u8>> {
         Err(std::io::Error::new(
             std::io::ErrorKind::PermissionDenied,
@@ -163,7 +179,9 @@ fn read_inside(
             ),
         ))
     };
-    if !abs.starts_with(root) {
+    let below = below(&bounds.given, p);
+    let abs = || absolute(cwd, p);
+    if !below && !abs().starts_with(&bounds.root) {
         return outside();
     }
     // the common case, a plain file: one lookup (a link, or any problem, is looked at below)
@@ -171,6 +189,7 @@ fn read_inside(
     if let Some(read) = crate::input::fs::read_unless_link(p, cap) {
         return capped(read, cap);
     }
+    let (abs, root) = (abs(), &bounds.root);
     match std::fs::symlink_metadata(&abs) {
         Ok(m) if m.file_type().is_symlink() => {
             let target = match std::fs::canonicalize(&abs) {
@@ -350,10 +369,13 @@ pub fn run(args: ReviewArgs, ctx: &Ctx) -> Result<i32, Error> {
     };
     // the working folder is read once, not once per file
     let cwd = std::env::current_dir().unwrap_or_default();
-    let root = (!args.allow_outside).then(|| absolute(&cwd, &boundary));
     let shown = boundary.display().to_string();
-    let source: SharedSource = Arc::new(move |p: &Path| match &root {
-        Some(root) => read_inside(root, &shown, &cwd, p, cap),
+    let bounds = (!args.allow_outside).then(|| Bounds {
+        root: absolute(&cwd, &boundary),
+        given: boundary,
+    });
+    let source: SharedSource = Arc::new(move |p: &Path| match &bounds {
+        Some(bounds) => read_inside(bounds, &shown, &cwd, p, cap),
         None => read_capped(p, cap),
     });
     let fail_on: Vec<ReviewStatus> = args.fail_on.iter().map(|s| s.status()).collect();

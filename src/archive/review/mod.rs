@@ -458,11 +458,13 @@ pub fn is_candidate(path: &Path) -> bool {
 
 /// The kind a path's extension suggests (`.toml` a survey, `.pdf` a report).
 pub fn extension(path: &Path) -> Option<Kind> {
-    let ext = path.extension()?.to_string_lossy().to_ascii_lowercase();
-    match ext.as_str() {
-        "toml" => Some(Kind::Survey),
-        "pdf" => Some(Kind::Report),
-        _ => None,
+    let ext = path.extension()?.as_encoded_bytes();
+    if ext.eq_ignore_ascii_case(b"toml") {
+        Some(Kind::Survey)
+    } else if ext.eq_ignore_ascii_case(b"pdf") {
+        Some(Kind::Report)
+    } else {
+        None
     }
 }
 
