@@ -177,7 +177,7 @@ fn limit_value(f: &Field, kind: LimitKind) -> Option<f64> {
         LimitKind::Quantity(kind) => match (kind.dimension(), &f.value) {
             // a kind without a unit (molar mass) is a plain number
             (None, _) => f.number(),
-            (Some(dim), toml::de::DeValue::String(_)) => f.quantity(dim),
+            (Some(dim), crate::input::toml_doc::Value::String(_)) => f.quantity(dim),
             (Some(dim), _) => {
                 f.error(
                     format!(

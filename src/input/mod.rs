@@ -20,6 +20,7 @@ pub mod system_file;
 pub mod terminals_file;
 pub mod text;
 pub mod toml_doc;
+pub mod toml_tree;
 
 use crate::checks::config::AssessConfig;
 use crate::diag::{Diagnostic, Error, Location};

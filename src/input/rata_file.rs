@@ -304,7 +304,7 @@ fn read_display_unit(r: &Table, dim: Option<Dimension>, runs: &[Table]) -> Optio
             .first()
             .and_then(|run| run.get("monitor"))
             .and_then(|f| match f.value {
-                toml::de::DeValue::String(s) => unit_of(s),
+                crate::input::toml_doc::Value::String(s) => unit_of(s),
                 _ => None,
             })
             .filter(|u| u.dimension == dim)

@@ -13,6 +13,7 @@ use super::toml_doc::{did_you_mean, Field, Table, TomlDoc};
 use super::{load_referenced, read_referenced, read_text_with, FileKind, FileSource, Loaded};
 use super::{MemoryFiles, SourceFile};
 use crate::diag::{Diagnostic, Error, Location};
+use crate::input::toml_doc::Value;
 use crate::limits::MAX_SYSTEM_DUCTS;
 use crate::system::rules::DEFAULT_TOLERANCE;
 use crate::system::{
@@ -21,7 +22,6 @@ use crate::system::{
 };
 use crate::units::Dimension;
 use std::path::Path;
-use toml::de::DeValue;
 
 const HINT_FORMAT: &str =
     "see the system file format in the README (sample-data/building/ahu-2.toml is a complete example)";
@@ -205,8 +205,8 @@ fn tolerance(t: &Table, key: &'static str) -> Option<Option<Tolerance>> {
 /// A fan speed: a plain number of rpm, or the same with its unit (`"1150 rpm"`).
 fn rpm(f: &Field) -> Option<f64> {
     match f.value {
-        DeValue::String(_) => f.quantity(Dimension::RotationalSpeed),
-        DeValue::Integer(_) | DeValue::Float(_) => f.number(),
+        Value::String(_) => f.quantity(Dimension::RotationalSpeed),
+        Value::Integer(_) | Value::Float(_) => f.number(),
         _ => {
             f.wrong_type(
                 "a number of revolutions per minute",
@@ -223,8 +223,8 @@ fn rpm(f: &Field) -> Option<f64> {
 /// The tags a fan's `duct` names: one string or a list of them.
 fn tags(f: &Field) -> Option<Vec<String>> {
     match f.value {
-        DeValue::String(s) => Some(vec![s.trim().to_string()]),
-        DeValue::Array(_) => f
+        Value::String(s) => Some(vec![s.trim().to_string()]),
+        Value::Array(_) => f
             .strings()
             .map(|v| v.into_iter().map(|t| t.trim().to_string()).collect()),
         _ => {

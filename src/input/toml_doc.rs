@@ -3,7 +3,7 @@
 //! The one TOML reader of `input`: the survey, its `[checks]` / `[instruments]` / `[reported]`
 //! sections, calibration and RATA files (and any new file format) are read through it. The file is
 //! parsed once into a tree that keeps the byte span of every key and value
-//! ([`toml::de::DeTable`]); a parser then asks a [`Table`] for the keys it knows, each getter
+//! ([`super::toml_tree`]); a parser then asks a [`Table`] for the keys it knows, each getter
 //! checking the type and the unit and recording a located problem instead of stopping. What it
 //! collects:
 //!
@@ -18,14 +18,14 @@
 //! the text) or build domain values.
 
 use super::text::span_location;
+pub use super::toml_tree::Value;
+use super::toml_tree::{Map, Spanned};
 use crate::diag::{Diagnostic, Diagnostics, Error, Location};
 use crate::units::{parse_quantity, Dimension, UnitError};
 use chrono::NaiveDate;
 use std::borrow::Cow;
 use std::cell::RefCell;
 use std::ops::Range;
-use toml::de::{DeTable, DeValue};
-use toml::Spanned;
 
 /// A parsed TOML file and the problems found in it so far.
 pub struct TomlDoc<'a> {
@@ -35,7 +35,7 @@ pub struct TomlDoc<'a> {
     kind: &'static str,
     /// Where the format is documented, for hints about missing sections.
     guide: &'static str,
-    root: Spanned<DeTable<'a>>,
+    root: Map<'a>,
     diags: RefCell<Diagnostics>,
     /// Line starts, found on the first location asked for.
     lines: std::cell::OnceCell<super::text::LineStarts>,
@@ -45,9 +45,10 @@ impl<'a> TomlDoc<'a> {
     /// Parses `text` (named `file` in diagnostics). Syntax errors are all reported, located, and
     /// end the reading: the tree after a syntax error is not what the user meant.
     pub fn parse(file: &'a str, text: &'a str, kind: &'static str) -> Result<Self, Error> {
-        let (root, errors) = DeTable::parse_recoverable(text);
-        if !errors.is_empty() {
-            let mut errors: Vec<_> = errors
+        let root = match super::toml_tree::parse(text) {
+            Ok(root) => root,
+            Err(errors) => {
+                let mut errors: Vec<_> = errors
                 .into_iter()
                 .map(|e| {
                     let at = e.span().map(|s| s.start).unwrap_or(0);
@@ -60,11 +61,12 @@ impl<'a> TomlDoc<'a> {
                     (at, d)
                 })
                 .collect();
-            errors.sort_by_key(|(at, _)| *at);
-            let mut all = Diagnostics::new();
-            errors.into_iter().for_each(|(_, d)| all.push(d));
-            return Err(Error::Input(all));
-        }
+                errors.sort_by_key(|(at, _)| *at);
+                let mut all = Diagnostics::new();
+                errors.into_iter().for_each(|(_, d)| all.push(d));
+                return Err(Error::Input(all));
+            }
+        };
         Ok(TomlDoc {
             file,
             text,
@@ -87,7 +89,7 @@ impl<'a> TomlDoc<'a> {
         Table {
             doc: self,
             path: std::rc::Rc::from(""),
-            table: self.root.get_ref(),
+            table: &self.root,
             span: 0..0,
             asked: RefCell::new(Vec::new()),
         }
@@ -168,7 +170,7 @@ impl<'a> TomlDoc<'a> {
 #[derive(Clone)]
 pub struct Field<'d> {
     pub doc: &'d TomlDoc<'d>,
-    pub value: &'d DeValue<'d>,
+    pub value: &'d Value<'d>,
     pub span: Range<usize>,
     /// Span of the key (the value's own for array items).
     pub key_span: Range<usize>,
@@ -197,7 +199,7 @@ impl<'d> Field<'d> {
     /// A string, or a recorded problem.
     pub fn str(&self) -> Option<&'d str> {
         match self.value {
-            DeValue::String(s) => Some(s.as_ref()),
+            Value::String(s) => Some(s.as_ref()),
             _ => {
                 self.wrong_type("a string", None);
                 None
@@ -221,7 +223,7 @@ impl<'d> Field<'d> {
     /// A quantity string of `dimension` in SI, or a recorded problem.
     pub fn quantity(&self, dimension: Dimension) -> Option<f64> {
         match self.value {
-            DeValue::String(s) => match parse_quantity(s, dimension) {
+            Value::String(s) => match parse_quantity(s, dimension) {
                 Ok(x) => Some(x),
                 Err(e) => {
                     self.error(format!("`{}`: {e}", self.path()), Some(e.hint()));
@@ -290,7 +292,7 @@ impl<'d> Field<'d> {
     /// pressure's `"-0.85 inH2O"` rather than a barometric pressure's `"29.92 inHg"`).
     pub fn quantity_like(&self, dimension: Dimension, example: &str) -> Option<f64> {
         match self.value {
-            DeValue::String(s) if s.trim().is_empty() => {
+            Value::String(s) if s.trim().is_empty() => {
                 let e = UnitError::Empty {
                     expected: dimension,
                 };
@@ -307,8 +309,8 @@ impl<'d> Field<'d> {
     /// A plain number (integer or float), or a recorded problem.
     pub fn number(&self) -> Option<f64> {
         let x = match self.value {
-            DeValue::Float(f) => f.as_str().parse::<f64>().ok(),
-            DeValue::Integer(i) => i64::from_str_radix(i.as_str(), i.radix())
+            Value::Float(f) => f.as_str().parse::<f64>().ok(),
+            Value::Integer(i) => i64::from_str_radix(i.as_str(), i.radix())
                 .ok()
                 .map(|i| i as f64),
             _ => {
@@ -335,7 +337,7 @@ impl<'d> Field<'d> {
     /// A whole number, or a recorded problem.
     pub fn integer(&self) -> Option<i64> {
         match self.value {
-            DeValue::Integer(i) => match i64::from_str_radix(i.as_str(), i.radix()) {
+            Value::Integer(i) => match i64::from_str_radix(i.as_str(), i.radix()) {
                 Ok(n) => Some(n),
                 Err(_) => {
                     self.error(
@@ -355,7 +357,7 @@ impl<'d> Field<'d> {
     /// True or false, or a recorded problem.
     pub fn bool(&self) -> Option<bool> {
         match self.value {
-            DeValue::Boolean(b) => Some(*b),
+            Value::Boolean(b) => Some(*b),
             _ => {
                 self.wrong_type("true or false", None);
                 None
@@ -409,11 +411,11 @@ impl<'d> Field<'d> {
     /// A list of strings, or a recorded problem.
     pub fn strings(&self) -> Option<Vec<String>> {
         match self.value {
-            DeValue::Array(a) => {
+            Value::Array(a) => {
                 let mut out = Vec::new();
                 for item in a.iter() {
                     match item.get_ref() {
-                        DeValue::String(s) => out.push(s.to_string()),
+                        Value::String(s) => out.push(s.to_string()),
                         other => {
                             self.doc.error(
                                 item.span(),
@@ -441,7 +443,7 @@ impl<'d> Field<'d> {
     /// This value as a table (a `[section]` or an inline `{ … }`), or a recorded problem.
     pub fn table(&self) -> Option<Table<'d>> {
         match self.value {
-            DeValue::Table(t) => Some(Table {
+            Value::Table(t) => Some(Table {
                 doc: self.doc,
                 path: self.path().into(),
                 table: t,
@@ -458,7 +460,7 @@ impl<'d> Field<'d> {
     /// For a number written in quotes: write it without them.
     fn unquote_hint(&self) -> Option<String> {
         match self.value {
-            DeValue::String(s) if s.trim().parse::<f64>().is_ok() => Some(format!(
+            Value::String(s) if s.trim().parse::<f64>().is_ok() => Some(format!(
                 "write the number without quotes: {} = {}",
                 self.key,
                 s.trim()
@@ -485,7 +487,7 @@ pub struct Table<'d> {
     doc: &'d TomlDoc<'d>,
     /// Dotted path of the table (`gas.method4`); empty for the top level.
     path: std::rc::Rc<str>,
-    table: &'d DeTable<'d>,
+    table: &'d Map<'d>,
     /// The table's header (`[gas]`), or the inline table.
     span: Range<usize>,
     /// Keys a parser asked for: every other key present is unknown.
@@ -531,7 +533,7 @@ impl<'d> Table<'d> {
 
     /// The value of `key` without asking for it (the key is not marked as known, nothing is
     /// checked): for a parser that only glances at a table another parser reads.
-    pub fn peek(&self, key: &'static str) -> Option<&'d DeValue<'d>> {
+    pub fn peek(&self, key: &'static str) -> Option<&'d Value<'d>> {
         self.table.get(key).map(|v| v.get_ref())
     }
 
@@ -549,11 +551,7 @@ impl<'d> Table<'d> {
         Some(self.field(k, v))
     }
 
-    fn field(
-        &self,
-        k: &'d Spanned<std::borrow::Cow<'d, str>>,
-        v: &'d Spanned<DeValue<'d>>,
-    ) -> Field<'d> {
+    fn field(&self, k: &'d Spanned<Cow<'d, str>>, v: &'d Spanned<Value<'d>>) -> Field<'d> {
         Field {
             doc: self.doc,
             value: v.get_ref(),
@@ -775,7 +773,7 @@ impl<'d> Table<'d> {
             return Vec::new();
         };
         match f.value {
-            DeValue::Array(items) => items
+            Value::Array(items) => items
                 .iter()
                 .filter_map(|item| {
                     let field = Field {
@@ -850,28 +848,28 @@ fn join(parent: &str, key: &str) -> String {
 }
 
 /// A TOML value as the text a user wrote: strings unquoted, numbers and dates as printed.
-pub fn value_text(v: &DeValue) -> String {
+pub fn value_text(v: &Value) -> String {
     match v {
-        DeValue::String(s) => s.to_string(),
-        DeValue::Integer(i) => i.to_string(),
-        DeValue::Float(f) => f.to_string(),
-        DeValue::Boolean(b) => b.to_string(),
-        DeValue::Datetime(d) => d.to_string(),
-        DeValue::Array(_) => "[…]".to_string(),
-        DeValue::Table(_) => "{…}".to_string(),
+        Value::String(s) => s.to_string(),
+        Value::Integer(i) => i.to_string(),
+        Value::Float(f) => f.to_string(),
+        Value::Boolean(b) => b.to_string(),
+        Value::Datetime(d) => d.to_string(),
+        Value::Array(_) => "[…]".to_string(),
+        Value::Table(_) => "{…}".to_string(),
     }
 }
 
 /// What a value is, for "found …" in messages.
-fn describe(v: &DeValue) -> String {
+fn describe(v: &Value) -> String {
     match v {
-        DeValue::String(s) => format!("the string `{s}`"),
-        DeValue::Integer(i) => format!("the number `{i}`"),
-        DeValue::Float(f) => format!("the number `{f}`"),
-        DeValue::Boolean(b) => format!("`{b}`"),
-        DeValue::Datetime(d) => format!("the date `{d}`"),
-        DeValue::Array(_) => "a list".to_string(),
-        DeValue::Table(_) => "a table".to_string(),
+        Value::String(s) => format!("the string `{s}`"),
+        Value::Integer(i) => format!("the number `{i}`"),
+        Value::Float(f) => format!("the number `{f}`"),
+        Value::Boolean(b) => format!("`{b}`"),
+        Value::Datetime(d) => format!("the date `{d}`"),
+        Value::Array(_) => "a list".to_string(),
+        Value::Table(_) => "a table".to_string(),
     }
 }
 

@@ -138,7 +138,7 @@ fn pct_text(t: &Table, key: &'static str) -> String {
 
 fn dry_molar_mass(f: &Field) -> Option<f64> {
     let g_mol = match f.value {
-        toml::de::DeValue::String(_) => f.quantity(Dimension::MolarMass),
+        crate::input::toml_doc::Value::String(_) => f.quantity(Dimension::MolarMass),
         _ => f.number(),
     }?;
     f.within(g_mol, range::DRY_MOLAR_MASS)

@@ -1,12 +1,12 @@
 //! `[design]`, `[flow]` and `[signoff]`: the design flow with its basis, the computation choices
 //! a survey makes, and who signs.
 
+use crate::input::toml_doc::Value;
 use crate::input::toml_doc::{Field, Table};
 use crate::survey::{
     AngleCorrection, DesignFlow, FlowOptions, NegativePolicy, Signoff, WallFactor,
 };
 use crate::units::{parse_flow, FlowBasis};
-use toml::de::DeValue;
 
 /// Reads `[design]`: `Some(None)` when there is none, `None` after a recorded problem.
 pub fn read_design(root: &Table) -> Option<Option<DesignFlow>> {
@@ -89,12 +89,12 @@ pub fn read_flow_options(root: &Table) -> Option<FlowOptions> {
 
 fn wall_factor(f: &Field) -> Option<WallFactor> {
     let factor = match f.value {
-        DeValue::String(s) if s == "method-2h-default" => return Some(WallFactor::Method2hDefault),
-        DeValue::String(s) if s == "method-2h-calculated" => {
+        Value::String(s) if s == "method-2h-default" => return Some(WallFactor::Method2hDefault),
+        Value::String(s) if s == "method-2h-calculated" => {
             return Some(WallFactor::Method2hCalculated)
         }
-        DeValue::String(s) if s == "none" => return Some(WallFactor::None),
-        DeValue::Float(_) | DeValue::Integer(_) => f.number(),
+        Value::String(s) if s == "none" => return Some(WallFactor::None),
+        Value::Float(_) | Value::Integer(_) => f.number(),
         _ => None,
     };
     match factor {

@@ -1,12 +1,12 @@
 //! `[survey]`, `[duct]` and `[layout]`: what the survey is and the plane it measures.
 
 use crate::geometry::{Duct, GeometryError};
+use crate::input::toml_doc::Value;
 use crate::input::toml_doc::{Field, Table};
 use crate::layout::Method;
 use crate::survey::{Construction, ConventionId, LayoutRequest, ReferenceOverride};
 use crate::units::{parse_quantity, Dimension};
 use chrono::NaiveDate;
-use toml::de::DeValue;
 
 /// The descriptive part of `[survey]`.
 pub struct Meta {
@@ -96,13 +96,13 @@ pub fn read_plane(root: &Table, survey: Option<&Table>) -> Option<PlaneParts> {
     let layout = read_layout(root);
     // glanced at, not read: `[survey]`'s and `[flow]`'s own readers check them
     let text = |key: &'static str| match survey.and_then(|t| t.peek(key)) {
-        Some(DeValue::String(s)) => Some(s.to_string()),
+        Some(Value::String(s)) => Some(s.to_string()),
         _ => None,
     };
     let epa_metric = match root.peek("flow") {
-        Some(DeValue::Table(f)) => f
+        Some(Value::Table(f)) => f
             .get("epa_units")
-            .is_some_and(|v| matches!(v.get_ref(), DeValue::String(s) if s.trim() == "metric")),
+            .is_some_and(|v| matches!(v.get_ref(), Value::String(s) if s.trim() == "metric")),
         _ => false,
     };
     let duct = duct?;
@@ -244,7 +244,7 @@ fn upper_bound(f: &Field, x: f64) -> Option<f64> {
 /// A straight run: `"6.2 D"` in diameters, or a length divided by the (equivalent) diameter.
 fn distance(t: &Table, key: &'static str, duct: Option<&Duct>) -> Option<f64> {
     let f = t.get(key)?;
-    if !matches!(f.value, toml::de::DeValue::String(_)) {
+    if !matches!(f.value, crate::input::toml_doc::Value::String(_)) {
         f.wrong_type(
             "a distance with its unit",
             Some(format!(
