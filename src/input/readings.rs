@@ -459,6 +459,7 @@ fn parse_rows_with(
         ));
     }
     let mut rows = limited_rows(file, text)?.into_iter();
+    let room = rows.len();
     let (header_line, headers) = header_record(file, rows.next())?;
     if let Some(e) = foreign_header(file, header_line, &headers) {
         return Err(e);
@@ -468,8 +469,8 @@ fn parse_rows_with(
         .iter()
         .find_map(|(i, c)| matches!(c, Col::Dp(_)).then_some(*i));
     let mut diags = Diagnostics::new();
-    let mut readings = Vec::new();
-    let mut distances = Vec::new();
+    let mut readings = Vec::with_capacity(room);
+    let mut distances = Vec::with_capacity(room);
     // rows with a line and point but no Δp: a sheet not filled in yet is one problem, not one
     // per point
     let (mut rows_seen, mut dp_blank) = (0usize, 0usize);
