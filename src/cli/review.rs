@@ -221,8 +221,17 @@ fn read_inside(
 /// file system (a 10,000-survey archive took 0.12–0.25 s to list on one thread).
 fn walk(dir: &Path) -> (Vec<PathBuf>, Vec<Reviewed>) {
     use std::sync::{Condvar, Mutex};
-    // folders waiting to be listed, and how many are being listed now
-    let queue = Mutex::new((vec![dir.to_path_buf()], 0usize));
+    /// Folders waiting to be listed, how many are being listed, how many listers wait.
+    struct Queue {
+        folders: Vec<PathBuf>,
+        busy: usize,
+        waiting: usize,
+    }
+    let queue = Mutex::new(Queue {
+        folders: vec![dir.to_path_buf()],
+        busy: 0,
+        waiting: 0,
+    });
     let ready = Condvar::new();
     let threads = std::thread::available_parallelism()
         .map(|n| n.get())
@@ -237,17 +246,19 @@ fn walk(dir: &Path) -> (Vec<PathBuf>, Vec<Reviewed>) {
                         let d = {
                             let Ok(mut q) = queue.lock() else { break };
                             loop {
-                                if let Some(d) = q.0.pop() {
-                                    q.1 += 1;
+                                if let Some(d) = q.folders.pop() {
+                                    q.busy += 1;
                                     break Some(d);
                                 }
-                                if q.1 == 0 {
+                                if q.busy == 0 {
                                     break None;
                                 }
+                                q.waiting += 1;
                                 q = match ready.wait(q) {
                                     Ok(q) => q,
                                     Err(_) => return mine,
                                 };
+                                q.waiting -= 1;
                             }
                         };
                         let Some(d) = d else {
@@ -255,11 +266,21 @@ fn walk(dir: &Path) -> (Vec<PathBuf>, Vec<Reviewed>) {
                             break;
                         };
                         let sub = list_folder(&d, &mut mine.0, &mut mine.1);
-                        if let Ok(mut q) = queue.lock() {
-                            q.0.extend(sub);
-                            q.1 -= 1;
+                        // a lister that waits is woken only when there is something for it:
+                        // new folders, or the end (waking on every folder was a system call
+                        // per folder)
+                        let wake = match queue.lock() {
+                            Ok(mut q) => {
+                                let found = !sub.is_empty();
+                                q.folders.extend(sub);
+                                q.busy -= 1;
+                                q.waiting > 0 && (found || q.busy == 0)
+                            }
+                            Err(_) => true,
+                        };
+                        if wake {
+                            ready.notify_all();
                         }
-                        ready.notify_all();
                     }
                     mine
                 })
@@ -304,16 +325,19 @@ fn list_folder(d: &Path, files: &mut Vec<PathBuf>, bad: &mut Vec<Reviewed>) -> V
                 continue;
             }
         };
-        let path = entry.path();
         // symbolic links to folders are not followed (no cycles); linked files are read
         let Ok(kind) = entry.file_type() else {
             continue;
         };
+        let path = entry.path();
         if kind.is_dir() {
-            if !entry.file_name().to_string_lossy().starts_with('.') {
+            let hidden = path
+                .file_name()
+                .is_some_and(|n| n.as_encoded_bytes().starts_with(b"."));
+            if !hidden {
                 sub.push(path);
             }
-        } else if (kind.is_file() || (kind.is_symlink() && path.is_file())) && is_candidate(&path) {
+        } else if is_candidate(&path) && (kind.is_file() || (kind.is_symlink() && path.is_file())) {
             files.push(path);
         }
     }
