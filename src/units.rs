@@ -581,7 +581,11 @@ impl std::error::Error for UnitError {}
 
 /// Parses a number, also a simple fraction `1/8` or a mixed number `2-1/2`.
 pub fn parse_number(text: &str) -> Option<f64> {
-    let t = text.trim();
+    // a cell or value that starts and ends in a visible ASCII character has nothing to trim
+    let t = match (text.as_bytes().first(), text.as_bytes().last()) {
+        (Some(a), Some(z)) if a.is_ascii_graphic() && z.is_ascii_graphic() => text,
+        _ => text.trim(),
+    };
     if t.is_empty() {
         return None;
     }

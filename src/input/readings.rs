@@ -59,8 +59,9 @@ fn parse_header(h: &str) -> Result<Col, HeaderError> {
 }
 
 fn decimals(raw: &str) -> usize {
-    // byte by byte: `.` and ASCII digits are one byte each in UTF-8
-    let b = raw.trim().as_bytes();
+    // byte by byte: `.` and ASCII digits are one byte each in UTF-8 (and blanks around the
+    // number change nothing: the count stops at the first byte that is not a digit)
+    let b = raw.as_bytes();
     b.iter().position(|&c| c == b'.').map_or(0, |dot| {
         b[dot + 1..]
             .iter()
@@ -468,6 +469,8 @@ fn parse_rows_with(
     let dp_col = cols
         .iter()
         .find_map(|(i, c)| matches!(c, Col::Dp(_)).then_some(*i));
+    let col_of = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
+    let label_cols = (col_of(Col::Line), col_of(Col::Point));
     let mut diags = Diagnostics::new();
     let mut readings = Vec::with_capacity(room);
     let mut distances = Vec::with_capacity(room);
@@ -485,17 +488,22 @@ fn parse_rows_with(
                 continue;
             }
         };
-        if rec.iter().any(|c| !c.is_empty()) {
-            rows_seen += 1;
-            dp_blank += usize::from(dp_col.and_then(|i| rec.get(i)).is_some_and(str::is_empty));
+        // a blank row is skipped
+        if rec.iter().all(str::is_empty) {
+            continue;
         }
-        match row_reading(file, line_no, &rec, &headers, &cols) {
-            Ok(Some((r, d))) => {
-                readings.push(r);
-                distances.push(d);
-            }
-            Ok(None) => {}
-            Err(d) => diags.extend(d),
+        rows_seen += 1;
+        dp_blank += usize::from(dp_col.and_then(|i| rec.get(i)).is_some_and(str::is_empty));
+        let row = Row {
+            file,
+            line_no,
+            rec: &rec,
+            headers: &headers,
+            cols: &cols,
+            label_cols,
+        };
+        if let Err(d) = row.read(&mut readings, &mut distances) {
+            diags.extend(d);
         }
     }
     if rows_seen > 1 && dp_blank == rows_seen {
@@ -528,68 +536,80 @@ fn parse_rows_with(
     ))
 }
 
-/// One row as a reading (with its distance from the wall, in a wall-effects file): `None` for a
-/// blank row, every bad cell of the row otherwise.
-fn row_reading(
-    file: &str,
+/// One non-blank row of a row-form readings file, with what reading it takes.
+struct Row<'r, 't> {
+    file: &'r str,
     line_no: usize,
-    rec: &Cells,
-    headers: &Cells,
-    cols: &[(usize, Col)],
-) -> Result<Option<(Reading, Option<f64>)>, Diagnostics> {
-    let mut diags = Diagnostics::new();
-    if rec.iter().all(|c| c.is_empty()) {
-        return Ok(None);
-    }
-    if rec.len() != headers.len() {
-        diags.push(
-            Diagnostic::new(format!(
-                "row has {} fields, the header has {}",
-                rec.len(),
-                headers.len()
-            ))
-            .at(Location::at(file, line_no, 1).with_context(format!(
-                "`{}`",
-                rec.iter().collect::<Vec<_>>().join(",")
-            )))
-            .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
-        );
-        return Err(diags);
-    }
-    let get = |c: Col| cols.iter().find(|(_, x)| *x == c).map(|(i, _)| *i);
-    let line_raw = get(Col::Line).map(|i| &rec[i]).unwrap_or_default();
-    let point_raw = get(Col::Point).map(|i| &rec[i]).unwrap_or_default();
-    let line_label = line_raw.to_string();
-    let mut r = Reading {
-        line: line_label,
-        point: 0,
-        dp: Dp::Pressure { pa: f64::NAN },
-        dp_decimals: 0,
-        temperature_k: None,
-        yaw_deg: None,
-        pitch_deg: None,
-        static_pa: None,
-        time: None,
-        source_line: line_no,
-    };
-    let mut distance = None;
-    for (i, col) in cols {
-        let cell = Cell {
-            file,
-            line: line_no,
-            column: i + 1,
-            header: &headers[*i],
-            line_label: line_raw,
-            point: point_raw,
-        };
-        if let Err(d) = read_cell(*col, &rec[*i], &cell, &mut r, &mut distance) {
-            diags.push(d);
+    rec: &'r Cells<'t>,
+    headers: &'r Cells<'t>,
+    cols: &'r [(usize, Col)],
+    /// The columns of the line label and the point number.
+    label_cols: (Option<usize>, Option<usize>),
+}
+
+impl Row<'_, '_> {
+    /// Adds the row's reading (and, in a wall-effects file, its distance from the wall) to
+    /// `readings` and `distances`; every bad cell of the row otherwise.
+    fn read(
+        &self,
+        readings: &mut Vec<Reading>,
+        distances: &mut Vec<Option<f64>>,
+    ) -> Result<(), Diagnostics> {
+        let (file, line_no, rec, headers) = (self.file, self.line_no, self.rec, self.headers);
+        let mut diags = Diagnostics::new();
+        if rec.len() != headers.len() {
+            diags.push(
+                Diagnostic::new(format!(
+                    "row has {} fields, the header has {}",
+                    rec.len(),
+                    headers.len()
+                ))
+                .at(Location::at(file, line_no, 1).with_context(format!(
+                    "`{}`",
+                    rec.iter().collect::<Vec<_>>().join(",")
+                )))
+                .hint("every row needs a value (or an empty field) for each column; look for a stray comma"),
+            );
+            return Err(diags);
         }
-    }
-    if diags.is_empty() {
-        Ok(Some((r, distance)))
-    } else {
-        Err(diags)
+        let line_raw = self.label_cols.0.map(|i| &rec[i]).unwrap_or_default();
+        let point_raw = self.label_cols.1.map(|i| &rec[i]).unwrap_or_default();
+        // written in place: a reading is moved no more than it must be
+        readings.push(Reading {
+            line: line_raw.to_string(),
+            point: 0,
+            dp: Dp::Pressure { pa: f64::NAN },
+            dp_decimals: 0,
+            temperature_k: None,
+            yaw_deg: None,
+            pitch_deg: None,
+            static_pa: None,
+            time: None,
+            source_line: line_no,
+        });
+        let mut distance = None;
+        if let Some(r) = readings.last_mut() {
+            for (i, col) in self.cols {
+                let cell = Cell {
+                    file,
+                    line: line_no,
+                    column: i + 1,
+                    header: &headers[*i],
+                    line_label: line_raw,
+                    point: point_raw,
+                };
+                if let Err(d) = read_cell(*col, &rec[*i], &cell, r, &mut distance) {
+                    diags.push(d);
+                }
+            }
+        }
+        if diags.is_empty() {
+            distances.push(distance);
+            Ok(())
+        } else {
+            readings.pop();
+            Err(diags)
+        }
     }
 }
 
