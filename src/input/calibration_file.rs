@@ -41,6 +41,7 @@
 //! more are accepted.
 
 use super::header::{Header, HeaderError};
+use super::readings::Cells;
 use super::toml_doc::{Table, TomlDoc};
 use super::{read_referenced, FileKind, SourceFile};
 use crate::calibration::{
@@ -392,11 +393,7 @@ struct Columns {
 }
 
 /// The columns the header names, or every problem with it.
-fn read_columns(
-    file: &str,
-    header_line: usize,
-    headers: &csv::StringRecord,
-) -> Result<Columns, Error> {
+fn read_columns(file: &str, header_line: usize, headers: &Cells) -> Result<Columns, Error> {
     let mut diags = Diagnostics::new();
     let mut cols: Vec<(usize, Col)> = Vec::new();
     for (i, h) in headers.iter().enumerate() {
@@ -469,54 +466,52 @@ fn read_columns(
 /// Parses the paired-readings CSV. Every bad cell is reported with its line, column, header and
 /// raw value; a leg with fewer than three pairs is an error (EPA Method 2 §10.1).
 pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Error> {
-    let mut rdr = csv::ReaderBuilder::new()
-        .trim(csv::Trim::All)
-        .comment(Some(b'#'))
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let headers = match rdr.headers() {
-        Ok(h) => h.clone(),
-        Err(e) => {
+    use crate::limits::MAX_CALIBRATION_PAIRS;
+    // split as a survey's readings are (quoted files through the csv crate), with true line
+    // numbers; one record more than the limit allows is read, to tell that there are more
+    let records = super::readings::csv_rows(text, MAX_CALIBRATION_PAIRS + 2);
+    let capped = records.len() == MAX_CALIBRATION_PAIRS + 2;
+    let mut records = records.into_iter();
+    let (header_line, headers) = match records.next() {
+        Some((line, Ok(h))) => (line, h),
+        Some((_, Err(e))) => {
             return Err(Error::input(
                 Diagnostic::new(format!("the readings file cannot be read as CSV: {e}"))
                     .at(Location::file(file)),
             ))
         }
+        None => (1, Default::default()),
     };
-    // The header is the first line that is not a comment; find it for messages.
-    let header_line = text
-        .lines()
-        .position(|l| !l.trim_start().starts_with('#'))
-        .map(|i| i + 1)
-        .unwrap_or(1);
     let cols = read_columns(file, header_line, &headers)?;
     let mut diags = Diagnostics::new();
     let mut rows = Vec::new();
     let mut counts = [0usize; 2];
-    for rec in rdr.records() {
-        if rows.len() + diags.len() >= crate::limits::MAX_CALIBRATION_PAIRS {
-            let limit = crate::limits::MAX_CALIBRATION_PAIRS;
-            diags.push(
-                Diagnostic::new(format!(
-                    "the readings file has more than {limit} rows; annulus accepts at most {limit} pairs"
-                ))
-                .at(Location::file(file))
-                .hint("check that the path names the right file"),
-            );
+    let too_many = || {
+        let limit = MAX_CALIBRATION_PAIRS;
+        Diagnostic::new(format!(
+            "the readings file has more than {limit} rows; annulus accepts at most {limit} pairs"
+        ))
+        .at(Location::file(file))
+        .hint("check that the path names the right file")
+    };
+    let mut limited = false;
+    for (line_no, rec) in records {
+        if rows.len() + diags.len() >= MAX_CALIBRATION_PAIRS {
+            diags.push(too_many());
+            limited = true;
             break;
         }
         let rec = match rec {
             Ok(r) => r,
             Err(e) => {
-                let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
                 diags.push(
                     Diagnostic::new(format!("unreadable CSV row: {e}"))
-                        .at(Location::at(file, line, 1)),
+                        .at(Location::at(file, line_no, 1)),
                 );
                 continue;
             }
         };
-        match read_pair(file, &rec, &headers, &cols) {
+        match read_pair(file, line_no, &rec, &headers, &cols) {
             Ok(Some(mut row)) => {
                 let k = usize::from(row.leg == Leg::B);
                 counts[k] += 1;
@@ -526,6 +521,10 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
             Ok(None) => {}
             Err(d) => diags.extend(d),
         }
+    }
+    // rows left unread after blank ones are never dropped quietly
+    if capped && !limited {
+        diags.push(too_many());
     }
     if diags.is_empty() {
         for leg in [Leg::A, Leg::B] {
@@ -556,12 +555,12 @@ pub fn parse_readings(file: &str, text: &str) -> Result<CalibrationReadings, Err
 /// blank row, every bad cell of the row otherwise.
 fn read_pair(
     file: &str,
-    rec: &csv::StringRecord,
-    headers: &csv::StringRecord,
+    line_no: usize,
+    rec: &Cells,
+    headers: &Cells,
     cols: &Columns,
 ) -> Result<Option<CalibrationReading>, Diagnostics> {
     let mut diags = Diagnostics::new();
-    let line_no = rec.position().map(|p| p.line() as usize).unwrap_or(0);
     if rec.iter().all(|c| c.is_empty()) {
         return Ok(None);
     }
@@ -595,16 +594,20 @@ fn read_pair(
             None
         }
     };
-    let who = match leg {
+    // "leg A, " before a bad cell's column (worded only for a bad cell)
+    let who = || match leg {
         Some(l) => format!("leg {}, ", l.label()),
         None => String::new(),
     };
     let mut cell = |(i, unit): (usize, &Unit), what: &str| -> Option<f64> {
-        let at = Location::at(file, line_no, i + 1)
-            .with_context(format!("{who}column `{}`", &headers[i]));
         match pair_value(&rec[i], unit, what) {
             Ok(v) => Some(v),
             Err((message, hint)) => {
+                let at = Location::at(file, line_no, i + 1).with_context(format!(
+                    "{}column `{}`",
+                    who(),
+                    &headers[i]
+                ));
                 diags.push(Diagnostic::new(message).at(at).hint(hint));
                 None
             }
@@ -763,6 +766,43 @@ readings = "r.csv"
         assert!(s.contains("must be greater than zero, found `0`"), "{s}");
         assert!(s.contains("r.csv:7:2"), "{s}");
         assert!(s.contains("standard pitot Δp is missing"), "{s}");
+    }
+
+    #[test]
+    fn comment_lines_count_in_a_bad_cells_line_number_quoted_or_not() {
+        // line 5 of the file is `A,0.59X,0.830` whichever reader splits it
+        let plain = "# tunnel run 3\nleg,standard_dp[inH2O],s_type_dp[inH2O]\nA,0.600,0.840\n# re-read\nA,0.59X,0.830\n";
+        let quoted = plain.replace("A,0.600", "\"A\",0.600");
+        for text in [plain.to_string(), quoted] {
+            let d = input_err(parse_readings("r.csv", &text));
+            assert!(d.to_string().contains("r.csv:5:2"), "{d}");
+        }
+    }
+
+    #[test]
+    fn rows_past_the_limit_are_never_dropped_quietly() {
+        // blank rows do not count as pairs, but every record past the limit is reported
+        let mut text = String::from("leg,standard_dp[inH2O],s_type_dp[inH2O]\n");
+        for i in 0..crate::limits::MAX_CALIBRATION_PAIRS + 5 {
+            text.push_str(if i % 2 == 0 {
+                ",,\n"
+            } else {
+                "A,0.600,0.840\n"
+            });
+        }
+        let d = input_err(parse_readings("r.csv", &text));
+        assert_eq!(d.len(), 1, "{d}");
+        assert!(d.items()[0].message.contains("more than 1000 rows"), "{d}");
+        // at the limit, it is read
+        let mut text = String::from("leg,standard_dp[inH2O],s_type_dp[inH2O]\n");
+        for i in 0..crate::limits::MAX_CALIBRATION_PAIRS {
+            text.push_str(if i % 2 == 0 {
+                "B,0.600,0.850\n"
+            } else {
+                "A,0.600,0.840\n"
+            });
+        }
+        assert_eq!(parse_readings("r.csv", &text).unwrap().rows.len(), 1000);
     }
 
     #[test]
