@@ -160,6 +160,17 @@ pub fn read_referenced(
     kind: FileKind,
     source: FileSource,
 ) -> Result<(Vec<u8>, String), Diagnostic> {
+    read_referenced_at(path, written, &|| named_at.clone(), kind, source)
+}
+
+/// [`read_referenced`] with the naming line's location worded only for a problem.
+fn read_referenced_at(
+    path: &Path,
+    written: &str,
+    named_at: &dyn Fn() -> Location,
+    kind: FileKind,
+    source: FileSource,
+) -> Result<(Vec<u8>, String), Diagnostic> {
     let name = path.display().to_string();
     let size_kind = kind.size_kind();
     let bytes = source(path).map_err(|e| {
@@ -168,7 +179,7 @@ pub fn read_referenced(
             "cannot read the {} `{written}` (resolved to `{name}`): {reason}",
             kind.what()
         ))
-        .at(named_at.clone())
+        .at(named_at())
         .hint(hint.unwrap_or_else(|| kind.hint().to_string()))
     })?;
     fs::check_size(&name, size_kind, bytes.len())?;
@@ -259,13 +270,22 @@ fn load_survey(
     };
     let mut runs = Vec::new();
     let mut wall_readings = Vec::new();
+    // where the survey names a file, worded for a file that cannot be read
+    let at = |named: &Option<survey::runs::Named>| match named {
+        Some(n) => doc.location(n.span.clone(), &n.key),
+        None => Location::file(doc.file()),
+    };
     for entry in &entries {
-        match load_readings(dir, entry, source) {
+        match load_readings(dir, entry, &|| at(&entry.readings_at), source) {
             Ok(r) => runs.push(r),
             Err(Error::Input(d)) => doc.extend(d),
             Err(e) => return Err(e),
         }
-        match load_wall_readings(dir, entry, source) {
+        let wall_at = || match &entry.wall_readings_at {
+            Some(_) => at(&entry.wall_readings_at),
+            None => at(&entry.readings_at),
+        };
+        match load_wall_readings(dir, entry, &wall_at, source) {
             Ok(w) => wall_readings.push(w),
             Err(Error::Input(d)) => {
                 doc.extend(d);
@@ -296,6 +316,7 @@ fn load_survey(
 fn load_wall_readings(
     dir: &Path,
     entry: &survey::runs::RunEntry,
+    at: &dyn Fn() -> Location,
     source: FileSource,
 ) -> Result<Option<(SourceFile, crate::readings::WallReadings)>, Error> {
     let Some(written) = &entry.spec.wall_readings else {
@@ -303,11 +324,7 @@ fn load_wall_readings(
     };
     let path = dir.join(written);
     let name = path.display().to_string();
-    let at = entry
-        .wall_readings_at
-        .clone()
-        .unwrap_or_else(|| entry.readings_at.clone());
-    let (bytes, text) = read_referenced(&path, written, &at, FileKind::WallReadings, source)?;
+    let (bytes, text) = read_referenced_at(&path, written, at, FileKind::WallReadings, source)?;
     let parsed = readings::parse_wall(&name, &text)?;
     Ok(Some((
         SourceFile {
@@ -323,18 +340,14 @@ fn load_wall_readings(
 fn load_readings(
     dir: &Path,
     entry: &survey::runs::RunEntry,
+    at: &dyn Fn() -> Location,
     source: FileSource,
 ) -> Result<(SourceFile, RunReadings), Error> {
     let run = &entry.spec;
     let rpath = dir.join(&run.readings);
     let rname = rpath.display().to_string();
-    let (rbytes, rtext) = read_referenced(
-        &rpath,
-        &run.readings,
-        &entry.readings_at,
-        FileKind::Readings,
-        source,
-    )?;
+    let (rbytes, rtext) =
+        read_referenced_at(&rpath, &run.readings, at, FileKind::Readings, source)?;
     let parsed = match &run.form {
         ReadingsForm::Rows => readings::parse_rows(&rname, &rtext),
         ReadingsForm::Matrix { header } => readings::parse_matrix(&rname, &rtext, header),

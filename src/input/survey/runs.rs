@@ -10,10 +10,19 @@ use crate::survey::{LeakCheck, LeakResult, ReadingsForm, RunSpec};
 #[derive(Debug, Clone)]
 pub struct RunEntry {
     pub spec: RunSpec,
-    /// The `readings = "…"` value, where a readings file that cannot be read is reported.
-    pub readings_at: Location,
-    /// The `wall_readings = "…"` value, when the run has one.
-    pub wall_readings_at: Option<Location>,
+    /// Where the `readings = "…"` value is (its byte span in the survey), where a readings file
+    /// that cannot be read is reported; worded as a location only then
+    /// ([`crate::input::toml_doc::TomlDoc::location`]).
+    pub readings_at: Option<Named>,
+    /// The same for the `wall_readings = "…"` value, when the run has one.
+    pub wall_readings_at: Option<Named>,
+}
+
+/// A value's span in the survey and its dotted key (`run.readings`).
+#[derive(Debug, Clone)]
+pub struct Named {
+    pub span: std::ops::Range<usize>,
+    pub key: String,
 }
 
 /// Reads every `[[run]]`; a survey without one is a recorded problem. Runs with a problem of
@@ -34,13 +43,12 @@ pub fn read_runs(root: &Table) -> Vec<RunEntry> {
             t.error_at("id", format!("run id `{}` is used twice", spec.id), None);
             continue;
         }
-        let readings_at = match t.get("readings") {
-            Some(f) => f.doc.location(f.span.clone(), &f.path()),
-            None => Location::file(root.doc().file()),
+        let named = |f: crate::input::toml_doc::Field| Named {
+            span: f.span.clone(),
+            key: f.path(),
         };
-        let wall_readings_at = t
-            .get("wall_readings")
-            .map(|f| f.doc.location(f.span.clone(), &f.path()));
+        let readings_at = t.get("readings").map(named);
+        let wall_readings_at = t.get("wall_readings").map(named);
         runs.push(RunEntry {
             spec,
             readings_at,
