@@ -630,11 +630,119 @@ impl JsonEntries {
 }
 
 /// `value` as pretty JSON nested `depth` levels deep (two spaces a level), as serde_json's
-/// pretty printer writes it inside a larger value: every line after the first indented. (A
-/// JSON string holds no raw line break, so every line break is the printer's own.)
+/// pretty printer writes it inside a larger value: every line after the first indented.
 fn pretty_at<T: serde::Serialize>(value: &T, depth: usize) -> String {
-    let text = serde_json::to_string_pretty(value).unwrap_or_else(|e| format!("\"{e}\""));
-    text.replace('\n', &format!("\n{}", "  ".repeat(depth)))
+    let mut out = Vec::with_capacity(1024);
+    let mut ser = serde_json::Serializer::with_formatter(&mut out, Nested::at(depth));
+    match value.serialize(&mut ser) {
+        // serde_json writes valid UTF-8
+        Ok(()) => String::from_utf8(out).unwrap_or_default(),
+        Err(e) => format!("\"{e}\""),
+    }
+}
+
+/// A pretty-printing JSON formatter that starts `depth` levels in: each value of an array or
+/// object on a line of its own, indented two spaces a level, and an empty one written `[]`/`{}`.
+/// Writing at the entry's depth directly spares re-indenting the text afterwards (a copy and a
+/// scan of every entry of a review).
+struct Nested {
+    depth: usize,
+    /// Whether the array or object being closed held anything.
+    filled: bool,
+}
+
+impl Nested {
+    fn at(depth: usize) -> Self {
+        Nested {
+            depth,
+            filled: false,
+        }
+    }
+
+    fn line<W: ?Sized + std::io::Write>(&self, w: &mut W) -> std::io::Result<()> {
+        w.write_all(b"\n")?;
+        for _ in 0..self.depth {
+            w.write_all(b"  ")?;
+        }
+        Ok(())
+    }
+
+    fn open<W: ?Sized + std::io::Write>(
+        &mut self,
+        w: &mut W,
+        bracket: &[u8],
+    ) -> std::io::Result<()> {
+        self.depth += 1;
+        self.filled = false;
+        w.write_all(bracket)
+    }
+
+    fn close<W: ?Sized + std::io::Write>(
+        &mut self,
+        w: &mut W,
+        bracket: &[u8],
+    ) -> std::io::Result<()> {
+        self.depth -= 1;
+        if self.filled {
+            self.line(w)?;
+        }
+        w.write_all(bracket)
+    }
+
+    fn item<W: ?Sized + std::io::Write>(&mut self, w: &mut W, first: bool) -> std::io::Result<()> {
+        if !first {
+            w.write_all(b",")?;
+        }
+        self.line(w)
+    }
+}
+
+impl serde_json::ser::Formatter for Nested {
+    fn begin_array<W: ?Sized + std::io::Write>(&mut self, w: &mut W) -> std::io::Result<()> {
+        self.open(w, b"[")
+    }
+
+    fn end_array<W: ?Sized + std::io::Write>(&mut self, w: &mut W) -> std::io::Result<()> {
+        self.close(w, b"]")
+    }
+
+    fn begin_array_value<W: ?Sized + std::io::Write>(
+        &mut self,
+        w: &mut W,
+        first: bool,
+    ) -> std::io::Result<()> {
+        self.item(w, first)
+    }
+
+    fn end_array_value<W: ?Sized + std::io::Write>(&mut self, _w: &mut W) -> std::io::Result<()> {
+        self.filled = true;
+        Ok(())
+    }
+
+    fn begin_object<W: ?Sized + std::io::Write>(&mut self, w: &mut W) -> std::io::Result<()> {
+        self.open(w, b"{")
+    }
+
+    fn end_object<W: ?Sized + std::io::Write>(&mut self, w: &mut W) -> std::io::Result<()> {
+        self.close(w, b"}")
+    }
+
+    fn begin_object_key<W: ?Sized + std::io::Write>(
+        &mut self,
+        w: &mut W,
+        first: bool,
+    ) -> std::io::Result<()> {
+        self.item(w, first)
+    }
+
+    fn begin_object_value<W: ?Sized + std::io::Write>(&mut self, w: &mut W) -> std::io::Result<()> {
+        w.write_all(b": ")
+    }
+
+    fn end_object_value<W: ?Sized + std::io::Write>(&mut self, _w: &mut W) -> std::io::Result<()> {
+        self.filled = true;
+        Ok(())
+    }
 }
 
 fn summary(r: &Review) -> Summary {
@@ -825,6 +933,28 @@ mod tests {
 
     fn reviewed(path: &str, notes: Vec<Note>) -> Reviewed {
         Reviewed::bare(Path::new(path), Kind::Survey, notes)
+    }
+
+    /// Writing at a depth is serde_json's pretty text with every line after the first indented
+    /// (empty and nested arrays and objects, strings holding brackets and line breaks).
+    #[test]
+    fn json_written_at_a_depth_is_the_pretty_text_indented() {
+        let values = [
+            serde_json::json!({}),
+            serde_json::json!([]),
+            serde_json::json!(1.5),
+            serde_json::json!("a [b] {c}\n\"d\""),
+            serde_json::json!({"a": [], "b": {}, "c": [1, [2, []], {"d": null}], "e": {"f": {"g": [true]}}}),
+            serde_json::json!([{}, [], [[]], {"x": "y"}]),
+        ];
+        for v in values {
+            for depth in 0..3 {
+                let expected = serde_json::to_string_pretty(&v)
+                    .unwrap()
+                    .replace('\n', &format!("\n{}", "  ".repeat(depth)));
+                assert_eq!(pretty_at(&v, depth), expected, "{v} at {depth}");
+            }
+        }
     }
 
     /// The JSON written entry by entry is the text the whole review serialises to.
