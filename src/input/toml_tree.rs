@@ -178,14 +178,6 @@ impl<'a> Map<'a> {
     pub fn iter(&self) -> impl Iterator<Item = (&Spanned<Cow<'a, str>>, &Spanned<Value<'a>>)> + '_ {
         self.entries.iter().map(|(k, v)| (k, v))
     }
-
-    pub fn len(&self) -> usize {
-        self.entries.len()
-    }
-
-    pub fn is_empty(&self) -> bool {
-        self.entries.is_empty()
-    }
 }
 
 /// Parses a TOML document: its top-level table, or every syntax error (with the `toml` crate's
@@ -268,7 +260,7 @@ pub fn parse_plain(text: &str) -> Option<Map<'_>> {
             }
             Some(_) => {
                 let table = table_at(&mut root, &current)?;
-                p.key_value(table)?;
+                p.key_value(table, 0)?;
                 p.end_of_line()?;
             }
         }
@@ -393,13 +385,9 @@ impl<'a> Plain<'a> {
             self.at += 1;
         }
         let span = start..self.at;
-        let path: Vec<&'a str> = keys
-            .iter()
-            .map(|k| match k.get_ref() {
-                Cow::Borrowed(s) => Some(*s),
-                Cow::Owned(_) => None,
-            })
-            .collect::<Option<_>>()?;
+        // bare keys are their text
+        let text = self.text;
+        let path: Vec<&'a str> = keys.iter().map(|k| &text[k.span()]).collect();
         let (last, parents) = keys.split_last()?;
         let mut t = root;
         for key in parents {
@@ -409,8 +397,9 @@ impl<'a> Plain<'a> {
         Some(path)
     }
 
-    /// `key = value` into `table` (a key it already has is not this reader's to judge).
-    fn key_value(&mut self, table: &mut Map<'a>) -> Option<()> {
+    /// `key = value` into `table` (a key it already has is not this reader's to judge), on a line
+    /// of its own (`depth` 0) or inside an inline table (`depth`: how deep its value sits).
+    fn key_value(&mut self, table: &mut Map<'a>, depth: usize) -> Option<()> {
         let key = self.key()?;
         self.blank();
         if self.peek() != Some(b'=') {
@@ -418,7 +407,7 @@ impl<'a> Plain<'a> {
         }
         self.at += 1;
         self.blank();
-        let value = self.value(0)?;
+        let value = self.value(depth)?;
         let i = table.find(key.get_ref()).err()?;
         table.entries.insert(i, (key, value));
         Some(())
@@ -627,16 +616,7 @@ impl<'a> Plain<'a> {
         }
         loop {
             self.blank();
-            let key = self.key()?;
-            self.blank();
-            if self.peek()? != b'=' {
-                return None;
-            }
-            self.at += 1;
-            self.blank();
-            let value = self.value(depth + 1)?;
-            let i = table.find(key.get_ref()).err()?;
-            table.entries.insert(i, (key, value));
+            self.key_value(&mut table, depth + 1)?;
             self.blank();
             match self.peek()? {
                 b',' => self.at += 1,
