@@ -566,12 +566,8 @@ fn read_pair(
     }
     if rec.len() != headers.len() {
         diags.push(
-            Diagnostic::new(format!(
-                "row has {} fields, the header has {}",
-                rec.len(),
-                headers.len()
-            ))
-            .at(Location::at(file, line_no, 1))
+            Diagnostic::new(super::readings::width_words(rec, headers))
+                .at(Location::at(file, line_no, 1))
             .hint(if rec.len() > headers.len() {
                 "a decimal comma splits a number into two fields: use `.` as the decimal separator"
             } else {

@@ -125,6 +125,15 @@ fn to_dp(unit: &Unit, v: f64) -> Dp {
     }
 }
 
+/// "row has 5 fields, the header has 6": a record whose width is not its header's.
+pub(crate) fn width_words(rec: &Cells, headers: &Cells) -> String {
+    format!(
+        "row has {} fields, the header has {}",
+        rec.len(),
+        headers.len()
+    )
+}
+
 /// A CSV record (or why it could not be read) with its 1-based line number.
 pub(crate) type CsvRow<'t> = (usize, Result<Cells<'t>, String>);
 
@@ -559,11 +568,7 @@ impl Row<'_, '_> {
         let mut diags = Diagnostics::new();
         if rec.len() != headers.len() {
             diags.push(
-                Diagnostic::new(format!(
-                    "row has {} fields, the header has {}",
-                    rec.len(),
-                    headers.len()
-                ))
+                Diagnostic::new(width_words(rec, headers))
                 .at(Location::at(file, line_no, 1).with_context(format!(
                     "`{}`",
                     rec.iter().collect::<Vec<_>>().join(",")
@@ -781,12 +786,7 @@ pub fn parse_matrix(file: &str, text: &str, header: &str) -> Result<RunReadings,
         };
         if rec.len() != headers.len() {
             diags.push(
-                Diagnostic::new(format!(
-                    "row has {} fields, the header has {}",
-                    rec.len(),
-                    headers.len()
-                ))
-                .at(Location::at(file, line_no, 1)),
+                Diagnostic::new(width_words(&rec, &headers)).at(Location::at(file, line_no, 1)),
             );
             continue;
         }
