@@ -45,28 +45,8 @@ impl<'a> TomlDoc<'a> {
     /// Parses `text` (named `file` in diagnostics). Syntax errors are all reported, located, and
     /// end the reading: the tree after a syntax error is not what the user meant.
     pub fn parse(file: &'a str, text: &'a str, kind: &'static str) -> Result<Self, Error> {
-        let root = match super::toml_tree::parse(text) {
-            Ok(root) => root,
-            Err(errors) => {
-                let mut errors: Vec<_> = errors
-                .into_iter()
-                .map(|e| {
-                    let at = e.span().map(|s| s.start).unwrap_or(0);
-                    let d = Diagnostic::new(format!(
-                        "the {kind} is not valid TOML: {}",
-                        e.message().trim()
-                    ))
-                    .at(span_location(file, text, at))
-                    .hint("TOML writes `key = \"value\"`; quantities are quoted strings such as \"24 in\"");
-                    (at, d)
-                })
-                .collect();
-                errors.sort_by_key(|(at, _)| *at);
-                let mut all = Diagnostics::new();
-                errors.into_iter().for_each(|(_, d)| all.push(d));
-                return Err(Error::Input(all));
-            }
-        };
+        let root = super::toml_tree::parse(text)
+            .map_err(|errors| syntax_errors(file, text, kind, errors))?;
         Ok(TomlDoc {
             file,
             text,
@@ -164,6 +144,27 @@ impl<'a> TomlDoc<'a> {
             )),
         }
     }
+}
+
+/// Every syntax error of a TOML text, located, in the order they appear in it.
+fn syntax_errors(file: &str, text: &str, kind: &str, errors: Vec<toml::de::Error>) -> Error {
+    let mut located: Vec<(usize, Diagnostic)> = errors
+        .into_iter()
+        .map(|e| {
+            let at = e.span().map(|s| s.start).unwrap_or(0);
+            let d = Diagnostic::new(format!(
+                "the {kind} is not valid TOML: {}",
+                e.message().trim()
+            ))
+            .at(span_location(file, text, at))
+            .hint("TOML writes `key = \"value\"`; quantities are quoted strings such as \"24 in\"");
+            (at, d)
+        })
+        .collect();
+    located.sort_by_key(|(at, _)| *at);
+    let mut all = Diagnostics::new();
+    located.into_iter().for_each(|(_, d)| all.push(d));
+    Error::Input(all)
 }
 
 /// A value with where it is and the dotted key it was found under.
